@@ -1,0 +1,1 @@
+"""The pure domain of tablecoach: numpy and the standard library only, SI units."""

@@ -1,0 +1,1 @@
+"""Ball, cloth and cushion physics: event-based motion, cushion impacts, batch simulation."""

@@ -1,0 +1,169 @@
+"""Attempt records: one logged shot, as stored, exported and read back.
+
+Records are the one core type kept in diamonds rather than metres: they are the logged
+contract (docs/formats.md), and must read the same whatever table spec is loaded later.
+Convert to metres through the table (``TableSpec.to_metres``) when a model needs them.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from datetime import UTC, datetime
+from typing import Literal
+
+from .table import POCKETS, RAILS, TableError
+
+Result = Literal["hit", "miss"]
+SCHEMA_VERSION = 1
+
+
+class RecordError(ValueError):
+    """An attempt record is malformed; the message names the field and what is allowed."""
+
+
+@dataclass(frozen=True, slots=True)
+class ShotRecord:
+    """The shot of an attempt in the contract's terms (positions in diamonds).
+
+    ``family`` is the preset name or "custom"; the structure (travel, rails, target) is kept
+    in full so a record stands on its own.
+    """
+
+    travel: Literal["cue", "object"]
+    rails: tuple[str, ...]
+    cue: tuple[float, float]
+    object: tuple[float, float] | None = None
+    pocket: str | None = None
+    target_ball: tuple[float, float] | None = None
+    family: str = "custom"
+
+
+@dataclass(frozen=True, slots=True)
+class Attempt:
+    """One logged attempt.
+
+    ``when`` is timezone-aware UTC. ``aim_given`` is the reading the coach showed and
+    ``aim_used`` the reading the player actually used (the same unless they said otherwise),
+    both in diamonds along ``aim_rail``'s line of sights. ``landing_rail``/``landing_at`` is
+    where the travelling ball crossed the landing rail (diamonds). ``speed`` is m/s off the tip,
+    ``english``/``follow`` in tips. ``id`` and ``session`` are the store's keys (None before
+    saving). ``model`` names the aim model that gave the reading, ``drill`` the pack, ``zone``
+    the coach's zone label at the time.
+    """
+
+    when: datetime
+    player: str
+    table: str
+    shot: ShotRecord
+    speed: float
+    english: float
+    follow: float
+    aim_rail: str
+    aim_given: float
+    aim_used: float
+    result: Result
+    landing_rail: str
+    landing_at: float
+    note: str = ""
+    model: str = "ideal"
+    drill: str = ""
+    zone: str = ""
+    session: int | None = None
+    id: int | None = field(default=None, compare=False)
+
+    @property
+    def hit(self) -> bool:
+        return self.result == "hit"
+
+
+def utc_now() -> datetime:
+    """The current time, timezone-aware UTC, to the microsecond."""
+    return datetime.now(UTC)
+
+
+def _finite(name: str, v: float) -> float:
+    if isinstance(v, bool) or not isinstance(v, int | float) or not math.isfinite(v):
+        raise RecordError(f"field {name!r} must be a finite number, got {v!r}")
+    return float(v)
+
+
+def _pos(name: str, p: tuple[float, float] | None, optional: bool = False) -> None:
+    if p is None:
+        if optional:
+            return
+        raise RecordError(f"field {name!r} is required")
+    x, y = (_finite(name, p[0]), _finite(name, p[1]))
+    if not (0.0 <= x <= 8.0 and 0.0 <= y <= 4.0):
+        raise RecordError(
+            f"field {name!r} = {x:g},{y:g} is off the table (x 0..8, y 0..4 diamonds)"
+        )
+
+
+def rail_length_diamonds(rail: str) -> float:
+    """How many diamonds a rail spans: 8 on the long rails, 4 on head and foot."""
+    return 8.0 if rail in ("left", "right") else 4.0
+
+
+def check_rail_point(name: str, rail: str, at: float) -> None:
+    """Raise RecordError unless ``at`` diamonds lies on ``rail`` (0..8 long, 0..4 short)."""
+    if rail not in RAILS:
+        raise RecordError(f"field {name!r}: rail {rail!r} is not one of {', '.join(RAILS)}")
+    v = _finite(name, at)
+    top = rail_length_diamonds(rail)
+    if not (0.0 <= v <= top):
+        raise RecordError(
+            f"field {name!r} = {v:g} is off the {rail} rail: it runs 0 to {top:g} diamonds"
+        )
+
+
+def validate_attempt(a: Attempt) -> Attempt:
+    """Check every field of an attempt; return it unchanged or raise RecordError."""
+    if a.when.tzinfo is None:
+        raise RecordError("field 'when' must carry a time zone (UTC)")
+    if not a.player or not a.table:
+        raise RecordError("fields 'player' and 'table' must not be empty")
+    s = a.shot
+    if s.travel not in ("cue", "object"):
+        raise RecordError("field 'shot.travel' must be 'cue' or 'object'")
+    if not s.rails:
+        raise RecordError("field 'shot.rails' must list at least one rail")
+    for r in s.rails:
+        if r not in RAILS:
+            raise RecordError(f"field 'shot.rails': {r!r} is not one of {', '.join(RAILS)}")
+    _pos("shot.cue", s.cue)
+    _pos("shot.object", s.object, optional=True)
+    _pos("shot.target.ball", s.target_ball, optional=True)
+    if (s.pocket is None) == (s.target_ball is None):
+        raise RecordError("field 'shot.target' must be either a pocket or a ball")
+    if s.pocket is not None and s.pocket not in POCKETS:
+        raise RecordError(
+            f"field 'shot.target.pocket': {s.pocket!r} is not one of {', '.join(POCKETS)}"
+        )
+    if s.travel == "object" and s.object is None:
+        raise RecordError("field 'shot.object' is required when the object ball travels")
+    _finite("speed", a.speed)
+    if not (0.0 < a.speed <= 13.0):
+        raise RecordError(f"field 'speed' = {a.speed:g} m/s is outside 0 to 13 m/s")
+    for name in ("english", "follow"):
+        v = _finite(name, getattr(a, name))
+        if abs(v) > 1.5:
+            raise RecordError(f"field {name!r} = {v:g} tips is beyond the miscue limit (1.5 tips)")
+    check_rail_point("aim.given", a.aim_rail, a.aim_given)
+    check_rail_point("aim.used", a.aim_rail, a.aim_used)
+    if a.result not in ("hit", "miss"):
+        raise RecordError("field 'result' must be 'hit' or 'miss'")
+    check_rail_point("landing.at", a.landing_rail, a.landing_at)
+    return a
+
+
+__all__ = [
+    "Attempt",
+    "RecordError",
+    "SCHEMA_VERSION",
+    "ShotRecord",
+    "TableError",
+    "check_rail_point",
+    "utc_now",
+    "validate_attempt",
+]

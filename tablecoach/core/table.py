@@ -1,0 +1,499 @@
+"""Table specs (sizes, pockets, sights, cloth, cushion) and the diamonds <-> metres mapping.
+
+Coordinates (the project's contract, see docs/coordinates.md): stand at the head rail looking
+toward the foot rail. The origin is the corner where the head rail's cushion nose meets the left
+long rail's cushion nose. ``x`` runs along the long rails toward the foot rail (0 to 8 diamonds),
+``y`` runs across toward the right long rail (0 to 4 diamonds). Positions are ball centres in
+metres inside the core; diamonds appear only at the edges, through this module.
+
+Equipment figures are from the WPA Equipment Specifications (world pool governing body), as
+collected in the project's reference sheet; cloth and cushion defaults are the typical values
+from D. Alciatore's physics resources and Mathavan, Jackson and Parkin (2010).
+"""
+
+from __future__ import annotations
+
+import math
+import tomllib
+from collections.abc import Mapping
+from dataclasses import dataclass, field, replace
+from functools import lru_cache
+from pathlib import Path
+from types import MappingProxyType
+from typing import Any, Literal
+
+RailName = Literal["head", "foot", "left", "right"]
+RAILS: tuple[RailName, ...] = ("head", "foot", "left", "right")
+POCKETS: tuple[str, ...] = (
+    "head-left",
+    "side-left",
+    "foot-left",
+    "head-right",
+    "side-right",
+    "foot-right",
+)
+
+INCH = 0.0254
+"""One inch in metres (exact, by definition)."""
+
+G = 9.80665
+"""Standard gravity in m/s^2 (CGPM 1901 conventional value)."""
+
+
+class TableError(ValueError):
+    """A table spec, a position or a rail name is not valid; the message says how to fix it."""
+
+
+@dataclass(frozen=True, slots=True)
+class Cloth:
+    """Ball-on-cloth parameters.
+
+    Defaults are the typical values in D. Alciatore, "pool and billiards physics resources"
+    (Colorado State University): sliding friction 0.2 (range 0.15-0.4), rolling resistance 0.01
+    (0.005-0.015), spin deceleration about the vertical 10 rad/s^2 (5-15).
+    """
+
+    mu_slide: float = 0.2
+    mu_roll: float = 0.01
+    spin_decel: float = 10.0
+
+
+@dataclass(frozen=True, slots=True)
+class Cushion:
+    """Ball-cushion parameters.
+
+    ``restitution`` is the energetic coefficient of the Mathavan, Jackson and Parkin (2010)
+    impact model (their snooker value is 0.98; pool rails are livelier in friction and softer, so
+    the default here is picked to give a centre-speed ratio near Alciatore's typical 0.75 for a
+    perpendicular rolling hit; the physics module documents the check). ``friction`` is the
+    ball-cushion sliding friction (Mathavan et al.: 0.14). ``ball_ball_restitution`` and
+    ``ball_ball_friction`` are Alciatore's typical 0.95 and 0.06.
+    """
+
+    restitution: float = 0.85
+    friction: float = 0.14
+    ball_ball_restitution: float = 0.95
+    ball_ball_friction: float = 0.06
+
+
+# Allowed ranges for validation of custom tables (published ranges from the reference sheet).
+_RANGES: dict[str, tuple[float, float]] = {
+    "length": (1.5, 3.0),
+    "width": (0.75, 1.5),
+    "ball_diameter": (0.050, 0.0620),
+    "ball_mass": (0.140, 0.180),
+    "nose_height_ratio": (0.60, 0.66),
+    "sight_setback": (0.05, 0.12),
+    "corner_mouth": (0.100, 0.135),
+    "side_mouth": (0.115, 0.145),
+    "corner_facing_deg": (130.0, 150.0),
+    "side_facing_deg": (95.0, 115.0),
+    "cloth.mu_slide": (0.15, 0.4),
+    "cloth.mu_roll": (0.005, 0.015),
+    "cloth.spin_decel": (5.0, 15.0),
+    "cushion.restitution": (0.5, 1.0),
+    "cushion.friction": (0.0, 0.4),
+    "cushion.ball_ball_restitution": (0.9, 1.0),
+    "cushion.ball_ball_friction": (0.0, 0.1),
+}
+
+
+@dataclass(frozen=True, slots=True)
+class Pocket:
+    """One pocket: its name, the two jaw points (where the cushion noses end) and an aim point.
+
+    ``aim`` is the point a ball centre is sent toward: the middle of the mouth segment joining the
+    two jaw points (for a corner, on the 45-degree line across the corner; for a side pocket, on
+    the nose line at the middle of the table's length). A ball scores here when its centre line
+    passes between the jaws with at least one ball radius of clearance from each jaw point.
+    """
+
+    name: str
+    jaw_a: tuple[float, float]
+    jaw_b: tuple[float, float]
+    aim: tuple[float, float]
+    rails: tuple[RailName, ...]
+
+
+@dataclass(frozen=True, slots=True)
+class TableSpec:
+    """A pool table: playing surface, ball, sights, pockets, cloth and cushion. SI units.
+
+    Built-in figures (WPA Equipment Specifications): 9-ft surface 100 x 50 in nose to nose,
+    8-ft 92 x 46 in; the 7-ft 78 x 39 in surface has no WPA figure and is common practice.
+    Ball 2 1/4 in (57.15 mm), 5.5-6 oz (156-170 g; 0.163 kg used). Cushion nose height 63.5 %
+    of the ball diameter. Sights mark eighths of the length and quarters of the width, their
+    centres 3 11/16 in (93.7 mm) behind the nose. Corner mouth 4.5-4.625 in, side 5-5.125 in
+    (the smaller limit is used), facing angles 142 and 104 degrees.
+    """
+
+    name: str
+    length: float
+    width: float
+    ball_diameter: float = 2.25 * INCH
+    ball_mass: float = 0.163
+    nose_height_ratio: float = 0.635
+    sight_setback: float = (3 + 11 / 16) * INCH
+    corner_mouth: float = 4.5 * INCH
+    side_mouth: float = 5.0 * INCH
+    corner_facing_deg: float = 142.0
+    side_facing_deg: float = 104.0
+    cloth: Cloth = field(default_factory=Cloth)
+    cushion: Cushion = field(default_factory=Cushion)
+    description: str = ""
+
+    # ----- derived figures -------------------------------------------------------------------
+    @property
+    def ball_radius(self) -> float:
+        """R = D / 2."""
+        return self.ball_diameter / 2.0
+
+    @property
+    def diamond(self) -> float:
+        """One diamond in metres: length / 8 (= width / 4 on a 2:1 table)."""
+        return self.length / 8.0
+
+    @property
+    def diamond_across(self) -> float:
+        """One diamond across the table: width / 4 (sights mark quarters of the width)."""
+        return self.width / 4.0
+
+    @property
+    def nose_height(self) -> float:
+        """Height of the cushion nose above the cloth, h = ratio * D (WPA: 63.5 %)."""
+        return self.nose_height_ratio * self.ball_diameter
+
+    @property
+    def contact_angle(self) -> float:
+        """Angle theta of the cushion contact above the ball's equator: sin(theta) = (h - R)/R.
+
+        Mathavan, Jackson and Parkin (2010), geometry of the cushion contact.
+        """
+        r = self.ball_radius
+        return math.asin((self.nose_height - r) / r)
+
+    @property
+    def corner_jaw(self) -> float:
+        """Distance along each nose line from the corner to a corner jaw point.
+
+        The mouth is measured point to point across the corner at 45 degrees, so each jaw sits
+        mouth / sqrt(2) from the corner where the two nose lines meet.
+        """
+        return self.corner_mouth / math.sqrt(2.0)
+
+    # ----- diamonds <-> metres (the one place that owns the mapping) -------------------------
+    def to_metres(self, x_d: float, y_d: float) -> tuple[float, float]:
+        """A point in diamonds to metres."""
+        return (x_d * self.diamond, y_d * self.diamond_across)
+
+    def to_diamonds(self, x_m: float, y_m: float) -> tuple[float, float]:
+        """A point in metres to diamonds."""
+        return (x_m / self.diamond, y_m / self.diamond_across)
+
+    def rail_unit(self, rail: RailName) -> float:
+        """Metres per diamond along a rail (long rails: length/8; short rails: width/4)."""
+        return self.diamond if rail in ("left", "right") else self.diamond_across
+
+    def along_to_diamonds(self, rail: RailName, along_m: float) -> float:
+        """A coordinate along a rail (x on left/right, y on head/foot) to diamonds."""
+        return along_m / self.rail_unit(rail)
+
+    def along_to_metres(self, rail: RailName, along_d: float) -> float:
+        """A coordinate along a rail in diamonds to metres."""
+        return along_d * self.rail_unit(rail)
+
+    def rail_span(self, rail: RailName) -> float:
+        """Length of a rail's nose line in metres (long rails: length; short rails: width)."""
+        return self.length if rail in ("left", "right") else self.width
+
+    # ----- rails ----------------------------------------------------------------------------
+    def nose_line(self, rail: RailName) -> float:
+        """The constant coordinate of a rail's cushion nose (x for head/foot, y for left/right)."""
+        return {"head": 0.0, "foot": self.length, "left": 0.0, "right": self.width}[_rail(rail)]
+
+    def reflection_line(self, rail: RailName) -> float:
+        """The line ball centres reflect about: one ball radius inside the nose."""
+        r = self.ball_radius
+        return {"head": r, "foot": self.length - r, "left": r, "right": self.width - r}[_rail(rail)]
+
+    def sight_line(self, rail: RailName) -> float:
+        """The line of sights: the sight set-back (93.7 mm) behind the nose."""
+        s = self.sight_setback
+        return {"head": -s, "foot": self.length + s, "left": -s, "right": self.width + s}[
+            _rail(rail)
+        ]
+
+    def cushion_segments(self, rail: RailName) -> tuple[tuple[float, float], ...]:
+        """The stretches of a rail's nose (along-rail metres) that are cushion, not pocket."""
+        return _segments(self, _rail(rail))
+
+    def _segments_uncached(self, rail: RailName) -> tuple[tuple[float, float], ...]:
+        j = self.corner_jaw
+        if _rail(rail) in ("head", "foot"):
+            return ((j, self.width - j),)
+        half = self.length / 2.0
+        s = self.side_mouth / 2.0
+        return ((j, half - s), (half + s, self.length - j))
+
+    def on_cushion(self, rail: RailName, along: float) -> bool:
+        """True when a ball touching this rail with its centre at ``along`` meets cushion."""
+        return any(a <= along <= b for a, b in self.cushion_segments(rail))
+
+    # ----- pockets --------------------------------------------------------------------------
+    def pockets(self) -> Mapping[str, Pocket]:
+        """The six pockets, keyed by their contract names."""
+        return _pockets(self)
+
+    def pocket(self, name: str) -> Pocket:
+        """One pocket by name, or a TableError naming the allowed names."""
+        p = self.pockets().get(name)
+        if p is None:
+            raise TableError(f"unknown pocket {name!r}: use one of {', '.join(POCKETS)}")
+        return p
+
+    # ----- positions ------------------------------------------------------------------------
+    def check_position(self, x_m: float, y_m: float, what: str = "ball") -> None:
+        """Raise TableError unless a ball centre at (x, y) sits on the playing surface.
+
+        A ball frozen to a cushion (centre exactly R inside the nose) is valid; a centre closer
+        than R to a nose is not. A tolerance of 1e-9 m absorbs rounding of diamond input.
+        """
+        r = self.ball_radius
+        eps = 1e-9
+        if not (r - eps <= x_m <= self.length - r + eps and r - eps <= y_m <= self.width - r + eps):
+            xd, yd = self.to_diamonds(x_m, y_m)
+            lo_x, lo_y = self.to_diamonds(r, r)
+            raise TableError(
+                f"{what} at {xd:.3f},{yd:.3f} diamonds is off the table: a ball centre must be "
+                f"within x {lo_x:.3f}..{8 - lo_x:.3f} and y {lo_y:.3f}..{4 - lo_y:.3f}"
+            )
+
+    def clamp_position(self, x_m: float, y_m: float) -> tuple[float, float]:
+        """The nearest valid ball-centre position."""
+        r = self.ball_radius
+        return (min(max(x_m, r), self.length - r), min(max(y_m, r), self.width - r))
+
+    def with_params(self, **changes: Any) -> TableSpec:
+        """A copy with some fields replaced (cloth and cushion as whole dataclasses)."""
+        return replace(self, **changes)
+
+
+@lru_cache(maxsize=64)
+def _segments(t: TableSpec, rail: RailName) -> tuple[tuple[float, float], ...]:
+    return t._segments_uncached(rail)
+
+
+def _rail(rail: str) -> RailName:
+    if rail not in RAILS:
+        raise TableError(f"unknown rail {rail!r}: use one of {', '.join(RAILS)}")
+    return rail  # type: ignore[return-value]
+
+
+def check_rail(rail: str) -> RailName:
+    """Return the rail name if it is one of head, foot, left, right; else a TableError."""
+    return _rail(rail)
+
+
+@lru_cache(maxsize=16)
+def _pockets(t: TableSpec) -> Mapping[str, Pocket]:
+    j = t.corner_jaw
+    L, W = t.length, t.width
+    half = L / 2.0
+    s = t.side_mouth / 2.0
+    out: dict[str, Pocket] = {}
+
+    def corner(name: str, cx: float, cy: float, sx: float, sy: float) -> None:
+        # (cx, cy) is the corner where the nose lines meet; (sx, sy) points into the table.
+        a = (cx + sx * j, cy)
+        b = (cx, cy + sy * j)
+        aim = ((a[0] + b[0]) / 2.0, (a[1] + b[1]) / 2.0)
+        x_rail: RailName = "head" if cx == 0.0 else "foot"
+        y_rail: RailName = "left" if cy == 0.0 else "right"
+        out[name] = Pocket(name, a, b, aim, (x_rail, y_rail))
+
+    corner("head-left", 0.0, 0.0, 1.0, 1.0)
+    corner("foot-left", L, 0.0, -1.0, 1.0)
+    corner("head-right", 0.0, W, 1.0, -1.0)
+    corner("foot-right", L, W, -1.0, -1.0)
+    out["side-left"] = Pocket("side-left", (half - s, 0.0), (half + s, 0.0), (half, 0.0), ("left",))
+    out["side-right"] = Pocket("side-right", (half - s, W), (half + s, W), (half, W), ("right",))
+    return MappingProxyType({name: out[name] for name in POCKETS})
+
+
+# ----- built-in tables ------------------------------------------------------------------------
+
+BUILTIN_TABLES: dict[str, TableSpec] = {
+    "9ft": TableSpec(
+        "9ft",
+        100 * INCH,
+        50 * INCH,
+        description="9-ft tournament table, 100 x 50 in playing surface (WPA)",
+    ),
+    "8ft": TableSpec(
+        "8ft",
+        92 * INCH,
+        46 * INCH,
+        description="8-ft table, 92 x 46 in playing surface (WPA)",
+    ),
+    "7ft": TableSpec(
+        "7ft",
+        78 * INCH,
+        39 * INCH,
+        description="7-ft bar table, 78 x 39 in playing surface (common practice, no WPA figure)",
+    ),
+}
+
+DEFAULT_TABLE = "9ft"
+
+
+def builtin_table(name: str) -> TableSpec:
+    """A built-in table by name, or a TableError listing the names."""
+    try:
+        return BUILTIN_TABLES[name]
+    except KeyError:
+        raise TableError(
+            f"unknown table {name!r}: built-in tables are {', '.join(BUILTIN_TABLES)}; "
+            "add your own with 'tablecoach tables add FILE'"
+        ) from None
+
+
+# ----- custom tables from TOML ----------------------------------------------------------------
+
+_TOP_FIELDS = {
+    "name",
+    "description",
+    "length",
+    "width",
+    "size",
+    "ball_diameter",
+    "ball_mass",
+    "nose_height_ratio",
+    "sight_setback",
+    "corner_mouth",
+    "side_mouth",
+    "corner_facing_deg",
+    "side_facing_deg",
+    "pockets",
+    "cloth",
+    "cushion",
+    "base",
+}
+
+
+def table_from_mapping(data: dict[str, Any], source: str = "<table>") -> TableSpec:
+    """Build and validate a TableSpec from a parsed TOML mapping.
+
+    Fields (SI units): ``name``; ``base`` (a built-in table to start from, default 9ft);
+    ``length`` and ``width`` in metres, or ``size = "9ft"|"8ft"|"7ft"``; optional ``ball_diameter``,
+    ``ball_mass``, ``nose_height_ratio``, ``sight_setback``; ``[pockets]`` with ``corner_mouth``,
+    ``side_mouth``, ``corner_facing_deg``, ``side_facing_deg``; ``[cloth]`` with ``mu_slide``,
+    ``mu_roll``, ``spin_decel``; ``[cushion]`` with ``restitution``, ``friction``,
+    ``ball_ball_restitution``, ``ball_ball_friction``. Every number is checked against the
+    published range; a wrong field gets a TableError naming the file, the field and the range.
+    """
+
+    def fail(fieldname: str, msg: str) -> TableError:
+        return TableError(f"{source}: field {fieldname!r} {msg}")
+
+    unknown = set(data) - _TOP_FIELDS
+    if unknown:
+        raise fail(
+            sorted(unknown)[0], f"is not a table field; allowed: {', '.join(sorted(_TOP_FIELDS))}"
+        )
+    name = data.get("name")
+    if not isinstance(name, str) or not name.strip() or len(name) > 40:
+        raise fail("name", "must be a non-empty string of at most 40 characters")
+    base_name = data.get("base", data.get("size", DEFAULT_TABLE))
+    if base_name not in BUILTIN_TABLES:
+        key = "base" if "base" in data else "size"
+        raise fail(key, f"must be one of {', '.join(BUILTIN_TABLES)}")
+    base = BUILTIN_TABLES[base_name]
+
+    def num(key: str, value: Any) -> float:
+        if isinstance(value, bool) or not isinstance(value, int | float):
+            raise fail(key, f"must be a number, got {value!r}")
+        lo, hi = _RANGES[key]
+        v = float(value)
+        if not (lo <= v <= hi):
+            raise fail(key, f"is {v:g}, allowed range {lo:g} to {hi:g}")
+        return v
+
+    top: dict[str, Any] = {}
+    for key in (
+        "length",
+        "width",
+        "ball_diameter",
+        "ball_mass",
+        "nose_height_ratio",
+        "sight_setback",
+    ):
+        if key in data:
+            top[key] = num(key, data[key])
+    pockets = data.get("pockets", {})
+    if not isinstance(pockets, dict):
+        raise fail("pockets", "must be a table of pocket figures")
+    for key, value in pockets.items():
+        if key not in ("corner_mouth", "side_mouth", "corner_facing_deg", "side_facing_deg"):
+            raise fail(f"pockets.{key}", "is not a pocket field")
+        top[key] = num(key, value)
+
+    def section(sec: str, cls: type[Cloth] | type[Cushion], default: Cloth | Cushion) -> Any:
+        raw = data.get(sec, {})
+        if not isinstance(raw, dict):
+            raise fail(sec, "must be a table")
+        vals = {}
+        allowed = cls.__dataclass_fields__
+        for key, value in raw.items():
+            if key not in allowed:
+                raise fail(f"{sec}.{key}", f"is not a {sec} field; allowed: {', '.join(allowed)}")
+            vals[key] = num(f"{sec}.{key}", value)
+        return replace(default, **vals)
+
+    cloth = section("cloth", Cloth, base.cloth)
+    cushion = section("cushion", Cushion, base.cushion)
+    desc = data.get("description", "")
+    if not isinstance(desc, str):
+        raise fail("description", "must be a string")
+    spec = replace(base, name=name.strip(), cloth=cloth, cushion=cushion, description=desc, **top)
+    ratio = spec.length / spec.width
+    if not (1.9 <= ratio <= 2.1):
+        raise fail(
+            "width", f"gives a length/width ratio of {ratio:.3f}; pool tables are 2:1 (1.9 to 2.1)"
+        )
+    return spec
+
+
+def load_table_file(path: str | Path) -> TableSpec:
+    """Read a custom table from a TOML file; any problem is one TableError line."""
+    p = Path(path)
+    try:
+        text = p.read_text(encoding="utf-8")
+    except OSError as exc:
+        raise TableError(f"{p}: cannot read the table file ({exc.strerror})") from None
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise TableError(f"{p}: not valid TOML ({exc})") from None
+    return table_from_mapping(data, str(p))
+
+
+def table_to_mapping(spec: TableSpec) -> dict[str, Any]:
+    """A TableSpec as a plain mapping (the inverse of table_from_mapping), for storage."""
+    return {
+        "name": spec.name,
+        "description": spec.description,
+        "length": spec.length,
+        "width": spec.width,
+        "ball_diameter": spec.ball_diameter,
+        "ball_mass": spec.ball_mass,
+        "nose_height_ratio": spec.nose_height_ratio,
+        "sight_setback": spec.sight_setback,
+        "pockets": {
+            "corner_mouth": spec.corner_mouth,
+            "side_mouth": spec.side_mouth,
+            "corner_facing_deg": spec.corner_facing_deg,
+            "side_facing_deg": spec.side_facing_deg,
+        },
+        "cloth": {k: getattr(spec.cloth, k) for k in Cloth.__dataclass_fields__},
+        "cushion": {k: getattr(spec.cushion, k) for k in Cushion.__dataclass_fields__},
+    }
