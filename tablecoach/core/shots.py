@@ -779,6 +779,10 @@ def convergence(
     """
     if starts is None:
         starts = neighbourhood(table, setup.start)
+    if model == "physical":
+        from .physics import aim as physical  # noqa: PLC0415
+
+        return physical.convergence_physical(table, setup, list(starts), stroke or Stroke())
     pts: list[Point] = []
     dirs: list[Point] = []
     for s in starts:

@@ -1,0 +1,1 @@
+"""Subcommands of the tablecoach command line, one module each."""
