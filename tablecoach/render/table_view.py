@@ -1,0 +1,382 @@
+"""The table in text: a Rich renderable with rails, diamonds, pockets, balls, path and aim.
+
+Drawn in true proportion: a diamond is the same length along and across the table, and a
+terminal cell is about twice as tall as it is wide, so a diamond is ``2 * rows`` columns wide and
+``rows`` rows tall. The head rail is on the left of the picture and the foot rail on the right;
+the left rail (y = 0) runs along the top, as seen by a player standing at the head rail.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Iterable, Sequence
+from dataclasses import dataclass, field
+
+from rich.console import Console, ConsoleOptions, RenderResult
+from rich.segment import Segment
+from rich.style import Style
+from rich.text import Text
+
+Point = tuple[float, float]  # diamonds
+
+
+@dataclass(frozen=True)
+class Glyphs:
+    """The characters of one drawing style."""
+
+    h: str
+    v: str
+    corner: str
+    pocket: str
+    sight: str
+    path: str
+    extension: str
+    contact: str
+    cue: str
+    obj: str
+    target: str
+    convergence: str
+    arrows: dict[str, str] = field(default_factory=dict)
+    aim: dict[str, str] = field(default_factory=dict)
+
+
+UNICODE = Glyphs(
+    h="═",
+    v="║",
+    corner="╬",
+    pocket="◙",
+    sight="◆",
+    path="•",
+    extension="·",
+    contact="✕",
+    cue="○",
+    obj="●",
+    target="◉",
+    convergence="✚",
+    arrows={"up": "▲", "down": "▼", "left": "◀", "right": "▶"},
+    aim={"left": "▼", "right": "▲", "head": "▶", "foot": "◀"},
+)
+
+ASCII = Glyphs(
+    h="=",
+    v="|",
+    corner="+",
+    pocket="@",
+    sight="+",
+    path="*",
+    extension=".",
+    contact="x",
+    cue="C",
+    obj="O",
+    target="T",
+    convergence="X",
+    arrows={"up": "^", "down": "v", "left": "<", "right": ">"},
+    aim={"left": "v", "right": "^", "head": ">", "foot": "<"},
+)
+
+STYLES = {
+    "cloth": Style(color="green"),
+    "rail": Style(color="rgb(150,110,60)"),
+    "sight": Style(color="white", bold=True),
+    "number": Style(color="bright_black"),
+    "pocket": Style(color="bright_black", bold=True),
+    "path": Style(color="yellow", bold=True),
+    "extension": Style(color="yellow", dim=True),
+    "contact": Style(color="bright_yellow", bold=True),
+    "cue": Style(color="bright_white", bold=True),
+    "obj": Style(color="bright_red", bold=True),
+    "target": Style(color="bright_magenta", bold=True),
+    "convergence": Style(color="bright_cyan", bold=True),
+    "aim": Style(color="bright_cyan", bold=True),
+    "heat": Style(),
+}
+
+
+@dataclass
+class Picture:
+    """What to draw, all in diamonds (contract coordinates)."""
+
+    cue: Point | None = None
+    obj: Point | None = None
+    target_ball: Point | None = None
+    pocket_target: str | None = None
+    path: Sequence[Point] = ()
+    contacts: Sequence[Point] = ()
+    extension: Sequence[Point] = ()  # the aim line carried on toward the convergence point
+    convergence: Point | None = None
+    aim_rail: str | None = None
+    aim_reading: float | None = None
+    shading: dict[tuple[int, int], str] = field(default_factory=dict)  # cell -> char
+
+
+POCKET_DIAMONDS: dict[str, Point] = {
+    "head-left": (0.0, 0.0),
+    "side-left": (4.0, 0.0),
+    "foot-left": (8.0, 0.0),
+    "head-right": (0.0, 4.0),
+    "side-right": (4.0, 4.0),
+    "foot-right": (8.0, 4.0),
+}
+
+
+class TableView:
+    """A Rich renderable of one table picture.
+
+    ``rows`` fixes the rows per diamond (columns are twice that); by default the largest scale
+    that fits the width (and ``max_height`` if given) is used, from 1 to 4 rows a diamond.
+    ``margin`` is how many diamonds beyond the rails may be drawn to show the convergence
+    point; when it lies farther out, an arrow at the edge points to it.
+    """
+
+    def __init__(
+        self,
+        picture: Picture,
+        ascii_only: bool = False,
+        rows: int | None = None,
+        max_height: int | None = None,
+        margin: float = 5.0,
+    ) -> None:
+        self.picture = picture
+        self.glyphs = ASCII if ascii_only else UNICODE
+        self.rows = rows
+        self.max_height = max_height
+        self.margin = margin
+
+    # ----- layout ------------------------------------------------------------------------
+    def _extent(self) -> tuple[float, float, float, float]:
+        """The region to draw in diamonds: (x0, x1, y0, y1), the table plus room for the
+        convergence point when it is within the margin."""
+        x0, x1, y0, y1 = 0.0, 8.0, 0.0, 4.0
+        c = self.picture.convergence
+        m = self.margin
+        if c is not None and -m <= c[0] <= 8 + m and -m <= c[1] <= 4 + m:
+            x0, x1 = min(x0, c[0]), max(x1, c[0])
+            y0, y1 = min(y0, c[1]), max(y1, c[1])
+        return x0, x1, y0, y1
+
+    def _size(self, rows: int, ext: tuple[float, float, float, float]) -> tuple[int, int]:
+        x0, x1, y0, y1 = ext
+        cw = 2 * rows
+        width = math.ceil((x1 - x0) * cw) + 1 + 2 + 6
+        height = math.ceil((y1 - y0) * rows) + 1 + 2 + 2
+        return width, height
+
+    def fit(self, width: int, height: int | None) -> tuple[int, tuple[float, float, float, float]]:
+        """Pick rows per diamond and the drawn extent for a space of width x height cells."""
+        ext_full = self._extent()
+        table_only = (0.0, 8.0, 0.0, 4.0)
+        if self.rows:
+            for ext in (ext_full, table_only):
+                w, h = self._size(self.rows, ext)
+                if w <= width and (height is None or h <= height):
+                    return self.rows, ext
+            return self.rows, table_only
+        for rows in (4, 3, 2, 1):
+            for ext in (ext_full, table_only):
+                w, h = self._size(rows, ext)
+                if w <= width and (height is None or h <= height):
+                    return rows, ext
+        return 1, table_only
+
+    # ----- drawing -----------------------------------------------------------------------
+    def lines(self, width: int, height: int | None = None) -> list[Text]:
+        """The picture as lines of styled text fitting ``width`` (and ``height``)."""
+        rows, ext = self.fit(width, height if height is not None else self.max_height)
+        g = self.glyphs
+        cw = 2 * rows
+        x0, x1, y0, y1 = ext
+        # canvas geometry: 3 label columns and 1 frame column left of x0, label row and frame
+        ox = 4 - math.floor(min(0.0, x0) * cw) if x0 < 0 else 4
+        oy = 2 - math.floor(min(0.0, y0) * rows) if y0 < 0 else 2
+        W = ox + math.ceil(max(8.0, x1) * cw) + 1 + 4
+        H = oy + math.ceil(max(4.0, y1) * rows) + 1 + 2
+        W = min(W, width)
+        grid: list[list[tuple[str, str]]] = [[(" ", "") for _ in range(W)] for _ in range(H)]
+
+        def put(c: int, r: int, ch: str, style: str, over: bool = True) -> None:
+            if 0 <= r < H and 0 <= c < W and (over or grid[r][c][0] == " "):
+                grid[r][c] = (ch, style)
+
+        def cell(p: Point) -> tuple[int, int]:
+            return (round(ox + p[0] * cw), round(oy + p[1] * rows))
+
+        left, right = ox - 1, ox + 8 * cw + 1
+        top, bottom = oy - 1, oy + 4 * rows + 1
+        # cloth and shading
+        for r in range(top + 1, bottom):
+            for c in range(left + 1, right):
+                put(c, r, " ", "cloth")
+        for (c, r), ch in self.picture.shading.items():
+            put(ox + c, oy + r, ch, "heat")
+        # rails with sights
+        for c in range(left, right + 1):
+            put(c, top, g.h, "rail")
+            put(c, bottom, g.h, "rail")
+        for r in range(top, bottom + 1):
+            put(left, r, g.v, "rail")
+            put(right, r, g.v, "rail")
+        for k in range(9):
+            c = ox + k * cw
+            if k not in (0, 4, 8):  # no sight at a pocket
+                put(c, top, g.sight, "sight")
+                put(c, bottom, g.sight, "sight")
+            label = str(k)
+            put(c, top - 1, label, "number")
+            put(c, bottom + 1, label, "number")
+        for k in range(5):
+            r = oy + k * rows
+            if k not in (0, 4):
+                put(left, r, g.sight, "sight")
+                put(right, r, g.sight, "sight")
+            put(left - 2, r, str(k), "number")
+            put(right + 2, r, str(k), "number")
+        for name, (px, py) in POCKET_DIAMONDS.items():
+            c = left if px == 0 else right if px == 8 else ox + 4 * cw
+            r = top if py == 0 else bottom
+            style = "target" if name == self.picture.pocket_target else "pocket"
+            put(c, r, g.pocket, style)
+        # extension toward the convergence point, then the path over it
+        self._polyline(self.picture.extension, cell, put, g.extension, "extension", over=False)
+        self._polyline(self.picture.path, cell, put, g.path, "path", over=True, inside=True)
+        for p in self.picture.contacts:
+            c, r = cell(p)
+            put(c, r, g.contact, "contact")
+        # aim marker on the first rail's frame, at the reading
+        if self.picture.aim_rail and self.picture.aim_reading is not None:
+            rd = self.picture.aim_reading
+            rail = self.picture.aim_rail
+            if rail == "left":
+                put(round(ox + rd * cw), top - 1, g.aim["left"], "aim")
+            elif rail == "right":
+                put(round(ox + rd * cw), bottom + 1, g.aim["right"], "aim")
+            elif rail == "head":
+                put(left - 1, round(oy + rd * rows), g.aim["head"], "aim")
+            else:
+                put(right + 1, round(oy + rd * rows), g.aim["foot"], "aim")
+        # balls last
+        for p, ch, style in (
+            (self.picture.target_ball, g.target, "target"),
+            (self.picture.obj, g.obj, "obj"),
+            (self.picture.cue, g.cue, "cue"),
+        ):
+            if p is not None:
+                c, r = cell(p)
+                put(c, r, ch, style)
+        # convergence point or an arrow toward it
+        cp = self.picture.convergence
+        if cp is not None:
+            c, r = cell(cp)
+            if 0 <= c < W and 0 <= r < H:
+                put(c, r, g.convergence, "convergence")
+            else:
+                cc, rr = min(max(c, 0), W - 1), min(max(r, 0), H - 1)
+                if r >= H:
+                    arrow = g.arrows["down"]
+                elif r < 0:
+                    arrow = g.arrows["up"]
+                elif c >= W:
+                    arrow = g.arrows["right"]
+                else:
+                    arrow = g.arrows["left"]
+                put(cc, rr, arrow, "convergence")
+        out = []
+        for row in grid:
+            t = Text(no_wrap=True, overflow="crop")
+            for ch, style in row:
+                t.append(ch, STYLES.get(style) if style else None)
+            t.rstrip()
+            out.append(t)
+        return out
+
+    def _polyline(
+        self,
+        pts: Sequence[Point],
+        cell,  # type: ignore[no-untyped-def]
+        put,  # type: ignore[no-untyped-def]
+        ch: str,
+        style: str,
+        over: bool,
+        inside: bool = False,
+    ) -> None:
+        for a, b in zip(pts, pts[1:], strict=False):
+            ca, cb = cell(a), cell(b)
+            n = max(abs(cb[0] - ca[0]), abs(cb[1] - ca[1]), 1) * 2
+            for i in range(n + 1):
+                t = i / n
+                p = (a[0] + (b[0] - a[0]) * t, a[1] + (b[1] - a[1]) * t)
+                if inside and not (-0.01 <= p[0] <= 8.01 and -0.01 <= p[1] <= 4.01):
+                    continue
+                c, r = cell(p)
+                put(c, r, ch, style, over)
+
+    def __rich_console__(self, console: Console, options: ConsoleOptions) -> RenderResult:
+        height = options.height if options.height is not None else self.max_height
+        lines = self.lines(options.max_width, height)
+        for line in lines:
+            yield from line.render(console)
+            yield Segment.line()
+
+    def plain(self, width: int = 100, height: int | None = None) -> str:
+        """The picture as plain text (no styles), for tests and ASCII output."""
+        return "\n".join(t.plain for t in self.lines(width, height))
+
+
+def legend(ascii_only: bool = False) -> Iterable[tuple[str, str, str]]:
+    """(glyph, style, meaning) for the symbols used."""
+    g = ASCII if ascii_only else UNICODE
+    return (
+        (g.cue, "cue", "cue"),
+        (g.obj, "obj", "object"),
+        (g.target, "target", "target"),
+        (g.path, "path", "path"),
+        (g.contact, "contact", "contact"),
+        (g.convergence, "convergence", "convergence"),
+        (g.aim["left"], "aim", "aim"),
+    )
+
+
+def legend_text(ascii_only: bool = False) -> Text:
+    """A one-line key to the symbols."""
+    t = Text()
+    for ch, style, meaning in legend(ascii_only):
+        t.append(ch, STYLES[style])
+        t.append(f" {meaning}  ")
+    t.rstrip()
+    return t
+
+
+def picture_for_aim(table, aim, conv=None) -> Picture:  # type: ignore[no-untyped-def]
+    """A Picture of a solved aim (core.shots.Aim) and its convergence (core.shots.Convergence)."""
+
+    def d(p):  # type: ignore[no-untyped-def]
+        return table.to_diamonds(*p)
+
+    s = aim.setup
+    contacts = []
+    for c in aim.contacts:
+        unit = table.rail_unit(c.rail)
+        along = c.at / unit
+        r = table.ball_radius
+        if c.rail == "left":
+            contacts.append((along, r / table.diamond_across))
+        elif c.rail == "right":
+            contacts.append((along, 4 - r / table.diamond_across))
+        elif c.rail == "head":
+            contacts.append((r / table.diamond, along))
+        else:
+            contacts.append((8 - r / table.diamond, along))
+    ext: list[Point] = []
+    if conv is not None:
+        ext = [d(s.start), d(conv.point)]
+    return Picture(
+        cue=d(s.cue),
+        obj=d(s.object) if s.object is not None else None,
+        target_ball=d(s.target_ball) if s.target_ball is not None else None,
+        pocket_target=s.pocket,
+        path=[d(p) for p in aim.path],
+        contacts=contacts,
+        extension=ext,
+        convergence=d(conv.point) if conv is not None else None,
+        aim_rail=aim.rail,
+        aim_reading=table.along_to_diamonds(aim.rail, aim.reading),
+    )
