@@ -1,0 +1,242 @@
+"""Zones of the table, make-rate posteriors per zone, and choosing the next setup to practise.
+
+A zone is a cell of the travelling ball's start position (the cue ball for kicks, the object ball
+for banks) on a grid of 2 x 1 diamonds: ``ZONE_COLS`` = 4 columns along the table (x 0-2, 2-4,
+4-6, 6-8 diamonds from the head rail) and ``ZONE_ROWS`` = 4 rows across it (y 0-1, ..., 3-4
+diamonds from the left rail), 16 cells in all, for one family and one speed band (the published
+bands of ``shots.speed_name``). See docs/coach.md.
+
+Make rates are Beta-binomial posteriors (W. R. Thompson 1933 samples from them to trade
+exploration against exploitation), each zone's prior centred on its family's own rate so that a
+zone with few attempts is shrunk toward the family (empirical-Bayes partial pooling).
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable, Iterable, Sequence
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+
+from . import shots
+from .records import Attempt, ShotRecord
+from .table import BUILTIN_TABLES, TableSpec
+
+ZONE_COLS = 4
+"""Columns of the zone grid along the table: 2 diamonds each (x 0-2, 2-4, 4-6, 6-8)."""
+ZONE_ROWS = 4
+"""Rows of the zone grid across the table: 1 diamond each (y 0-1, 1-2, 2-3, 3-4)."""
+COL_WIDTH = 8.0 / ZONE_COLS
+ROW_HEIGHT = 4.0 / ZONE_ROWS
+
+PRIOR_STRENGTH = 4.0
+"""Pseudo-attempts of the family's rate in each zone's prior (how hard zones are pooled)."""
+
+INTERVAL = 0.80
+"""Mass of the posterior interval reported for each zone (10th to 90th percentile)."""
+
+
+@dataclass(frozen=True, slots=True)
+class Zone:
+    """A cell of the travelling ball's start, for one family and speed band.
+
+    ``col`` 0..ZONE_COLS-1 counts 2-diamond strips from the head rail; ``row`` 0..ZONE_ROWS-1
+    counts 1-diamond strips from the left rail; ``speed`` is a band name (slow, medium, ...).
+    """
+
+    family: str
+    col: int
+    row: int
+    speed: str
+
+    @property
+    def label(self) -> str:
+        """A short stable label, e.g. ``cross-corner-bank x 4-6 y 1-2 medium``."""
+        (x0, x1), (y0, y1) = zone_bounds(self)
+        return f"{self.family} x {x0:g}-{x1:g} y {y0:g}-{y1:g} {self.speed}"
+
+    @property
+    def short(self) -> str:
+        """The zone without its family, e.g. ``x 4-6, y 1-2``."""
+        (x0, x1), (y0, y1) = zone_bounds(self)
+        return f"x {x0:g}-{x1:g}, y {y0:g}-{y1:g}"
+
+    def describe(self) -> str:
+        """The zone in a player's words."""
+        (x0, x1), (y0, y1) = zone_bounds(self)
+        fam = shots.PRESETS.get(self.family)
+        title = fam.title if fam is not None else self.family
+        ball = "cue ball" if fam is not None and fam.travel == "cue" else "travelling ball"
+        if fam is not None and fam.travel == "object":
+            ball = "object ball"
+        return (
+            f"{title}s at {self.speed} speed with the {ball} {x0:g} to {x1:g} diamonds from "
+            f"the head rail and {y0:g} to {y1:g} diamonds from the left rail"
+        )
+
+
+def zone_bounds(zone: Zone) -> tuple[tuple[float, float], tuple[float, float]]:
+    """The zone's cell in diamonds: ((x0, x1), (y0, y1))."""
+    x0 = zone.col * COL_WIDTH
+    y0 = zone.row * ROW_HEIGHT
+    return ((x0, x0 + COL_WIDTH), (y0, y0 + ROW_HEIGHT))
+
+
+def cell_of(x_d: float, y_d: float) -> tuple[int, int]:
+    """The (col, row) cell holding a point in diamonds (the far edges belong to the last cell)."""
+    col = min(max(int(math.floor(x_d / COL_WIDTH)), 0), ZONE_COLS - 1)
+    row = min(max(int(math.floor(y_d / ROW_HEIGHT)), 0), ZONE_ROWS - 1)
+    return col, row
+
+
+def start_of(shot: ShotRecord) -> tuple[float, float]:
+    """The travelling ball's start in diamonds: the object ball for banks, else the cue ball."""
+    if shot.travel == "object" and shot.object is not None:
+        return shot.object
+    return shot.cue
+
+
+def zone_of(shot: ShotRecord, speed: float) -> Zone:
+    """The zone of a shot (positions in diamonds) struck at ``speed`` m/s."""
+    col, row = cell_of(*start_of(shot))
+    return Zone(shot.family or "custom", col, row, shots.speed_name(speed))
+
+
+def zone_of_attempt(a: Attempt) -> Zone:
+    """The zone of a logged attempt."""
+    return zone_of(a.shot, a.speed)
+
+
+# ----- Beta posteriors ------------------------------------------------------------------------
+
+
+def beta_quantile(a: float, b: float, q: float, grid: int = 2001) -> float:
+    """The q-quantile of Beta(a, b), by integrating the density on a fine grid.
+
+    The density x^(a-1) (1-x)^(b-1) / B(a, b) is the standard Beta law; the grid uses the
+    midpoints of ``grid`` equal cells, accurate to about 1e-3 for a, b >= 0.5 (checked against
+    scipy.stats.beta in the tests).
+    """
+    if not (0.0 < q < 1.0):
+        raise ValueError(f"quantile {q} must lie strictly between 0 and 1")
+    x = (np.arange(grid) + 0.5) / grid
+    logpdf = (a - 1.0) * np.log(x) + (b - 1.0) * np.log1p(-x)
+    pdf = np.exp(logpdf - logpdf.max())
+    cdf = np.cumsum(pdf)
+    cdf /= cdf[-1]
+    return float(np.interp(q, cdf, x))
+
+
+@dataclass(frozen=True, slots=True)
+class ZoneStats:
+    """What the coach knows about one zone.
+
+    ``alpha``/``beta`` are the Beta posterior's parameters, ``mean`` its mean, ``low``/``high``
+    the central ``INTERVAL`` interval, ``family_rate`` the rate the prior was shrunk toward.
+    ``bias`` is the mean landing error in diamonds (positive: long, the ball landed further
+    along its path than the model said for the aim used; None when no landing could be
+    compared), ``bias_n`` how many landings it averages.
+    """
+
+    made: int
+    tried: int
+    alpha: float
+    beta: float
+    mean: float
+    low: float
+    high: float
+    family_rate: float
+    bias: float | None = None
+    bias_n: int = 0
+
+    @property
+    def record(self) -> str:
+        """``3 of 9 made``."""
+        return f"{self.made} of {self.tried} made"
+
+    def sample(self, rng: np.random.Generator) -> float:
+        """One draw of the make rate from the posterior (Thompson 1933)."""
+        return float(rng.beta(self.alpha, self.beta))
+
+
+def posterior(made: int, tried: int, family_rate: float, strength: float = PRIOR_STRENGTH) -> Any:
+    """Beta posterior parameters for ``made`` of ``tried`` under a Beta prior of ``strength``
+    pseudo-attempts at ``family_rate`` (conjugate Beta-binomial update)."""
+    p = min(max(family_rate, 0.02), 0.98)
+    return strength * p + made, strength * (1.0 - p) + (tried - made)
+
+
+def family_rates(attempts: Iterable[Attempt]) -> dict[str, float]:
+    """Each family's own make rate, a Beta(1, 1) posterior mean (Laplace's rule of succession)."""
+    made: dict[str, int] = {}
+    tried: dict[str, int] = {}
+    for a in attempts:
+        f = a.shot.family or "custom"
+        tried[f] = tried.get(f, 0) + 1
+        made[f] = made.get(f, 0) + int(a.hit)
+    return {f: (made[f] + 1.0) / (tried[f] + 2.0) for f in tried}
+
+
+def stats_for(
+    made: int, tried: int, family_rate: float, bias: float | None = None, bias_n: int = 0
+) -> ZoneStats:
+    """A ZoneStats from counts, shrunk toward ``family_rate``."""
+    a, b = posterior(made, tried, family_rate)
+    lo = beta_quantile(a, b, (1.0 - INTERVAL) / 2.0)
+    hi = beta_quantile(a, b, (1.0 + INTERVAL) / 2.0)
+    return ZoneStats(made, tried, a, b, a / (a + b), lo, hi, family_rate, bias, bias_n)
+
+
+LandingError = Callable[[Attempt], float | None]
+
+
+def zone_stats(
+    attempts: Sequence[Attempt],
+    *,
+    table: TableSpec | None = None,
+    model: str = "ideal",
+    landing_error: LandingError | None = None,
+) -> dict[Zone, ZoneStats]:
+    """Made, tried, the shrunk posterior and the landing bias of every zone with attempts.
+
+    The landing bias is the mean of ``landing_error(attempt)`` over the zone (default: the
+    signed long/short error of the observed landing against the landing the model predicts
+    for the aim used, on ``table`` or else the attempt's built-in table by name; see
+    calibrate.landing_error).
+    """
+    rates = family_rates(attempts)
+    if landing_error is None:
+        landing_error = _default_landing_error(table, model)
+    made: dict[Zone, int] = {}
+    tried: dict[Zone, int] = {}
+    errs: dict[Zone, list[float]] = {}
+    for a in attempts:
+        z = zone_of_attempt(a)
+        tried[z] = tried.get(z, 0) + 1
+        made[z] = made.get(z, 0) + int(a.hit)
+        e = landing_error(a)
+        if e is not None and math.isfinite(e):
+            errs.setdefault(z, []).append(e)
+    out: dict[Zone, ZoneStats] = {}
+    for z in tried:
+        es = errs.get(z, [])
+        bias = float(np.mean(es)) if es else None
+        out[z] = stats_for(made[z], tried[z], rates[z.family], bias, len(es))
+    return out
+
+
+def _default_landing_error(table: TableSpec | None, model: str) -> LandingError:
+    def err(a: Attempt) -> float | None:
+        t = table if table is not None else BUILTIN_TABLES.get(a.table)
+        if t is None:
+            return None
+        from .calibrate import landing_error  # noqa: PLC0415  (calibrate imports this module)
+
+        try:
+            return landing_error(t, a, model=model)
+        except ValueError:
+            return None
+
+    return err
