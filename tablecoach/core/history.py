@@ -1,0 +1,632 @@
+"""Practice history: streaks, make rates with Wilson intervals, weekly trends, landing bias.
+
+Pure functions over :class:`~tablecoach.core.records.Attempt` lists. Attempts are taken in time
+order (``when``, then ``id``); days and ISO weeks are counted in the player's local time zone
+(a ``tz`` argument, default the machine's local zone, daylight saving included).
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable, Hashable, Iterable, Mapping, Sequence
+from dataclasses import dataclass, field
+from datetime import date, datetime, timedelta, tzinfo
+from statistics import NormalDist
+from typing import Any
+
+import numpy as np
+
+from .records import Attempt
+from .shots import speed_name
+from .table import BUILTIN_TABLES, TableSpec
+
+# ----- streaks -------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, slots=True)
+class Streak:
+    """A run count: ``current`` is the run still going at the end, ``best`` the longest run."""
+
+    current: int = 0
+    best: int = 0
+
+
+def streak(hits: Iterable[bool]) -> Streak:
+    """Current and best run of consecutive hits in a time-ordered sequence of results."""
+    best = run = 0
+    for h in hits:
+        if h:
+            run += 1
+            if run > best:
+                best = run
+        else:
+            run = 0
+    return Streak(run, best)
+
+
+def ordered(attempts: Iterable[Attempt]) -> list[Attempt]:
+    """Attempts in time order (``when``, then store id; unsaved attempts keep their order)."""
+    items = list(attempts)
+    return sorted(items, key=lambda a: (a.when, a.id if a.id is not None else -1))
+
+
+def streaks_by(
+    attempts: Sequence[Attempt], key: Callable[[Attempt], Hashable]
+) -> dict[Any, Streak]:
+    """Hit streaks within each group of ``key`` (attempts already in time order)."""
+    groups: dict[Any, list[bool]] = {}
+    for a in attempts:
+        groups.setdefault(key(a), []).append(a.result == "hit")
+    return {k: streak(v) for k, v in groups.items()}
+
+
+def local_date(when: datetime, tz: tzinfo | None = None) -> date:
+    """The calendar day of an aware instant in ``tz`` (None: the machine's local zone)."""
+    return when.astimezone(tz).date()
+
+
+def day_streak(days: Iterable[date], today: date | None = None) -> Streak:
+    """Days practised in a row.
+
+    ``best`` is the longest run of consecutive calendar days among ``days``. ``current`` is the
+    run that ends on ``today`` or on the day before (a streak is still alive until a whole day
+    passes without practice); 0 if the last day practised is older. With ``today`` None the
+    last day practised is taken as today.
+    """
+    uniq = sorted(set(days))
+    if not uniq:
+        return Streak(0, 0)
+    best = run = 1
+    for prev, cur in zip(uniq, uniq[1:], strict=False):
+        run = run + 1 if (cur - prev).days == 1 else 1
+        best = max(best, run)
+    last = uniq[-1]
+    ref = last if today is None else today
+    current = run if (ref - last).days in (0, 1) else 0
+    return Streak(current, best)
+
+
+# ----- rates --------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, slots=True)
+class Rate:
+    """A make rate: ``hits`` of ``attempts``, with its Wilson score interval ``low``..``high``.
+
+    ``rate`` is None when there are no attempts (the interval is then 0..1).
+    """
+
+    hits: int
+    attempts: int
+    rate: float | None
+    low: float
+    high: float
+    confidence: float = 0.95
+
+
+def wilson(hits: int, n: int, confidence: float = 0.95) -> Rate:
+    """The make rate with its Wilson score interval (no continuity correction).
+
+    E. B. Wilson (1927), "Probable inference, the law of succession, and statistical
+    inference", J. Amer. Statist. Assoc. 22 (158), 209-212: with p = k/n and z the normal
+    quantile for the confidence level, the bounds are
+    (p + z^2/2n +- z sqrt(p(1-p)/n + z^2/4n^2)) / (1 + z^2/n).
+    """
+    if n < 0 or hits < 0 or hits > n:
+        raise ValueError(f"a rate needs 0 <= hits <= attempts, got {hits} of {n}")
+    if not (0.0 < confidence < 1.0):
+        raise ValueError(f"confidence {confidence:g} must lie strictly between 0 and 1")
+    if n == 0:
+        return Rate(0, 0, None, 0.0, 1.0, confidence)
+    z = NormalDist().inv_cdf(0.5 + confidence / 2.0)
+    p = hits / n
+    z2 = z * z
+    denom = 1.0 + z2 / n
+    centre = (p + z2 / (2.0 * n)) / denom
+    half = z * math.sqrt(p * (1.0 - p) / n + z2 / (4.0 * n * n)) / denom
+    low = 0.0 if hits == 0 else max(0.0, centre - half)
+    high = 1.0 if hits == n else min(1.0, centre + half)
+    return Rate(hits, n, p, low, high, confidence)
+
+
+def rate_of(attempts: Iterable[Attempt], confidence: float = 0.95) -> Rate:
+    """The make rate of a set of attempts."""
+    n = k = 0
+    for a in attempts:
+        n += 1
+        k += a.result == "hit"
+    return wilson(k, n, confidence)
+
+
+def rates_by(
+    attempts: Iterable[Attempt], key: Callable[[Attempt], Hashable], confidence: float = 0.95
+) -> dict[Any, Rate]:
+    """Make rates for each group of ``key``."""
+    counts: dict[Any, list[int]] = {}
+    for a in attempts:
+        c = counts.setdefault(key(a), [0, 0])
+        c[0] += a.result == "hit"
+        c[1] += 1
+    return {k: wilson(h, n, confidence) for k, (h, n) in counts.items()}
+
+
+# ----- weekly trends ------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, slots=True)
+class WeekRate:
+    """The make rate over one ISO week (Monday to Sunday in the player's zone)."""
+
+    year: int
+    week: int
+    monday: date
+    rate: Rate
+
+    @property
+    def label(self) -> str:
+        """ISO 8601 week label, e.g. 2026-W48."""
+        return f"{self.year}-W{self.week:02d}"
+
+
+def weekly_from_days(
+    days: Sequence[date], hits: Sequence[bool], confidence: float = 0.95
+) -> list[WeekRate]:
+    """Weekly rates from each attempt's local date and result; weeks with no practice between
+    the first and the last appear with no attempts, so a trend line keeps its time axis."""
+    if not days:
+        return []
+    counts: dict[date, list[int]] = {}
+    for d, h in zip(days, hits, strict=True):
+        monday = d - timedelta(days=d.weekday())
+        c = counts.setdefault(monday, [0, 0])
+        c[0] += bool(h)
+        c[1] += 1
+    first, last = min(counts), max(counts)
+    out: list[WeekRate] = []
+    m = first
+    while m <= last:
+        k, n = counts.get(m, (0, 0))
+        iso = m.isocalendar()
+        out.append(WeekRate(iso.year, iso.week, m, wilson(k, n, confidence)))
+        m += timedelta(days=7)
+    return out
+
+
+def weekly(
+    attempts: Sequence[Attempt], tz: tzinfo | None = None, confidence: float = 0.95
+) -> list[WeekRate]:
+    """Make rate by ISO week (ISO 8601 week numbering) in the player's time zone."""
+    return weekly_from_days(
+        [local_date(a.when, tz) for a in attempts],
+        [a.result == "hit" for a in attempts],
+        confidence,
+    )
+
+
+# ----- sessions -----------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, slots=True)
+class SessionSummary:
+    """One practice session as the history shows it."""
+
+    session: int | None
+    player: str
+    table: str
+    start: datetime
+    end: datetime
+    rate: Rate
+    streak: Streak
+    families: tuple[str, ...]
+
+
+def session_list(attempts: Sequence[Attempt], confidence: float = 0.95) -> list[SessionSummary]:
+    """Sessions (by the store's session key) in order of their first attempt.
+
+    Attempts without a session are grouped by player and table as one unsaved session.
+    """
+    groups: dict[Any, list[Attempt]] = {}
+    for a in attempts:
+        key = a.session if a.session is not None else ("unsaved", a.player, a.table)
+        groups.setdefault(key, []).append(a)
+    out = []
+    for items in groups.values():
+        first = items[0]
+        fams = tuple(dict.fromkeys(a.shot.family for a in items))
+        out.append(
+            SessionSummary(
+                first.session,
+                first.player,
+                first.table,
+                items[0].when,
+                items[-1].when,
+                rate_of(items, confidence),
+                streak(a.result == "hit" for a in items),
+                fams,
+            )
+        )
+    out.sort(key=lambda s: s.start)
+    return out
+
+
+# ----- landing bias -------------------------------------------------------------------------
+
+
+def perimeter_diamonds(rail: str, at: float) -> float:
+    """A rail point (diamonds along its rail) as diamonds round the table, the same walk as
+    ``shots.perimeter_position``: left 0-8, foot 8-12, right 12-20 back toward the head,
+    head 20-24."""
+    if rail == "left":
+        return at
+    if rail == "foot":
+        return 8.0 + at
+    if rail == "right":
+        return 12.0 + (8.0 - at)
+    return 20.0 + (4.0 - at)
+
+
+_RAIL_CODE = {"head": 0, "foot": 1, "left": 2, "right": 3}
+_RAIL_NAMES = ("head", "foot", "left", "right")
+
+
+def ideal_landings(
+    spec: TableSpec,
+    starts: np.ndarray,
+    rails: Sequence[str],
+    aim_rail: str,
+    readings: np.ndarray,
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Where the ideal ball lands for each aim reading, all of one rail sequence, vectorised.
+
+    ``starts`` (n, 2) and ``readings`` (n,) in diamonds. The ball leaves its start toward the
+    sight point (the reading on ``aim_rail``'s line of sights, 93.7 mm behind the nose, WPA) and
+    reflects ideally about walls one ball radius inside the noses; the landing is the wall
+    crossing after as many walls as the family has rails, the definition of
+    ``shots.trace_ideal`` (pocket openings are treated as cushion here). Returns the landing
+    rail codes (index into head, foot, left, right), the landing points in diamonds along their
+    rails, and the sense of travel round the perimeter (+1 or -1) at the landing.
+    """
+    n = len(readings)
+    L, W, r = spec.length, spec.width, spec.ball_radius
+    p = np.empty((n, 2))
+    p[:, 0] = starts[:, 0] * spec.diamond
+    p[:, 1] = starts[:, 1] * spec.diamond_across
+    sight = np.empty((n, 2))
+    if aim_rail in ("left", "right"):
+        sight[:, 0] = readings * spec.diamond
+        sight[:, 1] = spec.sight_line(aim_rail)  # type: ignore[arg-type]
+    else:
+        sight[:, 0] = spec.sight_line(aim_rail)  # type: ignore[arg-type]
+        sight[:, 1] = readings * spec.diamond_across
+    d = sight - p
+    d /= np.maximum(np.hypot(d[:, 0], d[:, 1]), 1e-12)[:, None]
+    xmin, xmax, ymin, ymax = r, L - r, r, W - r
+    code = np.zeros(n, dtype=np.int64)
+    along = np.zeros(n)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        for _ in range(len(rails) + 1):
+            tx = np.where(
+                d[:, 0] > 1e-15,
+                (xmax - p[:, 0]) / d[:, 0],
+                np.where(d[:, 0] < -1e-15, (xmin - p[:, 0]) / d[:, 0], np.inf),
+            )
+            ty = np.where(
+                d[:, 1] > 1e-15,
+                (ymax - p[:, 1]) / d[:, 1],
+                np.where(d[:, 1] < -1e-15, (ymin - p[:, 1]) / d[:, 1], np.inf),
+            )
+            use_x = tx <= ty
+            t = np.maximum(np.where(use_x, tx, ty), 0.0)
+            p = p + t[:, None] * d
+            code = np.where(use_x, np.where(d[:, 0] > 0, 1, 0), np.where(d[:, 1] > 0, 3, 2))
+            along = np.where(use_x, p[:, 1], p[:, 0])
+            last_d = d.copy()
+            d = np.where(use_x[:, None], d * np.array([-1.0, 1.0]), d * np.array([1.0, -1.0]))
+    along_d = np.where(code >= 2, along / spec.diamond, along / spec.diamond_across)
+    # sense round the perimeter: left +x, foot +y, right -x, head -y (perimeter_diamonds)
+    tangent = np.select(
+        [code == 2, code == 1, code == 3],
+        [last_d[:, 0], last_d[:, 1], -last_d[:, 0]],
+        -last_d[:, 1],
+    )
+    sense = np.where(tangent >= 0.0, 1.0, -1.0)
+    return code, along_d, sense
+
+
+def _perimeter_array(code: np.ndarray, at: np.ndarray) -> np.ndarray:
+    return np.select(
+        [code == 2, code == 1, code == 3],
+        [at, 8.0 + at, 12.0 + (8.0 - at)],
+        20.0 + (4.0 - at),
+    )
+
+
+@dataclass(frozen=True, slots=True)
+class LandingBias:
+    """How far logged landings fall from the ideal landing of the aim actually used.
+
+    ``mean`` and ``median`` in diamonds round the table, positive when the ball landed farther
+    along its direction of travel than ideal reflection says ("long"), negative "short";
+    ``stderr`` the standard error of the mean; ``long``/``short`` count attempts beyond a
+    tenth of a diamond either way.
+    """
+
+    family: str
+    speed: str
+    attempts: int
+    mean: float
+    median: float
+    stderr: float
+    long: int
+    short: int
+
+
+def landing_offsets(
+    attempts: Sequence[Attempt], table_of: Callable[[str], TableSpec | None] | None = None
+) -> np.ndarray:
+    """Signed landing offset (diamonds, + long) of each attempt from the ideal landing of its
+    ``aim_used``; NaN where the table is unknown or the aim rail is not the family's first."""
+    look = table_of or BUILTIN_TABLES.get
+    out = np.full(len(attempts), np.nan)
+    groups: dict[tuple[str, tuple[str, ...], str, str], list[int]] = {}
+    for i, a in enumerate(attempts):
+        s = a.shot
+        if not s.rails or a.aim_rail != s.rails[0]:
+            continue
+        groups.setdefault((a.table, s.rails, a.aim_rail, s.travel), []).append(i)
+    specs: dict[str, TableSpec | None] = {}
+    for (table, rails, aim_rail, travel), idx in groups.items():
+        if table not in specs:
+            specs[table] = look(table)
+        spec = specs[table]
+        if spec is None:
+            continue
+        sel = [attempts[i] for i in idx]
+        if travel == "object":
+            starts = np.array([a.shot.object or a.shot.cue for a in sel], dtype=float)
+        else:
+            starts = np.array([a.shot.cue for a in sel], dtype=float)
+        readings = np.array([a.aim_used for a in sel], dtype=float)
+        code, at, sense = ideal_landings(spec, starts, rails, aim_rail, readings)
+        logged_code = np.array([_RAIL_CODE[a.landing_rail] for a in sel])
+        logged_at = np.array([a.landing_at for a in sel], dtype=float)
+        diff = _perimeter_array(logged_code, logged_at) - _perimeter_array(code, at)
+        diff = (diff + 12.0) % 24.0 - 12.0
+        out[np.array(idx)] = diff * sense
+    return out
+
+
+def landing_bias(
+    attempts: Sequence[Attempt],
+    table_of: Callable[[str], TableSpec | None] | None = None,
+    offsets: np.ndarray | None = None,
+) -> list[LandingBias]:
+    """Landing bias by family and speed band (shots.speed_name), largest groups first."""
+    off = landing_offsets(attempts, table_of) if offsets is None else offsets
+    groups: dict[tuple[str, str], list[float]] = {}
+    for a, o in zip(attempts, off, strict=True):
+        if not math.isnan(o):
+            groups.setdefault((a.shot.family, speed_name(a.speed)), []).append(float(o))
+    out = []
+    for (fam, spd), vals in groups.items():
+        v = np.asarray(vals)
+        sd = float(v.std(ddof=1)) if len(v) > 1 else 0.0
+        out.append(
+            LandingBias(
+                fam,
+                spd,
+                len(v),
+                float(v.mean()),
+                float(np.median(v)),
+                sd / math.sqrt(len(v)),
+                int((v > 0.1).sum()),
+                int((v < -0.1).sum()),
+            )
+        )
+    out.sort(key=lambda b: (-b.attempts, b.family, b.speed))
+    return out
+
+
+# ----- the whole picture --------------------------------------------------------------------
+
+
+@dataclass(frozen=True, slots=True)
+class History:
+    """Everything the history view and ``tablecoach history`` show for a set of attempts."""
+
+    rate: Rate
+    streak: Streak
+    days: Streak
+    families: Mapping[str, Rate]
+    family_streaks: Mapping[str, Streak]
+    zones: Mapping[Any, Rate]
+    zone_streaks: Mapping[Any, Streak]
+    session_streaks: Mapping[Any, Streak]
+    weeks: tuple[WeekRate, ...]
+    family_weeks: Mapping[str, tuple[WeekRate, ...]]
+    sessions: tuple[SessionSummary, ...]
+    bias: tuple[LandingBias, ...]
+    first: datetime | None = None
+    last: datetime | None = None
+    players: tuple[str, ...] = field(default=())
+    tables: tuple[str, ...] = field(default=())
+
+
+ZoneFn = Callable[[Attempt], Hashable]
+
+
+def default_zone_fn() -> ZoneFn | None:
+    """The coach's zones (core/coach.py ``zone_of``) keyed per attempt, if the coach exists."""
+    try:
+        from .coach import zone_of  # noqa: PLC0415  (optional: the coach may be absent)
+    except ImportError:
+        return None
+
+    def key(a: Attempt) -> Hashable:
+        return zone_of(a.shot, a.speed)
+
+    return key
+
+
+def summarize(
+    attempts: Iterable[Attempt],
+    tz: tzinfo | None = None,
+    today: date | None = None,
+    zone_fn: ZoneFn | None = None,
+    table_of: Callable[[str], TableSpec | None] | None = None,
+    confidence: float = 0.95,
+    with_bias: bool = True,
+) -> History:
+    """The whole history of a set of attempts (one player's, usually).
+
+    ``tz`` is the player's time zone for days and ISO weeks (None: the machine's local zone);
+    ``today`` the local date the current day streak is judged against (None: now in ``tz``);
+    ``zone_fn`` keys each attempt to its zone (None: the coach's ``zone_of`` if available);
+    ``table_of`` resolves table names for the landing bias (None: built-in tables only).
+    """
+    items = ordered(attempts)
+    if today is None:
+        today = datetime.now(tz).date() if tz is not None else datetime.now().astimezone().date()
+    zkey = zone_fn if zone_fn is not None else default_zone_fn()
+    hits = [a.result == "hit" for a in items]
+    days = [local_date(a.when, tz) for a in items]
+    fam_items: dict[str, list[int]] = {}
+    for i, a in enumerate(items):
+        fam_items.setdefault(a.shot.family, []).append(i)
+    family_weeks = {
+        f: tuple(weekly_from_days([days[i] for i in idx], [hits[i] for i in idx], confidence))
+        for f, idx in fam_items.items()
+    }
+    zones: dict[Any, Rate] = {}
+    zone_streaks: dict[Any, Streak] = {}
+    if zkey is not None:
+        zones = rates_by(items, zkey, confidence)
+        zone_streaks = streaks_by(items, zkey)
+    bias = tuple(landing_bias(items, table_of)) if with_bias else ()
+    return History(
+        rate=wilson(sum(hits), len(hits), confidence),
+        streak=streak(hits),
+        days=day_streak(days, today),
+        families=rates_by(items, lambda a: a.shot.family, confidence),
+        family_streaks=streaks_by(items, lambda a: a.shot.family),
+        zones=zones,
+        zone_streaks=zone_streaks,
+        session_streaks=streaks_by(items, lambda a: a.session),
+        weeks=tuple(weekly_from_days(days, hits, confidence)),
+        family_weeks=family_weeks,
+        sessions=tuple(session_list(items, confidence)),
+        bias=bias,
+        first=items[0].when if items else None,
+        last=items[-1].when if items else None,
+        players=tuple(sorted({a.player for a in items})),
+        tables=tuple(sorted({a.table for a in items})),
+    )
+
+
+# ----- plain data for --json ----------------------------------------------------------------
+
+
+def rate_dict(r: Rate) -> dict[str, Any]:
+    return {
+        "attempts": r.attempts,
+        "hits": r.hits,
+        "rate": r.rate,
+        "low": r.low,
+        "high": r.high,
+        "confidence": r.confidence,
+    }
+
+
+def streak_dict(s: Streak) -> dict[str, int]:
+    return {"current": s.current, "best": s.best}
+
+
+def zone_label(z: Any) -> str:
+    """A zone key as text: the coach's Zone fields joined, or str() of anything else."""
+    fields = getattr(z, "__dataclass_fields__", None)
+    if fields:
+        return ":".join(str(getattr(z, f)) for f in fields)
+    return str(z)
+
+
+def history_dict(h: History) -> dict[str, Any]:
+    """The history as plain JSON-ready data (the ``tablecoach history --json`` contract)."""
+    fams = {}
+    for f, r in sorted(h.families.items()):
+        fams[f] = {
+            **rate_dict(r),
+            "streaks": streak_dict(h.family_streaks.get(f, Streak())),
+            "weeks": [
+                {"week": w.label, "monday": w.monday.isoformat(), **rate_dict(w.rate)}
+                for w in h.family_weeks.get(f, ())
+            ],
+        }
+    return {
+        **rate_dict(h.rate),
+        "streaks": {**streak_dict(h.streak), "days": streak_dict(h.days)},
+        "first": h.first.isoformat() if h.first else None,
+        "last": h.last.isoformat() if h.last else None,
+        "players": list(h.players),
+        "tables": list(h.tables),
+        "families": fams,
+        "zones": {
+            zone_label(z): {**rate_dict(r), "streaks": streak_dict(h.zone_streaks[z])}
+            for z, r in h.zones.items()
+        },
+        "weeks": [
+            {"week": w.label, "monday": w.monday.isoformat(), **rate_dict(w.rate)} for w in h.weeks
+        ],
+        "sessions": [
+            {
+                "session": s.session,
+                "player": s.player,
+                "table": s.table,
+                "start": s.start.isoformat(),
+                "end": s.end.isoformat(),
+                "families": list(s.families),
+                "streaks": streak_dict(s.streak),
+                **rate_dict(s.rate),
+            }
+            for s in h.sessions
+        ],
+        "landing_bias": [
+            {
+                "family": b.family,
+                "speed": b.speed,
+                "attempts": b.attempts,
+                "mean": b.mean,
+                "median": b.median,
+                "stderr": b.stderr,
+                "long": b.long,
+                "short": b.short,
+            }
+            for b in h.bias
+        ],
+    }
+
+
+__all__ = [
+    "History",
+    "LandingBias",
+    "Rate",
+    "SessionSummary",
+    "Streak",
+    "WeekRate",
+    "day_streak",
+    "history_dict",
+    "ideal_landings",
+    "landing_bias",
+    "landing_offsets",
+    "local_date",
+    "ordered",
+    "perimeter_diamonds",
+    "rate_of",
+    "rates_by",
+    "session_list",
+    "streak",
+    "streaks_by",
+    "summarize",
+    "weekly",
+    "weekly_from_days",
+    "wilson",
+]
