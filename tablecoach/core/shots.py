@@ -347,6 +347,29 @@ def _box(table: TableSpec) -> tuple[float, float, float, float]:
     return (r, table.length - r, r, table.width - r)
 
 
+_GEOM: dict[int, tuple[TableSpec, dict[str, tuple[tuple[float, float], ...]]]] = {}
+
+
+def _segments(table: TableSpec) -> dict[str, tuple[tuple[float, float], ...]]:
+    """Cushion stretches per rail, cached by table identity (hashing a spec is slow)."""
+    hit = _GEOM.get(id(table))
+    if hit is not None and hit[0] is table:
+        return hit[1]
+    segs = {r: table.cushion_segments(r) for r in RAILS}
+    if len(_GEOM) > 32:
+        _GEOM.clear()
+    _GEOM[id(table)] = (table, segs)
+    return segs
+
+
+def _on_cushion(segs: tuple[tuple[float, float], ...], along: float) -> bool:
+    """True when ``along`` lies on one of the cushion stretches (a plain loop: hot path)."""
+    for a, b in segs:  # noqa: SIM110
+        if a <= along <= b:
+            return True
+    return False
+
+
 def _pocket_at(table: TableSpec, rail: RailName, along: float) -> Pocket:
     """The pocket whose opening holds a boundary crossing at ``along`` on ``rail``."""
     best = None
@@ -413,6 +436,7 @@ def trace_ideal(table: TableSpec, setup: Setup, direction: Point) -> Trace:
     outcome = ""
     scores = False
     done = False  # the ball has met a ball or dropped; only the landing is still followed
+    segs = _segments(table)
     for walls in range(1, n + 4):
         if d[0] > 1e-15:
             tx = (xmax - p[0]) / d[0]
@@ -458,7 +482,7 @@ def trace_ideal(table: TableSpec, setup: Setup, direction: Point) -> Trace:
         along = q[1] if rail in ("head", "foot") else q[0]
         if walls == n + 1:
             landing = RailPoint(rail, along)  # type: ignore[arg-type]
-        if table.on_cushion(rail, along):  # type: ignore[arg-type]
+        if _on_cushion(segs[rail], along):
             if not done:
                 path.append(q)
                 hit.append(rail)  # type: ignore[arg-type]
@@ -647,11 +671,12 @@ def _margin(
     rail: RailName,
     reading: float,
     trace,  # type: ignore[no-untyped-def]
-    tol: float = 2e-4,
+    tol: float = 4e-4,
 ) -> tuple[float, float]:
     """How far the reading may move either way and still score (metres along the sight line).
 
-    Steps out by doubling from 1 mm until the trace stops scoring, then bisects to ``tol``.
+    Steps out by doubling from 3 mm until the trace stops scoring, then bisects to ``tol``
+    (0.4 mm, about 0.001 diamond).
     A window wider than 1.5 diamonds is reported as 1.5 diamonds.
     """
     start = setup.start
@@ -666,7 +691,7 @@ def _margin(
 
     out = []
     for sign in (-1.0, 1.0):
-        good, step = 0.0, 0.001
+        good, step = 0.0, 0.003
         bad = None
         while step <= cap:
             if ok(reading + sign * step):

@@ -1,0 +1,118 @@
+"""`tablecoach aim` end to end: JSON contract fields and one-line errors."""
+
+import json
+import subprocess
+import sys
+
+import pytest
+
+from tablecoach.cli import main
+from tablecoach.core.geometry import unfold
+from tablecoach.core.table import builtin_table
+
+
+def run_cli(capsys, *args):
+    code = main(list(args))
+    out = capsys.readouterr()
+    return code, out.out, out.err
+
+
+def test_aim_json_has_the_contract_fields(capsys, tmp_path):
+    code, out, err = run_cli(
+        capsys,
+        "aim",
+        "--data-dir",
+        str(tmp_path),
+        "--family",
+        "cross-corner-bank",
+        "--cue",
+        "3,1",
+        "--object",
+        "4,2",
+        "--model",
+        "ideal",
+        "--json",
+    )
+    assert code == 0, err
+    data = json.loads(out)
+    for key in ("aim", "contacts", "landing", "target_point", "convergence", "margin"):
+        assert key in data
+    assert data["aim"]["rail"] == "right"
+    assert data["contacts"][0]["rail"] == "right"
+    assert set(data["landing"]) == {"rail", "at"}
+    assert set(data["margin"]) == {"minus", "plus"}
+    # the ideal convergence point is the pocket's image across the right rail (method of images)
+    t = builtin_table("9ft")
+    img = unfold(t.pocket("foot-left").aim, ("right",), (t.reflection_line("right"),)).image
+    x, y = t.to_diamonds(*img)
+    assert data["convergence"]["x"] == pytest.approx(x, abs=1e-3)
+    assert data["convergence"]["y"] == pytest.approx(y, abs=1e-3)
+    assert data["convergence"]["spread"] == pytest.approx(0.0, abs=1e-6)
+
+
+def test_aim_with_structure_instead_of_a_family(capsys, tmp_path):
+    code, out, err = run_cli(
+        capsys,
+        "aim",
+        "--data-dir",
+        str(tmp_path),
+        "--travel",
+        "cue",
+        "--rails",
+        "right,foot",
+        "--cue",
+        "1,1",
+        "--target-ball",
+        "3,1",
+        "--model",
+        "ideal",
+        "--json",
+    )
+    assert code == 0, err
+    data = json.loads(out)
+    assert [c["rail"] for c in data["contacts"]] == ["right", "foot"]
+
+
+@pytest.mark.parametrize(
+    "args, words",
+    [
+        (["--family", "cross-corner-bank", "--cue", "3,1", "--object", "9,2"], "off the table"),
+        (["--family", "cross-corner-bank", "--cue", "3,1", "--object", "3.05,1"], "overlap"),
+        (
+            ["--family", "cross-corner-bank", "--cue", "3,1", "--object", "4,2", "--pocket", "x"],
+            "unknown pocket",
+        ),
+        (["--travel", "cue", "--rails", "top", "--cue", "1,1", "--target-ball", "3,1"], "rail"),
+        (["--family", "nope", "--cue", "1,1"], "unknown family"),
+        (["--family", "one-rail-kick", "--cue", "a,b", "--target-ball", "3,1"], "X,Y"),
+    ],
+)
+def test_bad_input_is_one_line_and_exit_code_2(capsys, tmp_path, args, words):
+    code, out, err = run_cli(capsys, "aim", "--data-dir", str(tmp_path), "--model", "ideal", *args)
+    assert code == 2
+    assert words in err
+    assert err.count("\n") == 1 and "Traceback" not in err
+
+
+def test_aim_text_output_in_ascii_from_a_subprocess(tmp_path):
+    out = subprocess.run(
+        [sys.executable, "-m", "tablecoach", "aim", "--data-dir", str(tmp_path)]
+        + [
+            "--family",
+            "one-rail-kick",
+            "--cue",
+            "1,1",
+            "--target-ball",
+            "5,1",
+            "--model",
+            "ideal",
+            "--ascii",
+        ],
+        capture_output=True,
+        text=True,
+        timeout=60,
+    )
+    assert out.returncode == 0, out.stderr
+    assert "aim" in out.stdout and "right rail sights" in out.stdout
+    assert "C" in out.stdout and "T" in out.stdout
+    assert all(ord(ch) < 128 for line in out.stdout.splitlines()[:24] for ch in line)
