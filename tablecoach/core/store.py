@@ -1,0 +1,849 @@
+"""The practice database: SQLite schema, migrations, players, tables, sessions and attempts.
+
+One file (``paths.db_path()``), opened in WAL mode with a busy timeout so that two app windows
+can log into it at once. Every write is one short ``BEGIN IMMEDIATE`` transaction; an attempt is
+committed before ``log`` returns. A file that is not a tablecoach database, or is damaged, is
+never written to: opening it raises a StoreError naming the file and what to do.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import sqlite3
+import threading
+from collections.abc import Iterator, Sequence
+from contextlib import contextmanager
+from dataclasses import dataclass, replace
+from datetime import UTC, datetime
+from pathlib import Path
+from types import TracebackType
+from typing import Any
+
+from .records import Attempt, ShotRecord, utc_now, validate_attempt
+from .table import BUILTIN_TABLES, TableError, TableSpec, table_from_mapping, table_to_mapping
+
+SCHEMA_VERSION = 2
+"""The schema this code writes (PRAGMA user_version). Version 1 is the first schema."""
+
+APPLICATION_ID = 0x74636F61
+"""PRAGMA application_id marking a tablecoach database ('tcoa' in ASCII)."""
+
+BUSY_TIMEOUT_MS = 5000
+"""How long a write waits for another window's transaction before giving up."""
+
+_SQLITE_MAGIC = b"SQLite format 3\x00"
+"""The first 16 bytes of every SQLite 3 database file (sqlite.org/fileformat.html, 1.3)."""
+
+_IMPORT_CHUNK = 2000
+
+
+class StoreError(ValueError):
+    """The database cannot be used as asked; the message names the file and what to do."""
+
+
+@dataclass(frozen=True, slots=True)
+class SessionInfo:
+    """One practice session with its attempt and hit counts."""
+
+    id: int
+    player: str
+    table: str
+    drill: str
+    started: datetime
+    ended: datetime | None
+    attempts: int
+    hits: int
+
+
+# ----- schema -------------------------------------------------------------------------------
+
+_SCHEMA_V1 = f"""
+PRAGMA application_id = {APPLICATION_ID};
+CREATE TABLE players (
+    name TEXT PRIMARY KEY,
+    created TEXT NOT NULL
+);
+CREATE TABLE tables (
+    name TEXT PRIMARY KEY,
+    spec TEXT NOT NULL,
+    saved TEXT NOT NULL
+);
+CREATE TABLE sessions (
+    id INTEGER PRIMARY KEY,
+    player TEXT NOT NULL,
+    table_name TEXT NOT NULL,
+    drill TEXT NOT NULL DEFAULT '',
+    started TEXT NOT NULL,
+    ended TEXT
+);
+CREATE TABLE attempts (
+    id INTEGER PRIMARY KEY,
+    session_id INTEGER REFERENCES sessions(id),
+    at TEXT NOT NULL,
+    player TEXT NOT NULL,
+    table_name TEXT NOT NULL,
+    travel TEXT NOT NULL,
+    rails TEXT NOT NULL,
+    family TEXT NOT NULL,
+    pocket TEXT,
+    target_x REAL,
+    target_y REAL,
+    cue_x REAL NOT NULL,
+    cue_y REAL NOT NULL,
+    object_x REAL,
+    object_y REAL,
+    speed REAL NOT NULL,
+    english REAL NOT NULL,
+    follow REAL NOT NULL,
+    aim_rail TEXT NOT NULL,
+    aim_given REAL NOT NULL,
+    aim_used REAL NOT NULL,
+    result TEXT NOT NULL,
+    landing_rail TEXT NOT NULL,
+    landing_at REAL NOT NULL,
+    note TEXT NOT NULL DEFAULT ''
+);
+CREATE INDEX attempts_session ON attempts(session_id);
+"""
+"""The first schema (version 1), kept verbatim: new databases are built from it and migrated."""
+
+_V1_TABLES = {"players", "tables", "sessions", "attempts"}
+_V2_TABLES = _V1_TABLES | {"calibrations"}
+
+
+def _run_script(conn: sqlite3.Connection, script: str) -> None:
+    """Run statements one by one inside the caller's transaction (``executescript`` would
+    commit it first). The scripts here hold no semicolons inside literals."""
+    for stmt in script.split(";"):
+        if stmt.strip():
+            conn.execute(stmt)
+
+
+def _migrate_1_to_2(conn: sqlite3.Connection) -> None:
+    """Version 2: model/drill/zone and an identity key on attempts, history indexes,
+    calibrations, and which attempt created a player (so undo can remove it again)."""
+    _run_script(
+        conn,
+        """
+        ALTER TABLE attempts ADD COLUMN model TEXT NOT NULL DEFAULT 'ideal';
+        ALTER TABLE attempts ADD COLUMN drill TEXT NOT NULL DEFAULT '';
+        ALTER TABLE attempts ADD COLUMN zone TEXT NOT NULL DEFAULT '';
+        ALTER TABLE attempts ADD COLUMN ident TEXT;
+        ALTER TABLE players ADD COLUMN created_by INTEGER;
+        CREATE TABLE calibrations (
+            id INTEGER PRIMARY KEY,
+            table_name TEXT NOT NULL,
+            player TEXT NOT NULL,
+            params TEXT NOT NULL,
+            attempts INTEGER NOT NULL,
+            at TEXT NOT NULL
+        );
+        """,
+    )
+    rows = conn.execute(f"SELECT {_COLS}, id FROM attempts").fetchall()
+    conn.executemany(
+        "UPDATE attempts SET ident = ? WHERE id = ?",
+        ((attempt_identity(_from_row(r)), r[-1]) for r in rows),
+    )
+    _run_script(
+        conn,
+        """
+        CREATE INDEX attempts_ident ON attempts(ident);
+        CREATE INDEX attempts_at ON attempts(at, id);
+        CREATE INDEX attempts_player_at ON attempts(player, at);
+        CREATE INDEX attempts_table_at ON attempts(table_name, at);
+        CREATE INDEX attempts_family_at ON attempts(family, at);
+        CREATE INDEX attempts_player_table_at ON attempts(player, table_name, at);
+        CREATE INDEX sessions_player ON sessions(player, table_name);
+        CREATE INDEX calibrations_key ON calibrations(table_name, player, id);
+        """,
+    )
+
+
+_MIGRATIONS = {1: _migrate_1_to_2}
+"""from-version -> step; applying them in order takes any older file to SCHEMA_VERSION."""
+
+
+# ----- rows <-> attempts ----------------------------------------------------------------------
+
+_COL_NAMES = (
+    "at",
+    "player",
+    "table_name",
+    "travel",
+    "rails",
+    "family",
+    "pocket",
+    "target_x",
+    "target_y",
+    "cue_x",
+    "cue_y",
+    "object_x",
+    "object_y",
+    "speed",
+    "english",
+    "follow",
+    "aim_rail",
+    "aim_given",
+    "aim_used",
+    "result",
+    "landing_rail",
+    "landing_at",
+    "note",
+    "model",
+    "drill",
+    "zone",
+    "session_id",
+)
+_COLS = ", ".join(_COL_NAMES)
+
+
+def iso_utc(when: datetime) -> str:
+    """A timezone-aware time as fixed-width ISO-8601 UTC with microseconds (sorts as text)."""
+    if when.tzinfo is None:
+        raise StoreError("times given to the store must carry a time zone (UTC)")
+    return when.astimezone(UTC).isoformat(timespec="microseconds")
+
+
+def _pair(p: tuple[float, float] | None) -> tuple[float | None, float | None]:
+    return (None, None) if p is None else (float(p[0]), float(p[1]))
+
+
+def _to_row(a: Attempt) -> tuple[Any, ...]:
+    s = a.shot
+    return (
+        iso_utc(a.when),
+        a.player,
+        a.table,
+        s.travel,
+        ",".join(s.rails),
+        s.family,
+        s.pocket,
+        *_pair(s.target_ball),
+        *_pair(s.cue),
+        *_pair(s.object),
+        float(a.speed),
+        float(a.english),
+        float(a.follow),
+        a.aim_rail,
+        float(a.aim_given),
+        float(a.aim_used),
+        a.result,
+        a.landing_rail,
+        float(a.landing_at),
+        a.note,
+        a.model,
+        a.drill,
+        a.zone,
+        a.session,
+    )
+
+
+def _opt(x: float | None, y: float | None) -> tuple[float, float] | None:
+    return None if x is None or y is None else (x, y)
+
+
+def _from_row(r: Sequence[Any], id_: int | None = None) -> Attempt:
+    shot = ShotRecord(
+        r[3],
+        tuple(r[4].split(",")),
+        (r[9], r[10]),
+        _opt(r[11], r[12]),
+        r[6],
+        _opt(r[7], r[8]),
+        r[5],
+    )
+    n = len(r)
+    return Attempt(
+        datetime.fromisoformat(r[0]),
+        r[1],
+        r[2],
+        shot,
+        r[13],
+        r[14],
+        r[15],
+        r[16],
+        r[17],
+        r[18],
+        r[19],
+        r[20],
+        r[21],
+        r[22],
+        r[23] if n > 23 and r[23] is not None else "ideal",
+        r[24] if n > 24 and r[24] is not None else "",
+        r[25] if n > 25 and r[25] is not None else "",
+        r[26] if n > 26 else None,
+        id_,
+    )
+
+
+def attempt_identity(a: Attempt) -> str:
+    """The identity of an attempt for import: a hash of its full content except id and session.
+
+    Floats enter through repr (exact), times as UTC ISO-8601 to the microsecond, so two records
+    are the same attempt exactly when every exported field is equal.
+    """
+    s = a.shot
+    content = [
+        iso_utc(a.when),
+        a.player,
+        a.table,
+        s.travel,
+        list(s.rails),
+        s.family,
+        s.pocket,
+        _pair(s.target_ball),
+        _pair(s.cue),
+        _pair(s.object),
+        float(a.speed),
+        float(a.english),
+        float(a.follow),
+        a.aim_rail,
+        float(a.aim_given),
+        float(a.aim_used),
+        a.result,
+        a.landing_rail,
+        float(a.landing_at),
+        a.note,
+        a.model,
+        a.drill,
+        a.zone,
+    ]
+    text = json.dumps(content, separators=(",", ":"), ensure_ascii=False)
+    return hashlib.sha256(text.encode("utf-8")).hexdigest()
+
+
+# ----- checking a file before SQLite touches it ------------------------------------------------
+
+
+def _fix_hint(path: Path) -> str:
+    return (
+        f"it was left untouched; move or rename {path.name} (or use --data-dir for another "
+        "folder) to start a new database"
+    )
+
+
+def _precheck(path: Path) -> None:
+    """Refuse a file that is not an SQLite database or is shorter than its header says.
+
+    Header layout from the SQLite file format (sqlite.org/fileformat.html, 1.3): magic string
+    at 0, page size at 16 (1 means 65536), change counter at 24, page count at 28, valid when
+    the 'version-valid-for' number at 92 equals the change counter.
+    """
+    if not path.exists():
+        return
+    if path.is_dir():
+        raise StoreError(f"{path} is a folder, not a database file; remove it or pick another")
+    size = path.stat().st_size
+    if size == 0:
+        return
+    with path.open("rb") as fh:
+        head = fh.read(100)
+    if len(head) < 100 or not head.startswith(_SQLITE_MAGIC):
+        what = "too short to be a database" if len(head) < 100 else "not an SQLite file"
+        raise StoreError(f"{path} is not a tablecoach database ({what}); {_fix_hint(path)}")
+    page = int.from_bytes(head[16:18], "big")
+    page = 65536 if page == 1 else page
+    pages = int.from_bytes(head[28:32], "big")
+    counter_ok = head[24:28] == head[92:96]
+    wal = path.with_name(path.name + "-wal")
+    if wal.exists():
+        return  # another window may be mid-checkpoint; SQLite itself will judge the file
+    if page < 512 or size % page != 0 or (counter_ok and pages and size < pages * page):
+        raise StoreError(
+            f"the database {path} is damaged (the file is truncated: {size} bytes); "
+            f"{_fix_hint(path)}, or restore it from a backup"
+        )
+
+
+# ----- the store ----------------------------------------------------------------------------
+
+
+class Store:
+    """A connection to the practice database. Use ``Store.open(path)``; safe across threads."""
+
+    def __init__(self, conn: sqlite3.Connection, path: Path) -> None:
+        self._conn = conn
+        self.path = path
+        self._lock = threading.RLock()
+
+    # ----- opening and closing ---------------------------------------------------------------
+    @classmethod
+    def open(cls, path: Path | str) -> Store:
+        """Open the database at ``path``, creating it or migrating an older schema.
+
+        A file that is not a tablecoach database, is damaged or comes from a newer version
+        raises StoreError and is not modified.
+        """
+        path = Path(path)
+        _precheck(path)
+        if not path.exists():
+            try:
+                path.parent.mkdir(parents=True, exist_ok=True)
+            except OSError as exc:
+                raise StoreError(
+                    f"cannot create the data folder {path.parent} ({exc.strerror}); "
+                    "use --data-dir to pick a folder you can write to"
+                ) from None
+        try:
+            conn = sqlite3.connect(
+                str(path),
+                timeout=BUSY_TIMEOUT_MS / 1000.0,
+                isolation_level=None,
+                check_same_thread=False,
+            )
+        except sqlite3.Error as exc:
+            raise StoreError(f"cannot open the database {path} ({exc})") from None
+        store = cls(conn, path)
+        try:
+            store._setup()
+        except sqlite3.DatabaseError as exc:
+            conn.close()
+            raise store._damaged(exc) from None
+        except BaseException:
+            conn.close()
+            raise
+        return store
+
+    def _damaged(self, exc: sqlite3.Error) -> StoreError:
+        msg = str(exc)
+        if "locked" in msg or "busy" in msg:
+            return StoreError(
+                f"the database {self.path} is busy (another tablecoach window is writing); "
+                "try again in a moment"
+            )
+        if "readonly" in msg or "read-only" in msg:
+            return StoreError(f"the database {self.path} is read-only; check its permissions")
+        return StoreError(
+            f"the database {self.path} is damaged or not a tablecoach database ({msg}); "
+            f"{_fix_hint(self.path)}, or restore it from a backup"
+        )
+
+    def _inspect(self) -> tuple[int, int, set[str]]:
+        c = self._conn
+        app = c.execute("PRAGMA application_id").fetchone()[0]
+        version = c.execute("PRAGMA user_version").fetchone()[0]
+        names = {
+            r[0]
+            for r in c.execute(
+                "SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%'"
+            )
+        }
+        return app, version, names
+
+    def _check_kind(self, app: int, version: int, names: set[str]) -> None:
+        p = self.path
+        if not names and version == 0:
+            return  # a new, empty file
+        if app != APPLICATION_ID:
+            raise StoreError(
+                f"{p} is an SQLite database from another program, not tablecoach's; {_fix_hint(p)}"
+            )
+        if version > SCHEMA_VERSION:
+            raise StoreError(
+                f"the database {p} was written by a newer tablecoach (schema {version}, this "
+                f"one reads up to {SCHEMA_VERSION}); upgrade tablecoach to use it"
+            )
+        expected = _V1_TABLES if version == 1 else _V2_TABLES
+        missing = expected - names
+        if version < 1 or missing:
+            raise StoreError(
+                f"the database {p} is damaged (schema {version}, missing tables: "
+                f"{', '.join(sorted(missing)) or 'all'}); {_fix_hint(p)}, or restore a backup"
+            )
+
+    def _setup(self) -> None:
+        c = self._conn
+        c.execute(f"PRAGMA busy_timeout = {BUSY_TIMEOUT_MS}")
+        self._check_kind(*self._inspect())
+        c.execute("PRAGMA journal_mode = WAL")
+        # FULL: a committed attempt survives a power cut too, not only a crash of the program.
+        c.execute("PRAGMA synchronous = FULL")
+        c.execute("PRAGMA foreign_keys = ON")
+        if self._inspect()[1] < SCHEMA_VERSION:
+            self._migrate()
+
+    def _migrate(self) -> None:
+        """Create the schema or bring it up to date, in one transaction (re-checked inside it,
+        so two windows opening an old file at once migrate it once)."""
+        c = self._conn
+        c.execute("BEGIN IMMEDIATE")
+        try:
+            app, version, names = self._inspect()
+            self._check_kind(app, version, names)
+            if version == 0:
+                _run_script(c, _SCHEMA_V1)
+                version = 1
+            while version < SCHEMA_VERSION:
+                _MIGRATIONS[version](c)
+                version += 1
+                c.execute(f"PRAGMA user_version = {version}")
+        except BaseException:
+            c.execute("ROLLBACK")
+            raise
+        c.execute("COMMIT")
+
+    def schema_version(self) -> int:
+        """The file's schema version (PRAGMA user_version)."""
+        with self._read() as c:
+            return int(c.execute("PRAGMA user_version").fetchone()[0])
+
+    def close(self) -> None:
+        """Close the connection (everything is already committed)."""
+        with self._lock:
+            self._conn.close()
+
+    def __enter__(self) -> Store:
+        return self
+
+    def __exit__(
+        self,
+        exc_type: type[BaseException] | None,
+        exc: BaseException | None,
+        tb: TracebackType | None,
+    ) -> None:
+        self.close()
+
+    # ----- transactions -----------------------------------------------------------------------
+    @contextmanager
+    def _write(self) -> Iterator[sqlite3.Connection]:
+        """One short write transaction, committed on exit (rolled back on any error)."""
+        with self._lock:
+            c = self._conn
+            try:
+                c.execute("BEGIN IMMEDIATE")
+            except sqlite3.Error as exc:
+                raise self._damaged(exc) from None
+            try:
+                yield c
+            except sqlite3.Error as exc:
+                c.execute("ROLLBACK")
+                raise self._damaged(exc) from None
+            except BaseException:
+                c.execute("ROLLBACK")
+                raise
+            try:
+                c.execute("COMMIT")
+            except sqlite3.Error as exc:
+                if c.in_transaction:
+                    c.execute("ROLLBACK")
+                raise self._damaged(exc) from None
+
+    @contextmanager
+    def _read(self) -> Iterator[sqlite3.Connection]:
+        with self._lock:
+            try:
+                yield self._conn
+            except sqlite3.Error as exc:
+                raise self._damaged(exc) from None
+
+    # ----- players ----------------------------------------------------------------------------
+    @staticmethod
+    def _check_name(what: str, name: str) -> str:
+        if not isinstance(name, str) or not name.strip() or len(name.strip()) > 40:
+            raise StoreError(f"a {what} name must be 1 to 40 characters, got {name!r}")
+        return name.strip()
+
+    def players(self) -> list[str]:
+        """Every player name, sorted."""
+        with self._read() as c:
+            return [r[0] for r in c.execute("SELECT name FROM players ORDER BY name")]
+
+    def ensure_player(self, name: str) -> None:
+        """Add a player if not there yet."""
+        name = self._check_name("player", name)
+        with self._write() as c:
+            c.execute(
+                "INSERT OR IGNORE INTO players (name, created) VALUES (?, ?)",
+                (name, iso_utc(utc_now())),
+            )
+
+    # ----- sessions ---------------------------------------------------------------------------
+    def start_session(self, player: str, table: str, drill: str) -> int:
+        """Open a session (adding the player if new); returns its id."""
+        player = self._check_name("player", player)
+        table = self._check_name("table", table)
+        with self._write() as c:
+            now = iso_utc(utc_now())
+            c.execute("INSERT OR IGNORE INTO players (name, created) VALUES (?, ?)", (player, now))
+            cur = c.execute(
+                "INSERT INTO sessions (player, table_name, drill, started) VALUES (?, ?, ?, ?)",
+                (player, table, drill or "", now),
+            )
+            return int(cur.lastrowid or 0)
+
+    def end_session(self, session_id: int) -> None:
+        """Mark a session ended (ending it twice keeps the first end time)."""
+        with self._write() as c:
+            found = c.execute("SELECT 1 FROM sessions WHERE id = ?", (session_id,)).fetchone()
+            if found is None:
+                raise StoreError(f"there is no session {session_id} in {self.path}")
+            c.execute(
+                "UPDATE sessions SET ended = ? WHERE id = ? AND ended IS NULL",
+                (iso_utc(utc_now()), session_id),
+            )
+
+    def sessions(self, player: str | None = None, table: str | None = None) -> list[SessionInfo]:
+        """Sessions, oldest first, with their attempt and hit counts."""
+        where, args = [], []
+        if player is not None:
+            where.append("s.player = ?")
+            args.append(player)
+        if table is not None:
+            where.append("s.table_name = ?")
+            args.append(table)
+        sql = (
+            "SELECT s.id, s.player, s.table_name, s.drill, s.started, s.ended, "
+            "COUNT(a.id), COALESCE(SUM(a.result = 'hit'), 0) "
+            "FROM sessions s LEFT JOIN attempts a ON a.session_id = s.id"
+            + (" WHERE " + " AND ".join(where) if where else "")
+            + " GROUP BY s.id ORDER BY s.started, s.id"
+        )
+        with self._read() as c:
+            rows = c.execute(sql, args).fetchall()
+        return [
+            SessionInfo(
+                r[0],
+                r[1],
+                r[2],
+                r[3],
+                datetime.fromisoformat(r[4]),
+                datetime.fromisoformat(r[5]) if r[5] else None,
+                int(r[6]),
+                int(r[7]),
+            )
+            for r in rows
+        ]
+
+    # ----- attempts ---------------------------------------------------------------------------
+    def log(self, attempt: Attempt) -> Attempt:
+        """Validate and save one attempt, committed before returning; returns it with its id."""
+        validate_attempt(attempt)
+        row = _to_row(attempt)
+        ident = attempt_identity(attempt)
+        with self._write() as c:
+            if attempt.session is not None:
+                found = c.execute(
+                    "SELECT 1 FROM sessions WHERE id = ?", (attempt.session,)
+                ).fetchone()
+                if found is None:
+                    raise StoreError(f"there is no session {attempt.session} in {self.path}")
+            cur = c.execute(
+                f"INSERT INTO attempts ({_COLS}, ident) VALUES ({', '.join('?' * 28)})",
+                (*row, ident),
+            )
+            new_id = int(cur.lastrowid or 0)
+            c.execute(
+                "INSERT OR IGNORE INTO players (name, created, created_by) VALUES (?, ?, ?)",
+                (attempt.player, row[0], new_id),
+            )
+        return replace(attempt, when=datetime.fromisoformat(row[0]), id=new_id)
+
+    def undo_last(self, session_id: int) -> Attempt | None:
+        """Remove the latest attempt of a session and return it (None if it has none).
+
+        The database is left as it was before that attempt was logged: a player the attempt
+        itself added is removed with it.
+        """
+        with self._write() as c:
+            r = c.execute(
+                f"SELECT {_COLS}, id FROM attempts WHERE session_id = ? ORDER BY id DESC LIMIT 1",
+                (session_id,),
+            ).fetchone()
+            if r is None:
+                return None
+            c.execute("DELETE FROM attempts WHERE id = ?", (r[-1],))
+            c.execute("DELETE FROM players WHERE name = ? AND created_by = ?", (r[1], r[-1]))
+        return _from_row(r, r[-1])
+
+    @staticmethod
+    def _filters(
+        player: str | None,
+        table: str | None,
+        family: str | None,
+        since: datetime | None,
+        until: datetime | None,
+        session: int | None,
+    ) -> tuple[str, list[Any]]:
+        where: list[str] = []
+        args: list[Any] = []
+        for col, val in (
+            ("player", player),
+            ("table_name", table),
+            ("family", family),
+            ("session_id", session),
+        ):
+            if val is not None:
+                where.append(f"{col} = ?")
+                args.append(val)
+        if since is not None:
+            where.append("at >= ?")
+            args.append(iso_utc(since if since.tzinfo else since.replace(tzinfo=UTC)))
+        if until is not None:
+            where.append("at < ?")
+            args.append(iso_utc(until if until.tzinfo else until.replace(tzinfo=UTC)))
+        return (" WHERE " + " AND ".join(where) if where else ""), args
+
+    def attempts(
+        self,
+        player: str | None = None,
+        table: str | None = None,
+        family: str | None = None,
+        since: datetime | None = None,
+        until: datetime | None = None,
+        session: int | None = None,
+    ) -> list[Attempt]:
+        """Attempts matching every given filter, ordered by time then id.
+
+        ``since`` is inclusive, ``until`` exclusive; naive times are taken as UTC.
+        """
+        where, args = self._filters(player, table, family, since, until, session)
+        with self._read() as c:
+            rows = c.execute(
+                f"SELECT {_COLS}, id FROM attempts{where} ORDER BY at, id", args
+            ).fetchall()
+        return [_from_row(r, r[-1]) for r in rows]
+
+    def count_attempts(
+        self,
+        player: str | None = None,
+        table: str | None = None,
+        family: str | None = None,
+        since: datetime | None = None,
+        until: datetime | None = None,
+        session: int | None = None,
+    ) -> int:
+        """How many attempts match the filters (the same filters as ``attempts``)."""
+        where, args = self._filters(player, table, family, since, until, session)
+        with self._read() as c:
+            return int(c.execute(f"SELECT COUNT(*) FROM attempts{where}", args).fetchone()[0])
+
+    def import_attempts(self, items: Sequence[Attempt]) -> tuple[int, int]:
+        """Add attempts from elsewhere; returns (added, duplicates skipped).
+
+        An attempt whose full content (every field but id and session) is already stored, or
+        appears earlier in ``items``, is skipped, so importing a file twice adds nothing. Imported
+        attempts belong to no session. Work is committed in chunks of a few thousand, so a
+        window logging meanwhile waits only briefly; an interrupted import can be run again.
+        """
+        checked = [validate_attempt(a) for a in items]
+        added = dups = 0
+        seen: set[str] = set()
+        for start in range(0, len(checked), _IMPORT_CHUNK):
+            chunk = checked[start : start + _IMPORT_CHUNK]
+            with self._write() as c:
+                for a in chunk:
+                    ident = attempt_identity(a)
+                    if (
+                        ident in seen
+                        or c.execute(
+                            "SELECT 1 FROM attempts WHERE ident = ? LIMIT 1", (ident,)
+                        ).fetchone()
+                    ):
+                        dups += 1
+                        continue
+                    seen.add(ident)
+                    row = _to_row(replace(a, session=None))
+                    c.execute(
+                        f"INSERT INTO attempts ({_COLS}, ident) VALUES ({', '.join('?' * 28)})",
+                        (*row, ident),
+                    )
+                    c.execute(
+                        "INSERT OR IGNORE INTO players (name, created) VALUES (?, ?)",
+                        (a.player, row[0]),
+                    )
+                    added += 1
+        return added, dups
+
+    # ----- tables -----------------------------------------------------------------------------
+    def save_table(self, spec: TableSpec) -> None:
+        """Store (or replace) a custom table spec. Built-in names are reserved."""
+        if spec.name in BUILTIN_TABLES:
+            raise TableError(f"{spec.name!r} is a built-in table; give your table another name")
+        data = json.dumps(table_to_mapping(spec), sort_keys=True)
+        with self._write() as c:
+            c.execute(
+                "INSERT OR REPLACE INTO tables (name, spec, saved) VALUES (?, ?, ?)",
+                (spec.name, data, iso_utc(utc_now())),
+            )
+
+    def tables(self) -> dict[str, TableSpec]:
+        """The stored custom tables by name."""
+        with self._read() as c:
+            rows = c.execute("SELECT name, spec FROM tables ORDER BY name").fetchall()
+        return {name: self._spec(name, text) for name, text in rows}
+
+    def _spec(self, name: str, text: str) -> TableSpec:
+        try:
+            data = json.loads(text)
+        except json.JSONDecodeError:
+            raise StoreError(
+                f"the stored table {name!r} in {self.path} is damaged; add it again with "
+                "'tablecoach tables add FILE'"
+            ) from None
+        return table_from_mapping(data, f"{self.path} (table {name!r})")
+
+    def get_table(self, name: str) -> TableSpec:
+        """A built-in or stored table by name; unknown names get a TableError listing both."""
+        if name in BUILTIN_TABLES:
+            return BUILTIN_TABLES[name]
+        with self._read() as c:
+            r = c.execute("SELECT spec FROM tables WHERE name = ?", (name,)).fetchone()
+            if r is None:
+                stored = [x[0] for x in c.execute("SELECT name FROM tables ORDER BY name")]
+        if r is not None:
+            return self._spec(name, r[0])
+        names = ", ".join([*BUILTIN_TABLES, *stored])
+        raise TableError(
+            f"unknown table {name!r}: known tables are {names}; "
+            "add your own with 'tablecoach tables add FILE'"
+        )
+
+    # ----- calibrations -----------------------------------------------------------------------
+    def save_calibration(
+        self, table: str, player: str, params: dict[str, Any], attempts: int
+    ) -> None:
+        """Keep a fitted calibration (history is kept; the newest is the one in use)."""
+        try:
+            text = json.dumps(params, sort_keys=True, allow_nan=False)
+        except (TypeError, ValueError) as exc:
+            raise StoreError(f"calibration parameters must be plain JSON values ({exc})") from None
+        with self._write() as c:
+            c.execute(
+                "INSERT INTO calibrations (table_name, player, params, attempts, at) "
+                "VALUES (?, ?, ?, ?, ?)",
+                (table, player, text, int(attempts), iso_utc(utc_now())),
+            )
+
+    def calibration(self, table: str, player: str) -> dict[str, Any] | None:
+        """The newest calibration for a table and player: {"params", "attempts", "when"}."""
+        with self._read() as c:
+            r = c.execute(
+                "SELECT params, attempts, at FROM calibrations WHERE table_name = ? AND player = ? "
+                "ORDER BY id DESC LIMIT 1",
+                (table, player),
+            ).fetchone()
+        if r is None:
+            return None
+        return {"params": json.loads(r[0]), "attempts": int(r[1]), "when": r[2]}
+
+    def calibrations(self, table: str, player: str) -> list[dict[str, Any]]:
+        """Every stored calibration for a table and player, oldest first."""
+        with self._read() as c:
+            rows = c.execute(
+                "SELECT params, attempts, at FROM calibrations WHERE table_name = ? AND player = ? "
+                "ORDER BY id",
+                (table, player),
+            ).fetchall()
+        return [{"params": json.loads(p), "attempts": int(n), "when": w} for p, n, w in rows]
+
+
+__all__ = [
+    "SCHEMA_VERSION",
+    "SessionInfo",
+    "Store",
+    "StoreError",
+    "attempt_identity",
+    "iso_utc",
+]
