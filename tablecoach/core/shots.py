@@ -12,7 +12,7 @@ radius inside the nose), solved by unfolding (see geometry.py). Physical models 
 from __future__ import annotations
 
 import math
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
 from typing import Literal
 
@@ -347,10 +347,11 @@ def _box(table: TableSpec) -> tuple[float, float, float, float]:
     return (r, table.length - r, r, table.width - r)
 
 
-_GEOM: dict[int, tuple[TableSpec, dict[str, tuple[tuple[float, float], ...]]]] = {}
+_Segs = dict[RailName, tuple[tuple[float, float], ...]]
+_GEOM: dict[int, tuple[TableSpec, _Segs]] = {}
 
 
-def _segments(table: TableSpec) -> dict[str, tuple[tuple[float, float], ...]]:
+def _segments(table: TableSpec) -> _Segs:
     """Cushion stretches per rail, cached by table identity (hashing a spec is slow)."""
     hit = _GEOM.get(id(table))
     if hit is not None and hit[0] is table:
@@ -450,10 +451,13 @@ def trace_ideal(table: TableSpec, setup: Setup, direction: Point) -> Trace:
             ty = (ymin - p[1]) / d[1]
         else:
             ty = math.inf
+        rail: RailName
         if tx <= ty:
-            t, rail = tx, ("foot" if d[0] > 0 else "head")
+            t = tx
+            rail = "foot" if d[0] > 0 else "head"
         else:
-            t, rail = ty, ("right" if d[1] > 0 else "left")
+            t = ty
+            rail = "right" if d[1] > 0 else "left"
         t = max(t, 0.0)
         q = (p[0] + t * d[0], p[1] + t * d[1])
         if not done:
@@ -481,21 +485,21 @@ def trace_ideal(table: TableSpec, setup: Setup, direction: Point) -> Trace:
                     outcome = f"runs into another ball after {_rails_text(hit)}"
         along = q[1] if rail in ("head", "foot") else q[0]
         if walls == n + 1:
-            landing = RailPoint(rail, along)  # type: ignore[arg-type]
+            landing = RailPoint(rail, along)
         if _on_cushion(segs[rail], along):
             if not done:
                 path.append(q)
-                hit.append(rail)  # type: ignore[arg-type]
-                contacts.append(RailPoint(rail, along))  # type: ignore[arg-type]
+                hit.append(rail)
+                contacts.append(RailPoint(rail, along))
             d = reflect_vector(d, rail)
             p = q
             if done and landing is not None:
                 break
             continue
         # the ball reaches a pocket opening: it ends here, landing included
-        pocket = _pocket_at(table, rail, along)  # type: ignore[arg-type]
+        pocket = _pocket_at(table, rail, along)
         if landing is None:
-            landing = RailPoint(rail, along)  # type: ignore[arg-type]
+            landing = RailPoint(rail, along)
         if not done:
             path.append(q)
             clean = clean_entry(pocket, p, d, table.ball_radius)
@@ -623,7 +627,7 @@ def solve_ideal(table: TableSpec, setup: Setup, stroke: Stroke | None = None) ->
         RailPoint(r, c[1] if r in ("head", "foot") else c[0])
         for r, c in zip(setup.family.rails, contacts, strict=True)
     )
-    notes = ()
+    notes: tuple[str, ...] = ()
     if cut is not None and cut > math.radians(70):
         notes = (f"thin cut ({math.degrees(cut):.0f} degrees): hard to send the object ball true",)
     return Aim(
@@ -670,7 +674,7 @@ def _margin(
     setup: Setup,
     rail: RailName,
     reading: float,
-    trace,  # type: ignore[no-untyped-def]
+    trace: Callable[[Point], Trace],
     tol: float = 4e-4,
 ) -> tuple[float, float]:
     """How far the reading may move either way and still score (metres along the sight line).

@@ -286,7 +286,7 @@ def _segments(t: TableSpec, rail: RailName) -> tuple[tuple[float, float], ...]:
 def _rail(rail: str) -> RailName:
     if rail not in RAILS:
         raise TableError(f"unknown rail {rail!r}: use one of {', '.join(RAILS)}")
-    return rail  # type: ignore[return-value]
+    return rail
 
 
 def check_rail(rail: str) -> RailName:
@@ -441,7 +441,7 @@ def table_from_mapping(data: dict[str, Any], source: str = "<table>") -> TableSp
         raw = data.get(sec, {})
         if not isinstance(raw, dict):
             raise fail(sec, "must be a table")
-        vals = {}
+        vals: dict[str, Any] = {}
         allowed = cls.__dataclass_fields__
         for key, value in raw.items():
             if key not in allowed:
