@@ -1,0 +1,28 @@
+"""Messages the practice screen's workers send back to it when slow work is done."""
+
+from __future__ import annotations
+
+from textual.message import Message
+
+from tablecoach.core.shots import Aim, Convergence
+
+
+class AimSolved(Message):
+    """An aim solve finished (``aim`` set) or failed (``error`` set); ``token`` names the setup
+    it was for, so a late answer for a setup already left behind is dropped."""
+
+    def __init__(self, token: int, aim: Aim | None, error: str = "", note: str = "") -> None:
+        super().__init__()
+        self.token = token
+        self.aim = aim
+        self.error = error
+        self.note = note
+
+
+class ConvergenceFound(Message):
+    """The convergence point for the shown setup (None when too few lines had a clean path)."""
+
+    def __init__(self, token: int, convergence: Convergence | None) -> None:
+        super().__init__()
+        self.token = token
+        self.convergence = convergence

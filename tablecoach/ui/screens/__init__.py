@@ -1,0 +1,1 @@
+"""Screens of the practice app: practice, setup, help, summary (and history, when installed)."""

@@ -1,0 +1,71 @@
+"""The help screen: what each key does, and a word of caution about the laptop on the rail."""
+
+from __future__ import annotations
+
+from rich.table import Table as RichTable
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import VerticalScroll
+from textual.screen import ModalScreen
+from textual.widgets import Footer, Static
+
+KEYS = (
+    ("h", "hit: the shot did what it should; logged with the aim's predicted landing"),
+    (
+        "m",
+        "miss: then where the ball crossed the rail (arrows in quarter diamonds, "
+        "up/down another rail, or type the number), Enter saves, Escape cancels",
+    ),
+    ("u", "undo the last attempt of this session; its setup comes back"),
+    ("n", "skip this setup without logging it"),
+    ("s", "next speed preset for this attempt (the aim is solved again)"),
+    ("p", "pin this zone for the next 10 setups; p again unpins (with the coach)"),
+    ("v", "history: streaks, rates and trends (when installed)"),
+    ("t", "setup: table, drill pack, player"),
+    ("d", "dark or light colours"),
+    ("ctrl+p", "command palette: every action by name"),
+    ("?", "this help"),
+    ("q", "quit with a session summary"),
+)
+
+READING = (
+    "Place the balls as the card says: diamonds from the nearer end rail and the nearer long "
+    "rail, ball centre to cushion nose (x runs from the head rail, y from the left rail, standing "
+    "at the head rail). Aim over the sight the card names: the cue line crosses the line of the "
+    "diamonds there, which is not the cushion contact point. The margin is how far the reading may "
+    "move each way and still score. Every attempt is saved the moment you press its key."
+)
+
+CAUTION = (
+    "Keep the laptop where no ball or cue can reach it, not on the rail line of the shot; on "
+    "power shots keep onlookers clear and follow the room's own rules."
+)
+
+
+class HelpScreen(ModalScreen[None]):
+    """Keys and how to read the card."""
+
+    BINDINGS = [
+        Binding("escape", "close", "Back"),
+        Binding("question_mark", "close", "Back", key_display="?", show=False),
+        Binding("q", "close", "Back", show=False),
+    ]
+
+    def compose(self) -> ComposeResult:
+        grid = RichTable.grid(padding=(0, 2))
+        grid.add_column(style="bold", no_wrap=True)
+        grid.add_column()
+        for key, what in KEYS:
+            grid.add_row(key, what)
+        with VerticalScroll(id="help-box"):
+            yield Static(Text("Keys", style="bold underline"))
+            yield Static(grid)
+            yield Static(Text("\nReading the card", style="bold underline"))
+            yield Static(READING)
+            yield Static(Text("\nCaution", style="bold underline"))
+            yield Static(CAUTION)
+        yield Footer()
+
+    def action_close(self) -> None:
+        self.dismiss(None)

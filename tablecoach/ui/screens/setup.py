@@ -1,0 +1,106 @@
+"""The setup screen: pick the table, the drill pack and the player, by keyboard alone."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical
+from textual.screen import ModalScreen
+from textual.widgets import Footer, Input, Label, OptionList, Static
+from textual.widgets.option_list import Option
+
+
+@dataclass(frozen=True, slots=True)
+class Choice:
+    """What the player picked."""
+
+    table: str
+    drill: str
+    player: str
+
+
+class SetupScreen(ModalScreen[Choice | None]):
+    """Tab moves between the lists and the name; arrows pick; Enter on the name (or ctrl+s)
+    starts a new session with the picks; Escape goes back unchanged."""
+
+    BINDINGS = [
+        Binding("ctrl+s", "start", "Start session", priority=True),
+        Binding("escape", "cancel", "Back"),
+        Binding("tab", "app.focus_next", "Next field", show=True),
+    ]
+
+    def __init__(
+        self,
+        tables: list[tuple[str, str]],
+        drills: list[tuple[str, str]],
+        players: list[str],
+        current: Choice,
+    ) -> None:
+        super().__init__()
+        self.tables = tables
+        self.drills = drills
+        self.players = players
+        self.current = current
+        self.message = ""
+
+    def compose(self) -> ComposeResult:
+        with Vertical(id="setup-box"):
+            yield Static("New session: table, drill pack, player", id="setup-title")
+            with Horizontal(id="setup-lists"):
+                with Vertical(classes="setup-col"):
+                    yield Label("Table")
+                    yield OptionList(
+                        *[Option(f"{n}  {d}", id=n) for n, d in self.tables], id="tables"
+                    )
+                with Vertical(classes="setup-col"):
+                    yield Label("Drill pack")
+                    yield OptionList(
+                        *[Option(f"{n}  {d}", id=n) for n, d in self.drills], id="drills"
+                    )
+            yield Label("Player (known: " + (", ".join(self.players) or "none yet") + ")")
+            yield Input(value=self.current.player, id="player", max_length=40)
+            yield Static("", id="setup-message")
+        yield Footer()
+
+    def on_mount(self) -> None:
+        for wid, items, cur in (
+            ("#tables", self.tables, self.current.table),
+            ("#drills", self.drills, self.current.drill),
+        ):
+            ol = self.query_one(wid, OptionList)
+            names = [n for n, _ in items]
+            if cur in names:
+                ol.highlighted = names.index(cur)
+            elif names:
+                ol.highlighted = 0
+        self.query_one("#tables", OptionList).focus()
+
+    def on_option_list_option_selected(self, event: OptionList.OptionSelected) -> None:
+        self.focus_next()
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        self.action_start()
+
+    def _picked(self, wid: str) -> str | None:
+        ol = self.query_one(wid, OptionList)
+        if ol.highlighted is None:
+            return None
+        return ol.get_option_at_index(ol.highlighted).id
+
+    def action_start(self) -> None:
+        table = self._picked("#tables")
+        drill = self._picked("#drills")
+        player = self.query_one("#player", Input).value.strip()
+        msg = self.query_one("#setup-message", Static)
+        if not player or len(player) > 40:
+            msg.update("type a player name of 1 to 40 characters")
+            return
+        if table is None or drill is None:
+            msg.update("pick a table and a drill pack with the arrow keys")
+            return
+        self.dismiss(Choice(table, drill, player))
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)

@@ -1,0 +1,1 @@
+"""Widgets and helpers of the practice app."""

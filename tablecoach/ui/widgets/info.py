@@ -1,0 +1,90 @@
+"""The words beside the table: where to place the balls, the aim, speed, spin, margin and why."""
+
+from __future__ import annotations
+
+from rich.console import Group, RenderableType
+from rich.table import Table as RichTable
+from rich.text import Text
+from textual.widgets import Static
+
+from tablecoach.core.shots import Aim, Convergence, Stroke
+from tablecoach.core.table import TableSpec
+
+from . import wording as w
+from .session import Pick, Stats
+
+POWER_CAUTION = (
+    "power speed: keep the laptop and onlookers off the rail and out of the balls' way; "
+    "follow the room's rules on power shots"
+)
+
+
+def card(
+    table: TableSpec,
+    pick: Pick | None,
+    stroke: Stroke,
+    aim: Aim | None,
+    conv: Convergence | None,
+    status: str,
+    error: str = "",
+) -> RenderableType:
+    """The setup card as one Rich renderable."""
+    if pick is None:
+        return Text("Dealing the first setup...")
+    setup = pick.setup
+    title = Text(setup.family.title or setup.family.name, style="bold")
+    title.append(f"  {w.target_text(setup)}", style="")
+    grid = RichTable.grid(padding=(0, 1), expand=True)
+    grid.add_column(style="bold", no_wrap=True)
+    grid.add_column(ratio=1)
+    for i, line in enumerate(w.placements(table, setup)):
+        grid.add_row("Place" if i == 0 else "", line)
+    if error:
+        grid.add_row("Aim", Text(error, style="bold red"))
+    elif aim is None:
+        grid.add_row("Aim", Text("working out the aim...", style="italic"))
+    else:
+        grid.add_row("Aim", Text(w.aim_text(table, aim), style="bold"))
+    grid.add_row("Speed", w.speed_text(table, stroke))
+    grid.add_row("Spin", w.spin_text(stroke))
+    if aim is not None and not error:
+        grid.add_row("Margin", w.margin_text(table, aim))
+        grid.add_row("Lands", f"{w.landing_text(table, aim.landing)} (a hit logs this)")
+        grid.add_row("Conv.", w.convergence_text(table, conv) if conv else "working it out...")
+        if aim.cut_angle is not None:
+            import math
+
+            grid.add_row("Cut", f"{math.degrees(aim.cut_angle):.0f} degrees on the object ball")
+        for note in aim.notes:
+            grid.add_row("Note", note)
+    if stroke.speed >= 3.2:
+        grid.add_row("Care", Text(POWER_CAUTION, style="yellow"))
+    grid.add_row("Why", pick.why)
+    if status:
+        grid.add_row("Table", status)
+    return Group(title, grid)
+
+
+def session_line(stats: Stats, earlier: Stats, table_name: str, player: str) -> Text:
+    """Running count and streak of this session, and what was logged before it."""
+    t = Text()
+    t.append(f"{player} on {table_name}  ", style="bold")
+    rate = f" ({100 * stats.hits / stats.shots:.0f}%)" if stats.shots else ""
+    t.append(f"this session: {stats.shots} shots, {stats.hits} hits{rate}, ")
+    t.append(f"streak {stats.streak}", style="bold")
+    t.append(f" (best {stats.best})")
+    if earlier.shots:
+        t.append(f"   before: {earlier.shots} shots, {earlier.hits} hits", style="dim")
+    return t
+
+
+class InfoCard(Static):
+    """The setup card widget."""
+
+
+class SessionBar(Static):
+    """The one-line running count."""
+
+
+class MessageLine(Static):
+    """One line of feedback: what was logged, or why a key was refused."""

@@ -1,0 +1,255 @@
+"""The practice session without the screen: dealing setups, building and logging attempts."""
+
+from __future__ import annotations
+
+import importlib.util
+from dataclasses import dataclass, replace
+from typing import Any
+
+import numpy as np
+
+from tablecoach.core import shots
+from tablecoach.core.records import Attempt, utc_now
+from tablecoach.core.shots import Aim, Setup, Stroke
+from tablecoach.core.store import Store
+from tablecoach.core.table import TableSpec
+
+from .wording import landing_diamonds, shown_reading
+
+SPEED_CYCLE = ("slow", "medium", "fast", "power")
+
+
+def physical_available() -> bool:
+    """True once the physical aim model (core/physics/aim.py) is installed."""
+    try:
+        return importlib.util.find_spec("tablecoach.core.physics.aim") is not None
+    except ModuleNotFoundError:
+        return False
+
+
+def zone_label(zone: Any) -> str:
+    """A zone (the coach's Zone, a string or None) as the short label stored with an attempt."""
+    if zone is None:
+        return ""
+    if isinstance(zone, str):
+        return zone
+    return str(getattr(zone, "label", zone))
+
+
+@dataclass(frozen=True, slots=True)
+class Pick:
+    """One setup to shoot: the dealt setup and stroke, its zone and why it was picked."""
+
+    setup: Setup
+    stroke: Stroke
+    label: str
+    zone: Any
+    why: str
+
+
+@dataclass(frozen=True, slots=True)
+class Stats:
+    """The running count of a session."""
+
+    shots: int
+    hits: int
+    streak: int
+    best: int
+
+    @property
+    def misses(self) -> int:
+        return self.shots - self.hits
+
+
+def stats_of(attempts: list[Attempt]) -> Stats:
+    """Shots, hits, the current run of hits and the longest run, in logged order."""
+    hits = streak = best = 0
+    for a in attempts:
+        if a.hit:
+            hits += 1
+            streak += 1
+            best = max(best, streak)
+        else:
+            streak = 0
+    return Stats(len(attempts), hits, streak, best)
+
+
+class Dealer:
+    """The next setup: the coach's scheduler when installed, else the drill pack in dealt order."""
+
+    def __init__(
+        self,
+        table: TableSpec,
+        drill: Any,
+        attempts: list[Attempt],
+        rng: np.random.Generator,
+        model: str = "ideal",
+    ) -> None:
+        self.table = table
+        self.drill = drill
+        self.rng = rng
+        self.model = model
+        self.scheduler: Any = None
+        try:
+            from tablecoach.core.coach import Scheduler  # noqa: PLC0415
+        except ImportError:
+            Scheduler = None  # noqa: N806
+        if Scheduler is not None:
+            self.scheduler = Scheduler(table, drill, list(attempts), rng, model=model)
+        self._queue: list[Any] = []
+        self._size = 0
+
+    @property
+    def coached(self) -> bool:
+        return self.scheduler is not None
+
+    def next(self) -> Pick:
+        if self.scheduler is not None:
+            choice = self.scheduler.next()
+            d = choice.dealt
+            return Pick(d.setup, d.stroke, d.label, choice.zone, str(choice.why))
+        from tablecoach.core.drills import deal  # noqa: PLC0415
+
+        if not self._queue:
+            self._queue = list(deal(self.table, self.drill, self.rng))
+            self._size = len(self._queue)
+            if not self._queue:
+                raise shots.ShotError("this drill pack deals no setups on this table")
+        d = self._queue.pop(0)
+        n = self._size - len(self._queue)
+        return Pick(d.setup, d.stroke, d.label, "", f"next in the pack ({n} of {self._size})")
+
+    def record(self, attempt: Attempt) -> None:
+        if self.scheduler is not None:
+            self.scheduler.record(attempt)
+
+    def rebuild(self, attempts: list[Attempt]) -> None:
+        """Start the scheduler again from these attempts (after an undo)."""
+        if self.scheduler is not None:
+            from tablecoach.core.coach import Scheduler  # noqa: PLC0415
+
+            self.scheduler = Scheduler(
+                self.table, self.drill, list(attempts), self.rng, model=self.model
+            )
+
+    def pin(self, zone: Any = None, family: str | None = None, count: int = 10) -> None:
+        if self.scheduler is not None:
+            self.scheduler.pin(zone=zone, family=family, count=count)
+
+    def unpin(self) -> None:
+        if self.scheduler is not None:
+            self.scheduler.unpin()
+
+
+def drill_name(drill: Any) -> str:
+    return str(getattr(drill, "name", drill))
+
+
+class Session:
+    """One practice session: the store, the table, the pack and the player, and what was logged.
+
+    Every attempt is logged to the store at once (committed before ``log`` returns).
+    """
+
+    def __init__(
+        self,
+        store: Store,
+        table: TableSpec,
+        drill: Any,
+        player: str,
+        rng: np.random.Generator,
+        model: str,
+    ) -> None:
+        self.store = store
+        self.table = table
+        self.drill = drill
+        self.player = player
+        self.rng = rng
+        self.model = model
+        self.earlier = store.attempts(player=player, table=table.name)
+        self.dealer = Dealer(table, drill, self.earlier, rng, model)
+        self.id = store.start_session(player, table.name, drill_name(drill))
+        self.logged: list[Attempt] = []
+        self.pick: Pick | None = None
+        self.stroke: Stroke = Stroke()
+        self.ended = False
+
+    # ----- setups -------------------------------------------------------------------------------
+    def deal(self) -> Pick:
+        self.pick = self.dealer.next()
+        self.stroke = self.pick.stroke
+        return self.pick
+
+    def show_again(self, attempt: Attempt) -> Pick:
+        """Put an undone attempt's setup and stroke back on the table."""
+        setup = shots.setup_of(self.table, attempt.shot)
+        stroke = Stroke(attempt.speed, attempt.english, attempt.follow)
+        zone = self.pick.zone if self.pick is not None and not attempt.zone else attempt.zone
+        self.pick = Pick(setup, stroke, attempt.shot.family, zone, "shown again after undo")
+        self.stroke = stroke
+        return self.pick
+
+    def next_speed(self) -> Stroke:
+        """The next speed preset after the current one, for this attempt only."""
+        name = shots.speed_name(self.stroke.speed)
+        i = SPEED_CYCLE.index(name) if name in SPEED_CYCLE else -1
+        nxt = SPEED_CYCLE[(i + 1) % len(SPEED_CYCLE)]
+        self.stroke = replace(self.stroke, speed=shots.SPEED_PRESETS[nxt])
+        return self.stroke
+
+    # ----- attempts ------------------------------------------------------------------------------
+    def attempt(self, aim: Aim, result: str, landing_rail: str, landing_at: float) -> Attempt:
+        """The record of one shot at the shown setup with the shown aim."""
+        assert self.pick is not None
+        reading = shown_reading(self.table, aim)
+        return Attempt(
+            when=utc_now(),
+            player=self.player,
+            table=self.table.name,
+            shot=shots.record_of(self.table, aim.setup),
+            speed=aim.stroke.speed,
+            english=aim.stroke.english,
+            follow=aim.stroke.follow,
+            aim_rail=aim.rail,
+            aim_given=reading,
+            aim_used=reading,
+            result=result,  # type: ignore[arg-type]
+            landing_rail=landing_rail,
+            landing_at=landing_at,
+            model=aim.model,
+            drill=drill_name(self.drill),
+            zone=zone_label(self.pick.zone),
+            session=self.id,
+        )
+
+    def log_hit(self, aim: Aim) -> Attempt:
+        at = landing_diamonds(self.table, aim.landing)
+        return self._log(self.attempt(aim, "hit", aim.landing.rail, at))
+
+    def log_miss(self, aim: Aim, rail: str, at: float) -> Attempt:
+        return self._log(self.attempt(aim, "miss", rail, at))
+
+    def _log(self, a: Attempt) -> Attempt:
+        saved = self.store.log(a)
+        self.logged.append(saved)
+        self.dealer.record(saved)
+        return saved
+
+    def undo(self) -> Attempt | None:
+        gone = self.store.undo_last(self.id)
+        if gone is None:
+            return None
+        self.logged = [a for a in self.logged if a.id != gone.id]
+        self.dealer.rebuild(self.earlier + self.logged)
+        return gone
+
+    def stats(self) -> Stats:
+        return stats_of(self.logged)
+
+    def earlier_stats(self) -> Stats:
+        return stats_of(self.earlier)
+
+    def end(self) -> None:
+        if not self.ended:
+            self.ended = True
+            self.store.end_session(self.id)

@@ -1,0 +1,117 @@
+"""Plain words for the practice screen: ball placement, aims, speeds and landings in diamonds."""
+
+from __future__ import annotations
+
+from tablecoach.core.shots import (
+    Aim,
+    Convergence,
+    RailPoint,
+    Setup,
+    Stroke,
+    speed_name,
+    travel_lengths,
+)
+from tablecoach.core.table import TableSpec
+
+RAIL_ORDER = ("head", "left", "foot", "right")
+"""The order the landing prompt steps through rails with up/down (round the table)."""
+
+
+def num(v: float, places: int = 2) -> str:
+    """A diamond figure without trailing zeros: 1.5, 2, 0.25, 3.13."""
+    text = f"{v:.{places}f}".rstrip("0").rstrip(".")
+    return "0" if text in ("-0", "") else text
+
+
+def placement(table: TableSpec, what: str, p: tuple[float, float]) -> str:
+    """Where to put a ball, as a player measures it: diamonds from the nearer end rail and the
+    nearer long rail (ball centre from the cushion nose), then the x/y diamonds."""
+    x, y = table.to_diamonds(*p)
+    along = f"{num(x)} from the head rail" if x <= 4.0 else f"{num(8.0 - x)} from the foot rail"
+    across = f"{num(y)} from the left rail" if y <= 2.0 else f"{num(4.0 - y)} from the right rail"
+    return f"{what}: {along}, {across}  (x {num(x)}, y {num(y)})"
+
+
+def placements(table: TableSpec, setup: Setup) -> list[str]:
+    """One line a ball, cue ball first."""
+    out = [placement(table, "cue ball", setup.cue)]
+    if setup.object is not None:
+        out.append(placement(table, "object ball", setup.object))
+    if setup.target_ball is not None:
+        out.append(placement(table, "target ball", setup.target_ball))
+    return out
+
+
+def target_text(setup: Setup) -> str:
+    """What the shot must do, in a few words."""
+    fam = setup.family
+    rails = ", ".join(fam.rails)
+    ball = "cue ball" if fam.travel == "cue" else "object ball"
+    if setup.pocket is not None:
+        return f"{ball} off the {rails} rail{'s' if len(fam.rails) > 1 else ''} into {setup.pocket}"
+    return f"{ball} off the {rails} rail{'s' if len(fam.rails) > 1 else ''} to the target ball"
+
+
+def aim_text(table: TableSpec, aim: Aim) -> str:
+    """The sight reading to aim over, with the cushion contact beside it."""
+    reading = shown_reading(table, aim)
+    first = aim.contacts[0] if aim.contacts else None
+    contact = ""
+    if first is not None:
+        contact = f" (meets the cushion at {num(table.along_to_diamonds(first.rail, first.at))})"
+    return f"aim over sight {num(reading)} on the {aim.rail} rail{contact}"
+
+
+def shown_reading(table: TableSpec, aim: Aim) -> float:
+    """The reading as shown and logged: diamonds along the first rail, to 0.01."""
+    return round(table.along_to_diamonds(aim.rail, aim.reading), 2)
+
+
+def landing_diamonds(table: TableSpec, p: RailPoint) -> float:
+    """A rail point in diamonds along its rail, to 0.01, kept on the rail."""
+    top = 8.0 if p.rail in ("left", "right") else 4.0
+    return min(max(round(table.along_to_diamonds(p.rail, p.at), 2), 0.0), top)
+
+
+def landing_text(table: TableSpec, p: RailPoint | None) -> str:
+    if p is None:
+        return "no landing rail"
+    return f"{p.rail} rail at {num(landing_diamonds(table, p))}"
+
+
+def speed_text(table: TableSpec, stroke: Stroke) -> str:
+    """Speed name, m/s off the tip and table lengths of roll on open cloth."""
+    lengths = travel_lengths(table, stroke.speed)
+    return (
+        f"{speed_name(stroke.speed)}: {stroke.speed:.2f} m/s off the tip, "
+        f"rolls about {lengths:.1f} table lengths"
+    )
+
+
+def spin_text(stroke: Stroke) -> str:
+    """English and follow/draw in tips, or a centre-ball hit."""
+    parts = []
+    if stroke.english:
+        side = "right" if stroke.english > 0 else "left"
+        parts.append(f"{num(abs(stroke.english))} tip {side} english")
+    if stroke.follow:
+        kind = "follow" if stroke.follow > 0 else "draw"
+        parts.append(f"{num(abs(stroke.follow))} tip {kind}")
+    return ", ".join(parts) if parts else "centre ball (no english)"
+
+
+def margin_text(table: TableSpec, aim: Aim) -> str:
+    """How far the reading may move each way and still score, in diamonds."""
+    unit = table.rail_unit(aim.rail)
+    lo, hi = aim.margin_minus / unit, aim.margin_plus / unit
+    return f"-{lo:.2f} / +{hi:.2f} diamonds (window {lo + hi:.2f})"
+
+
+def convergence_text(table: TableSpec, conv: Convergence | None) -> str:
+    """The convergence point in diamonds (often off the table), with its spread."""
+    if conv is None:
+        return "not found for this setup"
+    x, y = table.to_diamonds(*conv.point)
+    off = "" if 0.0 <= x <= 8.0 and 0.0 <= y <= 4.0 else " (off the table)"
+    spread = conv.spread / table.diamond
+    return f"x {num(x, 1)}, y {num(y, 1)}{off}; lines within {spread:.2f} diamonds"

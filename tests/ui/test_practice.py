@@ -1,0 +1,355 @@
+"""Pilot tests for every keyboard flow of the practice screen, against the real store."""
+
+from __future__ import annotations
+
+import io
+
+from rich.console import Console
+
+from tablecoach import paths
+from tablecoach.core import shots
+from tablecoach.core.store import Store, StoreError
+from tablecoach.ui.screens.practice import PracticeScreen
+from tablecoach.ui.widgets.landing import LandingPrompt
+
+SIZE = (100, 30)
+
+
+async def settle(pilot) -> None:
+    """Let the aim worker finish and its messages land."""
+    await pilot.pause()
+    await pilot.app.workers.wait_for_complete()
+    await pilot.pause()
+    await pilot.app.workers.wait_for_complete()
+    await pilot.pause()
+
+
+def text_of(app, selector: str) -> str:
+    """The plain text a widget shows (its content rendered at a wide width)."""
+    widget = app.screen.query_one(selector)
+    console = Console(width=200, file=io.StringIO(), record=True)
+    console.print(widget.content)
+    return console.export_text()
+
+
+def stored(app) -> list:
+    return app.store.attempts(session=app.practice.session.id)
+
+
+async def test_first_start_needs_no_setup(data_env):
+    """A first-time player lands in a session on the 9ft table and the default pack."""
+    from tablecoach.core import drills
+    from tablecoach.ui.app import build_app, default_player
+
+    app = build_app(seed=1, model="ideal")
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        assert isinstance(app.screen, PracticeScreen)
+        s = app.screen.session
+        assert s.table.name == "9ft"
+        assert s.player == default_player()
+        assert app.drill_name == drills.DEFAULT_DRILL
+        assert s.pick is not None and app.screen.aim is not None
+        assert app.store.sessions()[0].id == s.id
+
+
+async def test_hit_logs_the_shown_aim(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        screen = app.screen
+        aim = screen.aim
+        table = screen.session.table
+        await pilot.press("h")
+        await settle(pilot)
+        [a] = stored(app)
+        assert a.result == "hit"
+        # the record is the shown setup, in diamonds (core shots.record_of is the contract)
+        assert a.shot == shots.record_of(table, aim.setup)
+        reading = round(table.along_to_diamonds(aim.rail, aim.reading), 2)
+        assert a.aim_given == a.aim_used == reading
+        assert a.aim_rail == aim.rail
+        # a hit lands where the aim predicts
+        assert a.landing_rail == aim.landing.rail
+        assert abs(a.landing_at - table.along_to_diamonds(aim.landing.rail, aim.landing.at)) < 0.006
+        assert a.model == "ideal" and a.player == "tester" and a.table == "9ft"
+        assert a.session == screen.session.id
+        assert "1 shots, 1 hits" in text_of(app, "#session")
+        assert "streak 1" in text_of(app, "#session")
+        # the next setup is dealt and solved
+        assert screen.aim is not None and screen.aim is not aim
+
+
+async def test_miss_with_arrow_keys(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        predicted = app.screen.aim.landing.rail
+        await pilot.press("m")
+        await pilot.pause()
+        prompt = app.screen
+        assert isinstance(prompt, LandingPrompt)
+        start = prompt.at
+        await pilot.press("right", "right", "left")
+        assert (
+            abs(prompt.at - min(start + 0.25, 8.0 if predicted in ("left", "right") else 4.0))
+            < 1e-9
+        )
+        await pilot.press("up")
+        order = ("head", "left", "foot", "right")
+        new_rail = order[(order.index(predicted) + 1) % 4]
+        assert prompt.rail == new_rail
+        expected = prompt.at
+        await pilot.press("enter")
+        await settle(pilot)
+        [a] = stored(app)
+        assert a.result == "miss"
+        assert a.landing_rail == new_rail
+        assert abs(a.landing_at - expected) < 1e-9
+        assert "streak 0" in text_of(app, "#session")
+
+
+async def test_miss_typed_landing(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("m")
+        await pilot.pause()
+        rail = app.screen.rail
+        await pilot.press("1", ".", "7", "5", "enter")
+        await settle(pilot)
+        [a] = stored(app)
+        assert (a.result, a.landing_rail, a.landing_at) == ("miss", rail, 1.75)
+
+
+async def test_bad_landing_is_refused_and_nothing_lost(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("h")
+        await settle(pilot)
+        assert len(stored(app)) == 1
+        await pilot.press("m")
+        await pilot.pause()
+        prompt = app.screen
+        rail = prompt.rail
+        # off the rail: a short rail runs 0 to 4, a long rail 0 to 8 diamonds (the contract)
+        await pilot.press("9", "enter")
+        await pilot.pause()
+        assert app.screen is prompt
+        assert "off the" in prompt.error and rail in prompt.error
+        assert "9 is off" in text_of(app, "#landing-body")
+        assert len(stored(app)) == 1
+        # not a number
+        await pilot.press("backspace", ".", "enter")
+        await pilot.pause()
+        assert app.screen is prompt
+        assert "not a number" in prompt.error
+        # corrected, it saves
+        await pilot.press("backspace", "2", "enter")
+        await settle(pilot)
+        got = stored(app)
+        assert [a.result for a in got] == ["hit", "miss"]
+        assert got[1].landing_at == 2.0
+
+
+async def test_escape_cancels_a_miss(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        before = app.screen.session.pick
+        await pilot.press("m")
+        await pilot.pause()
+        await pilot.press("escape")
+        await settle(pilot)
+        assert stored(app) == []
+        assert app.screen.session.pick is before
+        assert "cancelled" in text_of(app, "#message")
+
+
+async def test_undo_removes_the_last_attempt(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("h")
+        await settle(pilot)
+        second = app.screen.session.pick
+        await pilot.press("m", "enter")
+        await settle(pilot)
+        assert [a.result for a in stored(app)] == ["hit", "miss"]
+        await pilot.press("u")
+        await settle(pilot)
+        assert [a.result for a in stored(app)] == ["hit"]
+        # the undone setup is back on the table to be logged again
+        table = app.screen.session.table
+        back = app.screen.session.pick.setup
+        assert shots.record_of(table, back) == shots.record_of(table, second.setup)
+        assert "undone" in text_of(app, "#message")
+        assert "1 shots, 1 hits" in text_of(app, "#session")
+        await pilot.press("u", "u")
+        await settle(pilot)
+        assert stored(app) == []
+        assert "nothing to undo" in text_of(app, "#message")
+
+
+async def test_skip_deals_another_setup_without_logging(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        first = app.screen.session.pick
+        await pilot.press("n")
+        await settle(pilot)
+        assert app.screen.session.pick is not first
+        assert app.screen.session.pick.setup != first.setup
+        assert stored(app) == []
+        assert app.screen.aim is not None
+
+
+async def test_speed_key_cycles_and_resolves(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        speed0 = app.screen.session.stroke.speed
+        await pilot.press("s")
+        await settle(pilot)
+        speed1 = app.screen.session.stroke.speed
+        assert speed1 != speed0
+        assert speed1 in shots.SPEED_PRESETS.values()
+        assert app.screen.aim.stroke.speed == speed1
+        await pilot.press("h")
+        await settle(pilot)
+        assert stored(app)[0].speed == speed1
+
+
+async def test_quit_and_reopen_shows_the_attempts(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("h")
+        await settle(pilot)
+        await pilot.press("m", "enter")
+        await settle(pilot)
+        await pilot.press("q")
+        await pilot.pause()
+        summary = text_of(app, "#summary-grid")
+        assert "attempts" in summary and "best streak" in summary
+        await pilot.press("q")
+        await pilot.pause()
+    assert app.return_code == 0
+    assert app.summary == "session: 2 attempts, 1 hits, current streak 0, best streak 1"
+    app.store.close()
+    # the attempts are on disk, in a session that was closed
+    with Store.open(paths.db_path()) as st:
+        assert [a.result for a in st.attempts(player="tester")] == ["hit", "miss"]
+        assert st.sessions()[0].ended is not None
+    again = make_app()
+    async with again.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        line = text_of(again, "#session")
+        assert "this session: 0 shots" in line
+        assert "before: 2 shots, 1 hits" in line
+
+
+async def test_escape_from_summary_keeps_practising(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("q")
+        await pilot.pause()
+        await pilot.press("escape")
+        await pilot.pause()
+        assert isinstance(app.screen, PracticeScreen)
+
+
+async def test_help_opens_and_closes(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("question_mark")
+        await pilot.pause()
+        assert type(app.screen).__name__ == "HelpScreen"
+        await pilot.press("escape")
+        await pilot.pause()
+        assert isinstance(app.screen, PracticeScreen)
+
+
+async def test_theme_toggles(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        assert app.theme == "textual-dark"
+        await pilot.press("d")
+        assert app.theme == "textual-light"
+        await pilot.press("d")
+        assert app.theme == "textual-dark"
+
+
+async def test_palette_lists_every_action(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        titles = {c.title for c in app.get_system_commands(app.screen)}
+        for want in (
+            "Log a hit",
+            "Log a miss",
+            "Undo the last attempt",
+            "Skip this setup",
+            "Change speed",
+            "Change table, pack or player",
+            "Help",
+            "Quit with a summary",
+            "Dark or light",
+        ):
+            assert want in titles
+        # and every key is shown in the footer
+        shown = {k for k, ab in app.screen.active_bindings.items() if ab.binding.show}
+        for key in ("h", "m", "u", "n", "s", "t", "question_mark", "q", "d"):
+            assert key in shown
+
+
+async def test_setup_screen_changes_table(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        old = app.screen.session.id
+        await pilot.press("t")
+        await pilot.pause()
+        assert type(app.screen).__name__ == "SetupScreen"
+        await pilot.press("down", "ctrl+s")  # 9ft -> 8ft (built-in order)
+        await settle(pilot)
+        s = app.screen.session
+        assert s.table.name == "8ft" and s.id != old
+        ended = {i.id: i.ended for i in app.store.sessions()}
+        assert ended[old] is not None
+
+
+def test_damaged_database_is_one_line(data_env, capsys):
+    """Garbage in the database file: exit code 2 and one line, never a traceback."""
+    from types import SimpleNamespace
+
+    from tablecoach.ui.app import build_app, run_app
+
+    db = paths.db_path()
+    db.parent.mkdir(parents=True, exist_ok=True)
+    db.write_bytes(b"this is not a database" * 100)
+    try:
+        build_app(player="x")
+    except StoreError as exc:
+        assert "\n" not in str(exc)
+    else:
+        raise AssertionError("a damaged database must raise StoreError")
+    code = run_app(SimpleNamespace(table=None, drill=None, player=None))
+    err = capsys.readouterr().err
+    assert code == 2
+    assert err.startswith("tablecoach: ") and err.count("\n") == 1
+    assert "Traceback" not in err
+
+
+def test_unknown_table_is_one_line(data_env, capsys):
+    from types import SimpleNamespace
+
+    from tablecoach.ui.app import run_app
+
+    code = run_app(SimpleNamespace(table="12ft", drill=None, player=None))
+    err = capsys.readouterr().err
+    assert code == 2 and "12ft" in err and err.count("\n") == 1
