@@ -328,7 +328,6 @@ def legend(ascii_only: bool = False) -> Iterable[tuple[str, str, str]]:
         (g.cue, "cue", "cue"),
         (g.obj, "obj", "object"),
         (g.target, "target", "target"),
-        (g.path, "path", "path"),
         (g.contact, "contact", "contact"),
         (g.convergence, "convergence", "convergence"),
         (g.aim["left"], "aim", "aim"),
