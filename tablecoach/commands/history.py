@@ -129,7 +129,8 @@ def add_filter_options(p: argparse.ArgumentParser) -> None:
 
 
 def filters_from(args: argparse.Namespace) -> Filters:
-    return Filters(
+    """The filters of the command-line options, checked."""
+    f = Filters(
         player=args.player,
         table=args.table,
         family=args.family,
@@ -137,6 +138,9 @@ def filters_from(args: argparse.Namespace) -> Filters:
         until=parse_day(args.until, "--until"),
         session=args.session,
     )
+    if f.since and f.until and f.until < f.since:
+        raise HistoryError(f"--until {f.until} is before --since {f.since}")
+    return f
 
 
 def register(sub: Any) -> None:

@@ -427,6 +427,32 @@ def landing_bias(
     return out
 
 
+# ----- zones on the table -----------------------------------------------------------------
+
+
+def grid_rates(
+    attempts: Iterable[Attempt],
+    family: str | None = None,
+    speed: str | None = None,
+    confidence: float = 0.95,
+) -> dict[tuple[int, int], Rate]:
+    """Make rates per cell of the coach's zone grid (core/coach.py ``zone_of``), keyed
+    (col, row), pooled over families and speed bands unless ``family``/``speed`` pick one."""
+    from .coach import zone_of  # noqa: PLC0415  (coach owns the grid)
+
+    counts: dict[tuple[int, int], list[int]] = {}
+    for a in attempts:
+        if family is not None and a.shot.family != family:
+            continue
+        z = zone_of(a.shot, a.speed)
+        if speed is not None and z.speed != speed:
+            continue
+        c = counts.setdefault((z.col, z.row), [0, 0])
+        c[0] += a.result == "hit"
+        c[1] += 1
+    return {k: wilson(h, n, confidence) for k, (h, n) in counts.items()}
+
+
 # ----- the whole picture --------------------------------------------------------------------
 
 
@@ -613,6 +639,7 @@ __all__ = [
     "Streak",
     "WeekRate",
     "day_streak",
+    "grid_rates",
     "history_dict",
     "ideal_landings",
     "landing_bias",
