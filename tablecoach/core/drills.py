@@ -552,6 +552,12 @@ def sample_setups(table: TableSpec, drill: Drill, rng: np.random.Generator, n: i
     return [_draw(table, drill, int(k), rng) for k in ks]
 
 
+def check_pack(drill: Drill, tables: Iterable[TableSpec], rng: np.random.Generator) -> list[Dealt]:
+    """Deal one setup of every item on every table, raising DrillError if one has no clean
+    path; returns the setups dealt (used by ``tablecoach drills validate``)."""
+    return [_draw(t, drill, k, rng) for t in tables for k in range(len(drill.items))]
+
+
 def describe(drill: Drill) -> dict[str, Any]:
     """A pack as plain data (for --json output)."""
 
@@ -597,6 +603,7 @@ __all__ = [
     "all_drills",
     "builtin_dir",
     "builtin_drills",
+    "check_pack",
     "deal",
     "describe",
     "find_drill",

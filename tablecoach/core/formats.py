@@ -265,7 +265,7 @@ def read_jsonl(fh: IO[str]) -> tuple[list[Attempt], list[tuple[int, str]]]:
         if not line.strip():
             continue
         try:
-            obj = json.loads(line)
+            obj = json.loads(line.rstrip("\r\n"))
         except json.JSONDecodeError as exc:
             errors.append((n, f"line {n}: not valid JSON ({exc.msg} at column {exc.colno})"))
             continue
