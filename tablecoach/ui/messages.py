@@ -2,9 +2,29 @@
 
 from __future__ import annotations
 
+from typing import Any
+
 from textual.message import Message
 
 from tablecoach.core.shots import Aim, Convergence
+
+
+class SetupDealt(Message):
+    """The dealer picked a setup ahead of time, with its aim solved when it could be.
+
+    ``generation`` names the dealer state it was drawn from; a pin or a new session moves the
+    generation on, so a setup dealt before it is dropped. ``error`` says why nothing was dealt.
+    """
+
+    def __init__(
+        self, generation: int, pick: Any, aim: Aim | None, error: str = "", note: str = ""
+    ) -> None:
+        super().__init__()
+        self.generation = generation
+        self.pick = pick
+        self.aim = aim
+        self.error = error
+        self.note = note
 
 
 class AimSolved(Message):

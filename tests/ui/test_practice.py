@@ -353,3 +353,29 @@ def test_unknown_table_is_one_line(data_env, capsys):
     code = run_app(SimpleNamespace(table="12ft", drill=None, player=None))
     err = capsys.readouterr().err
     assert code == 2 and "12ft" in err and err.count("\n") == 1
+
+
+async def test_pin_keeps_the_zone(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        screen = app.screen
+        assert screen.session.dealer.coached
+        zone = screen.session.pick.zone
+        await pilot.press("p")
+        await settle(pilot)
+        assert "pinned" in text_of(app, "#message")
+        assert "Pinned" in text_of(app, "#notes")
+        # the next setups come from the pinned zone (coach.zone_of is the coach's own rule)
+        from tablecoach.core import coach
+
+        for _ in range(3):
+            await pilot.press("n")
+            await settle(pilot)
+            pick = screen.session.pick
+            rec = shots.record_of(screen.session.table, pick.setup)
+            assert coach.zone_of(rec, pick.stroke.speed) == zone
+        await pilot.press("p")
+        await settle(pilot)
+        assert "unpinned" in text_of(app, "#message")
+        assert "Pinned" not in text_of(app, "#notes")

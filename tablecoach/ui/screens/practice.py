@@ -8,7 +8,7 @@ from typing import Any
 from textual import work
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.containers import Horizontal, VerticalScroll
+from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import Screen
 from textual.widgets import Footer
 
@@ -16,11 +16,11 @@ from tablecoach.core import shots
 from tablecoach.core.shots import Aim, Convergence, Stroke
 from tablecoach.core.store import StoreError
 
-from ..messages import AimSolved, ConvergenceFound
+from ..messages import AimSolved, ConvergenceFound, SetupDealt
 from ..widgets import wording as w
-from ..widgets.info import InfoCard, MessageLine, SessionBar, card, session_line
+from ..widgets.info import InfoCard, MessageLine, NotesPanel, SessionBar, card, notes, session_line
 from ..widgets.landing import LandingPrompt
-from ..widgets.session import Session
+from ..widgets.session import REDRAWS, Session
 from ..widgets.table_panel import TablePanel
 
 
@@ -69,11 +69,18 @@ class PracticeScreen(Screen[None]):
         self.error = ""
         self.token = 0
         self.pinned = False
+        self.generation = 0
+        self.ahead: SetupDealt | None = None
+        self.dealing = False
+        self.waiting = False
+        self.model_note = ""
 
     # ----- layout ----------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
         with Horizontal(id="main"):
-            yield TablePanel(self.ascii_only, id="table-panel")
+            with Vertical(id="left"):
+                yield TablePanel(self.ascii_only, id="table-panel")
+                yield NotesPanel(id="notes")
             with VerticalScroll(id="side"):
                 yield InfoCard(id="card")
         yield SessionBar(id="session")
@@ -81,6 +88,7 @@ class PracticeScreen(Screen[None]):
         yield Footer()
 
     def on_mount(self) -> None:
+        self.say("h hit, m miss, ? help: each attempt is saved the moment you log it")
         self._deal(first=True)
 
     # ----- showing ---------------------------------------------------------------------------
@@ -91,11 +99,25 @@ class PracticeScreen(Screen[None]):
             s.table, pick.setup if pick else None, self.aim, self.conv, self._table_note()
         )
         self.query_one(InfoCard).update(
-            card(s.table, pick, s.stroke, self.aim, self.conv, self.status, self.error)
+            card(s.table, pick, s.stroke, self.aim, self.conv, self.error)
+        )
+        pinned = self._pinned_text()
+        self.query_one(NotesPanel).update(
+            notes(s.table, pick, self.aim, self.status, pinned, self.model_note)
         )
         self.query_one(SessionBar).update(
             session_line(s.stats(), s.earlier_stats(), s.table.name, s.player)
         )
+
+    def _pinned_text(self) -> str:
+        """What the coach has pinned, in words ("" when nothing is, or the pin has run out)."""
+        sched = self.session.dealer.scheduler
+        if not self.pinned or sched is None:
+            return ""
+        text = str(getattr(sched, "pinned", "") or "")
+        if not text:
+            self.pinned = False
+        return text
 
     def _table_note(self) -> str:
         if self.aim is None:
@@ -108,18 +130,60 @@ class PracticeScreen(Screen[None]):
         line.update(text)
 
     # ----- dealing and solving -----------------------------------------------------------------
+    # The next setup is dealt (and its aim solved) in a worker while the player shoots the one
+    # on the table, so a logged shot shows the next setup at once. The coach therefore picks
+    # each setup before the result of the shot just before it is known.
+
     def _deal(self, first: bool = False) -> None:
-        try:
-            self.session.deal()
-        except ValueError as exc:
-            self.error = str(exc)
-            self.aim = None
+        """Show the next setup: the one dealt ahead if ready, else wait for it."""
+        self.token += 1
+        self.aim = None
+        self.conv = None
+        self.error = ""
+        if self.ahead is not None:
+            self._take_ahead()
+            return
+        self.waiting = True
+        self.session.show(None)
+        self._refresh()
+        self._deal_ahead()
+
+    def _deal_ahead(self) -> None:
+        if self.ahead is None and not self.dealing:
+            self.dealing = True
+            self._ahead_worker(self.generation, self.session.model)
+
+    def _forget_ahead(self) -> None:
+        """Drop a setup dealt before a pin changed what the coach should deal."""
+        self.generation += 1
+        self.ahead = None
+        self.dealing = False
+        self._deal_ahead()
+
+    def _take_ahead(self) -> None:
+        msg = self.ahead
+        assert msg is not None
+        self.ahead = None
+        self.waiting = False
+        if msg.error:
+            self.session.show(None)
+            self.error = msg.error
+            self.say(msg.error, True)
             self._refresh()
             return
-        self._solve()
+        self.session.show(msg.pick)
+        self.aim = msg.aim
+        self.error = "" if msg.aim is not None else msg.note
+        if msg.aim is None:
+            self.say(msg.note + "; n deals another setup, s tries another speed", True)
+        self.model_note = msg.note if msg.aim is not None else ""
+        self._refresh()
+        if msg.aim is not None:
+            self._conv_worker(self.token, msg.aim.setup, msg.aim.stroke, msg.aim.model)
+        self._deal_ahead()
 
     def _solve(self) -> None:
-        """Start an aim solve for the shown setup in a worker thread; the screen stays live."""
+        """Solve the aim of the shown setup again (new stroke, or a setup put back)."""
         self.token += 1
         self.aim = None
         self.conv = None
@@ -129,29 +193,64 @@ class PracticeScreen(Screen[None]):
         assert pick is not None
         self._solve_worker(self.token, pick.setup, self.session.stroke, self.session.model)
 
+    @work(thread=True, group="ahead", exit_on_error=False)
+    def _ahead_worker(self, generation: int, model: str) -> None:
+        for _ in range(REDRAWS):
+            try:
+                pick = self.session.draw()
+            except ValueError as exc:
+                msg = f"cannot deal a setup: {exc}"
+                self.post_message(SetupDealt(generation, None, None, msg))
+                return
+            aim, why = self._aim_of(pick.setup, pick.stroke, model)
+            if aim is not None and aim.model == model:
+                break
+            if generation != self.generation:
+                return
+        self.post_message(SetupDealt(generation, pick, aim, note=why))
+
     @work(thread=True, exclusive=True, group="aim", exit_on_error=False)
     def _solve_worker(self, token: int, setup: shots.Setup, stroke: Stroke, model: str) -> None:
+        aim, why = self._aim_of(setup, stroke, model)
+        if aim is None:
+            self.post_message(AimSolved(token, None, error=why))
+            return
+        self.post_message(AimSolved(token, aim, note=why))
+        self._conv_now(token, setup, stroke, aim.model)
+
+    @work(thread=True, exclusive=True, group="aim", exit_on_error=False)
+    def _conv_worker(self, token: int, setup: shots.Setup, stroke: Stroke, model: str) -> None:
+        self._conv_now(token, setup, stroke, model)
+
+    def _aim_of(self, setup: shots.Setup, stroke: Stroke, model: str) -> tuple[Aim | None, str]:
+        """The aim under the session's model, else the ideal aim with a note (worker thread)."""
         table = self.session.table
-        note = ""
         try:
-            aim = shots.solve_aim(table, setup, stroke, model)
+            return shots.solve_aim(table, setup, stroke, model), ""
         except ValueError as exc:
             if model == "ideal":
-                self.post_message(AimSolved(token, None, error=f"no aim: {exc}"))
-                return
+                return None, f"no aim: {exc}"
             try:
                 aim = shots.solve_aim(table, setup, stroke, "ideal")
             except ValueError:
-                self.post_message(AimSolved(token, None, error=f"no aim: {exc}"))
-                return
-            model = "ideal"
-            note = f"the {self.session.model} model found no path ({exc}); showing the ideal aim"
-        self.post_message(AimSolved(token, aim, note=note))
+                return None, f"no aim: {exc}"
+            reason = str(exc).split(":")[0]
+            return aim, f"the {model} model found no path here ({reason}); showing the ideal aim"
+
+    def _conv_now(self, token: int, setup: shots.Setup, stroke: Stroke, model: str) -> None:
         try:
-            conv = shots.convergence(table, setup, None, stroke, model)
+            conv = shots.convergence(self.session.table, setup, None, stroke, model)
         except ValueError:
             conv = None
         self.post_message(ConvergenceFound(token, conv))
+
+    def on_setup_dealt(self, message: SetupDealt) -> None:
+        if message.generation != self.generation:
+            return
+        self.dealing = False
+        self.ahead = message
+        if self.waiting:
+            self._take_ahead()
 
     def on_aim_solved(self, message: AimSolved) -> None:
         if message.token != self.token:
@@ -160,8 +259,7 @@ class PracticeScreen(Screen[None]):
         self.error = message.error
         if message.error:
             self.say(message.error + "; n deals another setup, s tries another speed", True)
-        elif message.note:
-            self.say(message.note)
+        self.model_note = message.note if message.aim is not None else ""
         self._refresh()
 
     def on_convergence_found(self, message: ConvergenceFound) -> None:
@@ -203,7 +301,8 @@ class PracticeScreen(Screen[None]):
             rail, spot = result
             self._logged(lambda: self.session.log_miss(aim, rail, spot))
 
-        self.app.push_screen(LandingPrompt(aim.landing.rail, at, hint), done)
+        prompt = LandingPrompt(aim.landing.rail, at, hint, self.ascii_only)
+        self.app.push_screen(prompt, done)
 
     def _logged(self, do: Any) -> None:
         try:
@@ -253,24 +352,31 @@ class PracticeScreen(Screen[None]):
         if not dealer.coached:
             self.say("pinning needs the coach, which is not installed")
             return
-        if self.pinned:
-            dealer.unpin()
+        if self._pinned_text():
+            with self.session.lock:
+                dealer.unpin()
             self.pinned = False
+            self._forget_ahead()
+            self._refresh()
             self.say("unpinned: the coach picks setups again")
             return
         pick = self.session.pick
         if pick is None:
             return
         try:
-            if pick.zone:
-                dealer.pin(zone=pick.zone)
-            else:
-                dealer.pin(family=pick.setup.family.name)
+            with self.session.lock:
+                if pick.zone:
+                    dealer.pin(zone=pick.zone)
+                else:
+                    dealer.pin(family=pick.setup.family.name)
         except ValueError as exc:
             self.say(str(exc), True)
             return
         self.pinned = True
-        self.say("pinned: the next 10 setups come from this zone (p again to unpin)")
+        self._forget_ahead()
+        self._refresh()
+        what = self._pinned_text() or "this zone for 10 setups"
+        self.say(f"pinned: {what} (p again to unpin)")
 
     def action_history(self) -> None:
         if not history_available():

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import math
+
 from rich.console import Group, RenderableType
 from rich.table import Table as RichTable
 from rich.text import Text
@@ -25,15 +27,16 @@ def card(
     stroke: Stroke,
     aim: Aim | None,
     conv: Convergence | None,
-    status: str,
     error: str = "",
 ) -> RenderableType:
-    """The setup card as one Rich renderable."""
+    """The setup card: what the shot is, where the balls go, the aim, speed, spin, margin."""
     if pick is None:
-        return Text("Dealing the first setup...")
+        if error:
+            return Text(error, style="bold red")
+        return Text("Dealing the next setup...", style="italic")
     setup = pick.setup
     title = Text(setup.family.title or setup.family.name, style="bold")
-    title.append(f"  {w.target_text(setup)}", style="")
+    title.append(f": {w.target_text(setup)}", style="")
     grid = RichTable.grid(padding=(0, 1), expand=True)
     grid.add_column(style="bold", no_wrap=True)
     grid.add_column(ratio=1)
@@ -49,20 +52,40 @@ def card(
     grid.add_row("Spin", w.spin_text(stroke))
     if aim is not None and not error:
         grid.add_row("Margin", w.margin_text(table, aim))
-        grid.add_row("Lands", f"{w.landing_text(table, aim.landing)} (a hit logs this)")
+        grid.add_row("Lands", f"{w.landing_text(table, aim.landing)} (logged on a hit)")
         grid.add_row("Conv.", w.convergence_text(table, conv) if conv else "working it out...")
         if aim.cut_angle is not None:
-            import math
-
             grid.add_row("Cut", f"{math.degrees(aim.cut_angle):.0f} degrees on the object ball")
         for note in aim.notes:
             grid.add_row("Note", note)
     if stroke.speed >= 3.2:
         grid.add_row("Care", Text(POWER_CAUTION, style="yellow"))
-    grid.add_row("Why", pick.why)
-    if status:
-        grid.add_row("Table", status)
     return Group(title, grid)
+
+
+def notes(
+    table: TableSpec,
+    pick: Pick | None,
+    aim: Aim | None,
+    status: str,
+    pinned: str = "",
+    model_note: str = "",
+) -> RenderableType:
+    """Why this setup, the model and the table's calibration: the lines under the table."""
+    grid = RichTable.grid(padding=(0, 1), expand=True)
+    grid.add_column(style="bold", no_wrap=True)
+    grid.add_column(ratio=1)
+    if pick is not None:
+        grid.add_row("Why", pick.why)
+    if pinned:
+        grid.add_row("Pinned", pinned)
+    if aim is not None:
+        grid.add_row("Model", w.model_text(aim.model))
+    if model_note:
+        grid.add_row("", Text(model_note, style="italic"))
+    if status:
+        grid.add_row("Table", f"{table.name}, {status}")
+    return grid
 
 
 def session_line(stats: Stats, earlier: Stats, table_name: str, player: str) -> Text:
@@ -80,6 +103,10 @@ def session_line(stats: Stats, earlier: Stats, table_name: str, player: str) -> 
 
 class InfoCard(Static):
     """The setup card widget."""
+
+
+class NotesPanel(Static):
+    """Why this setup, the model and the calibration, under the table."""
 
 
 class SessionBar(Static):

@@ -37,6 +37,21 @@ def parse_landing(rail: str, typed: str) -> float:
     return value
 
 
+def ruler(rail: str, at: float, ascii_only: bool = False) -> Text:
+    """The rail drawn a quarter diamond a character, numbered, with a mark at ``at``."""
+    top = int(rail_length_diamonds(rail))
+    tick, dash, mark = ("+", "-", "^") if ascii_only else ("┼", "─", "▲")
+    numbers = "".join(f"{d:<4d}" for d in range(top)) + str(top)
+    line = (tick + dash * 3) * top + tick
+    col = round(at / STEP)
+    pointer = " " * col + mark
+    t = Text()
+    t.append(f"    {numbers}\n", style="dim")
+    t.append(f"    {line}\n")
+    t.append(f"    {pointer}\n", style="bold")
+    return t
+
+
 class LandingPrompt(ModalScreen[tuple[str, float] | None]):
     """Ask where a missed ball crossed the landing rail; dismisses with (rail, diamonds) or None.
 
@@ -55,8 +70,9 @@ class LandingPrompt(ModalScreen[tuple[str, float] | None]):
         Binding("escape", "cancel", "Cancel", show=True),
     ]
 
-    def __init__(self, rail: str, at: float, hint: str = "") -> None:
+    def __init__(self, rail: str, at: float, hint: str = "", ascii_only: bool = False) -> None:
         super().__init__()
+        self.ascii_only = ascii_only
         self.rail = rail if rail in RAIL_ORDER else "foot"
         top = rail_length_diamonds(self.rail)
         self.at = min(max(round(at / STEP) * STEP, 0.0), top)
@@ -78,13 +94,17 @@ class LandingPrompt(ModalScreen[tuple[str, float] | None]):
         value = self.typed + "_" if self.typed else num(self.at)
         body.append(f"  {self.rail} rail at ", style="")
         body.append(value, style="bold reverse")
-        body.append(f"  diamonds (0 to {num(rail_length_diamonds(self.rail))})\n")
+        top = rail_length_diamonds(self.rail)
+        zero = "the head end" if self.rail in ("left", "right") else "the left-rail end"
+        body.append(f"  (0 to {num(top)}, 0 at {zero})\n")
+        body.append_text(ruler(self.rail, self.at, self.ascii_only))
         body.append("  left/right: a quarter diamond   up/down: another rail\n", style="dim")
         body.append("  or type the number, then Enter to save; Escape to cancel\n", style="dim")
         if self.hint:
             body.append(f"  {self.hint}\n", style="dim")
         if self.error:
             body.append(self.error, style="bold red")
+        body.rstrip()
         self.query_one("#landing-body", Static).update(body)
 
     def on_key(self, event: Key) -> None:

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import importlib.util
+import threading
 from dataclasses import dataclass, replace
 from typing import Any
 
@@ -17,6 +18,15 @@ from tablecoach.core.table import TableSpec
 from .wording import landing_diamonds, shown_reading
 
 SPEED_CYCLE = ("slow", "medium", "fast", "power")
+
+DEAL_MODEL = "ideal"
+"""The model the coach checks a dealt setup against. The ideal check is fast; the practice
+screen then solves the shown setup under the session's model and draws again (a few times) when
+that model finds no path, so dealing never keeps the player waiting for long."""
+
+REDRAWS = 3
+"""How many setups the practice screen draws, at most, looking for one the session's model
+can solve, before it shows the ideal aim with a note."""
 
 
 def physical_available() -> bool:
@@ -95,7 +105,7 @@ class Dealer:
         except ImportError:
             Scheduler = None  # noqa: N806
         if Scheduler is not None:
-            self.scheduler = Scheduler(table, drill, list(attempts), rng, model=model)
+            self.scheduler = Scheduler(table, drill, list(attempts), rng, model=DEAL_MODEL)
         self._queue: list[Any] = []
         self._size = 0
 
@@ -129,7 +139,7 @@ class Dealer:
             from tablecoach.core.coach import Scheduler  # noqa: PLC0415
 
             self.scheduler = Scheduler(
-                self.table, self.drill, list(attempts), self.rng, model=self.model
+                self.table, self.drill, list(attempts), self.rng, model=DEAL_MODEL
             )
 
     def pin(self, zone: Any = None, family: str | None = None, count: int = 10) -> None:
@@ -173,12 +183,25 @@ class Session:
         self.pick: Pick | None = None
         self.stroke: Stroke = Stroke()
         self.ended = False
+        self.lock = threading.RLock()
 
     # ----- setups -------------------------------------------------------------------------------
+    def draw(self) -> Pick:
+        """The next setup from the dealer (safe to call from a worker thread)."""
+        with self.lock:
+            return self.dealer.next()
+
+    def show(self, pick: Pick | None) -> None:
+        """Put a setup on the table (None while the next one is being dealt)."""
+        self.pick = pick
+        if pick is not None:
+            self.stroke = pick.stroke
+
     def deal(self) -> Pick:
-        self.pick = self.dealer.next()
-        self.stroke = self.pick.stroke
-        return self.pick
+        """Draw and show the next setup at once."""
+        pick = self.draw()
+        self.show(pick)
+        return pick
 
     def show_again(self, attempt: Attempt) -> Pick:
         """Put an undone attempt's setup and stroke back on the table."""
@@ -232,7 +255,8 @@ class Session:
     def _log(self, a: Attempt) -> Attempt:
         saved = self.store.log(a)
         self.logged.append(saved)
-        self.dealer.record(saved)
+        with self.lock:
+            self.dealer.record(saved)
         return saved
 
     def undo(self) -> Attempt | None:
@@ -240,7 +264,8 @@ class Session:
         if gone is None:
             return None
         self.logged = [a for a in self.logged if a.id != gone.id]
-        self.dealer.rebuild(self.earlier + self.logged)
+        with self.lock:
+            self.dealer.rebuild(self.earlier + self.logged)
         return gone
 
     def stats(self) -> Stats:

@@ -29,7 +29,7 @@ def placement(table: TableSpec, what: str, p: tuple[float, float]) -> str:
     x, y = table.to_diamonds(*p)
     along = f"{num(x)} from the head rail" if x <= 4.0 else f"{num(8.0 - x)} from the foot rail"
     across = f"{num(y)} from the left rail" if y <= 2.0 else f"{num(4.0 - y)} from the right rail"
-    return f"{what}: {along}, {across}  (x {num(x)}, y {num(y)})"
+    return f"{what}: {along}, {across}"
 
 
 def placements(table: TableSpec, setup: Setup) -> list[str]:
@@ -58,8 +58,8 @@ def aim_text(table: TableSpec, aim: Aim) -> str:
     first = aim.contacts[0] if aim.contacts else None
     contact = ""
     if first is not None:
-        contact = f" (meets the cushion at {num(table.along_to_diamonds(first.rail, first.at))})"
-    return f"aim over sight {num(reading)} on the {aim.rail} rail{contact}"
+        contact = f" (cushion contact {num(table.along_to_diamonds(first.rail, first.at))})"
+    return f"sight {num(reading)} on the {aim.rail} rail{contact}"
 
 
 def shown_reading(table: TableSpec, aim: Aim) -> float:
@@ -83,8 +83,8 @@ def speed_text(table: TableSpec, stroke: Stroke) -> str:
     """Speed name, m/s off the tip and table lengths of roll on open cloth."""
     lengths = travel_lengths(table, stroke.speed)
     return (
-        f"{speed_name(stroke.speed)}: {stroke.speed:.2f} m/s off the tip, "
-        f"rolls about {lengths:.1f} table lengths"
+        f"{speed_name(stroke.speed)}, {stroke.speed:.2f} m/s off the tip "
+        f"(rolls {lengths:.1f} table lengths)"
     )
 
 
@@ -97,14 +97,14 @@ def spin_text(stroke: Stroke) -> str:
     if stroke.follow:
         kind = "follow" if stroke.follow > 0 else "draw"
         parts.append(f"{num(abs(stroke.follow))} tip {kind}")
-    return ", ".join(parts) if parts else "centre ball (no english)"
+    return ", ".join(parts) if parts else "centre ball"
 
 
 def margin_text(table: TableSpec, aim: Aim) -> str:
     """How far the reading may move each way and still score, in diamonds."""
     unit = table.rail_unit(aim.rail)
     lo, hi = aim.margin_minus / unit, aim.margin_plus / unit
-    return f"-{lo:.2f} / +{hi:.2f} diamonds (window {lo + hi:.2f})"
+    return f"-{lo:.2f} / +{hi:.2f} diamond on the reading"
 
 
 def convergence_text(table: TableSpec, conv: Convergence | None) -> str:
@@ -114,4 +114,16 @@ def convergence_text(table: TableSpec, conv: Convergence | None) -> str:
     x, y = table.to_diamonds(*conv.point)
     off = "" if 0.0 <= x <= 8.0 and 0.0 <= y <= 4.0 else " (off the table)"
     spread = conv.spread / table.diamond
-    return f"x {num(x, 1)}, y {num(y, 1)}{off}; lines within {spread:.2f} diamonds"
+    if spread < 0.005:
+        return f"x {num(x, 1)}, y {num(y, 1)}{off}; nearby aim lines all meet there"
+    return f"x {num(x, 1)}, y {num(y, 1)}{off}; nearby aim lines within {spread:.2f} diamond"
+
+
+MODEL_WORDS = {
+    "ideal": "ideal (mirror reflection, no spin or cushion loss)",
+    "physical": "physical (cloth friction, spin, cushion impact)",
+}
+
+
+def model_text(model: str) -> str:
+    return MODEL_WORDS.get(model, f"{model} model")
