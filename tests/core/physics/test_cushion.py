@@ -129,3 +129,23 @@ def test_the_two_models_agree_on_a_rolling_45_degree_hit(model: BallModel) -> No
     b, _ = impulse_impact(model, v, w)
     ang = [math.degrees(math.atan2(x[0, 0], -x[0, 1])) for x in (a, b)]
     assert abs(ang[0] - ang[1]) < 3.0
+
+
+@pytest.mark.parametrize("name", list(IMPACTS))
+def test_running_english_widens_the_rebound_and_reverse_shortens_it(
+    model: BallModel, name: str
+) -> None:
+    # Common practice, no source: a ball that rebounds to the shooter's left off a rail comes
+    # off wider (more along the rail) with left (running) english and narrower with right
+    # (reverse) english. Here: rolling at 45 degrees into the right rail, heading +x.
+    from tablecoach.core.physics.stick import natural_roll_tips, stick_hit
+
+    m = model.with_cushion(name)
+    d = np.array([[math.sqrt(0.5), math.sqrt(0.5)]])
+    normal = np.array([[0.0, 1.0]])
+    out = []
+    for e in (-1.0, 0.0, 1.0):
+        v, w = stick_hit(m, d, 2.0, english=e, follow=natural_roll_tips())
+        v2, _ = rail_impact(m, normal, v, w)
+        out.append(math.degrees(math.atan2(v2[0, 0], -v2[0, 1])))
+    assert out[0] > out[1] + 1.0 > out[2] + 1.0

@@ -1,0 +1,659 @@
+"""The aim under the physical model: solve, predict and the convergence point, in batches.
+
+A reading (metres along the first rail's line of sights) fixes the travelling ball's line. For a
+kick it is the cue ball's stroke line. For a bank the solver's variable is the line of centres
+(the ghost-ball aim); the object then leaves along that line turned by its throw
+(collide.py), and the reading reported is that of the object's real launch line, as the
+contract asks ("the ball's path before the first cushion").
+
+Solving is a few vectorised passes of simulate.simulate: a grid of readings around the ideal
+(mirror) reading, then two passes of seven points inside the bracket of the sign change of the
+signed miss (the target's closest approach to the path after the family's rails) and inside
+the brackets of the two ends of the scoring window, then one recorded run for the path. The
+root is taken by linear interpolation inside the last bracket.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import numpy as np
+
+from .. import shots
+from ..geometry import Point, axis_of, nearest_point_to_lines, unfold
+from ..shots import Aim, Convergence, RailPoint, Setup, ShotError, Stroke, Trace
+from ..table import POCKETS, RAILS, TableSpec
+from .collide import strike
+from .motion import SPINNING, accel, evolve, phase_duration, phase_of, settle
+from .params import BallModel, CushionModel, model_of
+from .roots import first_quadratic_root
+from .simulate import SimResult, sample_path, simulate
+from .stick import StrokeError, check_offset, stick_hit
+
+GRID = 40
+"""Readings in the first pass, spread over +-HALF_WINDOW rail diamonds around the ideal."""
+HALF_WINDOW = 2.5
+REFINE = 7
+"""Interior points per bracket in each refining pass."""
+MARGIN_CAP = 1.5
+"""A scoring window wider than this many diamonds either way is reported as this (as shots)."""
+
+
+@dataclass(frozen=True, slots=True)
+class _Problems:
+    """Per-setup arrays of a batch (index p)."""
+
+    setups: tuple[Setup, ...]
+    rail: str
+    start: np.ndarray  # (P, 2)
+    cue: np.ndarray  # (P, 2)
+    target: np.ndarray  # (P, 2)
+    balls: np.ndarray  # (P, K, 2)
+    ball_from: np.ndarray  # (P, K)
+    pocket: np.ndarray  # (P,)
+    centre: np.ndarray  # (P,) ideal reading (or the rail's middle)
+    bank: bool
+
+
+def _problems(table: TableSpec, setups: Sequence[Setup]) -> _Problems:
+    fam = setups[0].family
+    rail = fam.rails[0]
+    starts, cues, targets, balls, froms, pockets, centres = [], [], [], [], [], [], []
+    kmax = 1 + max(len(s.obstacles()) for s in setups)
+    for s in setups:
+        starts.append(s.start)
+        cues.append(s.cue)
+        tp = s.target_point(table)
+        targets.append(tp)
+        row = [[math.nan, math.nan]] * kmax
+        frm = [0] * kmax
+        if s.target_ball is not None:
+            row[0] = list(s.target_ball)
+        for j, ob in enumerate(s.obstacles()):
+            row[1 + j] = list(ob)
+            frm[1 + j] = 1 if fam.travel == "object" else 0
+        balls.append(row)
+        froms.append(frm)
+        pockets.append(POCKETS.index(s.pocket) if s.pocket is not None else -1)
+        centres.append(_ideal_reading(table, s, tp))
+    return _Problems(
+        tuple(setups),
+        rail,
+        np.array(starts, dtype=float),
+        np.array(cues, dtype=float),
+        np.array(targets, dtype=float),
+        np.array(balls, dtype=float).reshape(len(setups), kmax, 2),
+        np.array(froms, dtype=np.int64),
+        np.array(pockets, dtype=np.int64),
+        np.array(centres, dtype=float),
+        fam.travel == "object",
+    )
+
+
+def _ideal_reading(table: TableSpec, s: Setup, target: Point) -> float:
+    """The mirror-model reading (unfolded image), or the middle of the rail if it has none."""
+    rails = s.family.rails
+    uf = unfold(target, rails, [table.reflection_line(r) for r in rails])
+    d = (uf.image[0] - s.start[0], uf.image[1] - s.start[1])
+    rd = shots.reading_of(table, s.start, d, rails[0]) if math.hypot(*d) > 1e-12 else None
+    if rd is None:
+        return 0.5 * table.rail_span(rails[0])
+    return rd
+
+
+def _sight_dirs(table: TableSpec, rail: str, start: np.ndarray, s: np.ndarray) -> np.ndarray:
+    ax = axis_of(rail)
+    pt = np.empty((s.shape[0], 2))
+    pt[:, ax] = table.sight_line(rail)  # type: ignore[arg-type]
+    pt[:, 1 - ax] = s
+    d = pt - start
+    return d / np.hypot(d[:, 0], d[:, 1])[:, None]
+
+
+def _readings(table: TableSpec, rail: str, start: np.ndarray, d: np.ndarray) -> np.ndarray:
+    ax = axis_of(rail)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        t = (table.sight_line(rail) - start[:, ax]) / d[:, ax]  # type: ignore[arg-type]
+        return np.where(t > 0, start[:, 1 - ax] + t * d[:, 1 - ax], np.nan)
+
+
+def _advance(
+    m: BallModel, v: np.ndarray, w: np.ndarray, dist: np.ndarray
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The state of balls on a straight stroke line after ``dist`` metres (cue ball to ghost).
+
+    With a level cue the slip stays along the line, so the path is straight; the phases run
+    in closed form until the distance is covered. Returns v, w and whether it got there.
+    """
+    v, w = v.copy(), w.copy()
+    n = v.shape[0]
+    sp = np.hypot(v[:, 0], v[:, 1])
+    d = v / np.maximum(sp, 1e-300)[:, None]
+    left = dist.astype(float).copy()
+    reached = np.zeros(n, dtype=bool)
+    going = sp > 0
+    r = np.zeros((n, 2))
+    for _ in range(4):
+        if not going.any():
+            break
+        ph = phase_of(m, v, w)
+        going &= ph > SPINNING
+        a = accel(m, v, w, ph)
+        T = phase_duration(m, v, w, ph)
+        along_v = np.sum(v * d, axis=1)
+        along_a = np.sum(a * d, axis=1)
+        t = first_quadratic_root(-0.5 * along_a, -along_v, left, T)
+        hit = going & np.isfinite(t)
+        tt = np.where(hit, t, np.where(np.isfinite(T), T, 0.0))
+        tt = np.where(going, tt, 0.0)
+        _, v2, w2 = evolve(m, r, v, w, ph, tt, a)
+        moved = along_v * tt + 0.5 * along_a * tt * tt
+        ended = going & ~hit
+        settle(m, v2, w2, ended, ph)
+        v = np.where(going[:, None], v2, v)
+        w = np.where(going[:, None], w2, w)
+        left = np.where(going, left - moved, left)
+        reached |= hit
+        going &= ~hit
+    return v, w, reached
+
+
+@dataclass(frozen=True, slots=True)
+class _Launch:
+    r0: np.ndarray
+    v0: np.ndarray
+    w0: np.ndarray
+    ok: np.ndarray
+    reading: np.ndarray  # reading of the real launch line
+    direction: np.ndarray
+    ghost: np.ndarray
+    cut: np.ndarray
+
+
+def _launch(
+    m: BallModel, table: TableSpec, pr: _Problems, pi: np.ndarray, s: np.ndarray, stroke: Stroke
+) -> _Launch:
+    start = pr.start[pi]
+    d = _sight_dirs(table, pr.rail, start, s)
+    n = s.shape[0]
+    if not pr.bank:
+        v, w = stick_hit(m, d, stroke.speed, stroke.english, stroke.follow)
+        nan2 = np.full((n, 2), np.nan)
+        return _Launch(start, v, w, np.ones(n, bool), s.copy(), d, nan2, np.full(n, np.nan))
+    # bank: d is the line of centres; the cue ball travels straight to the ghost position
+    ghost = start - 2.0 * m.radius * d
+    u = ghost - pr.cue[pi]
+    dist = np.hypot(u[:, 0], u[:, 1])
+    ud = u / np.maximum(dist, 1e-300)[:, None]
+    cut = np.arccos(np.clip(np.sum(ud * d, axis=1), -1.0, 1.0))
+    vc, wc = stick_hit(m, ud, stroke.speed, stroke.english, stroke.follow)
+    vc, wc, reached = _advance(m, vc, wc, dist)
+    vo, wo = strike(m, vc, wc, d)
+    ok = reached & (cut < math.radians(89.0)) & (dist > 1e-9)
+    spo = np.hypot(vo[:, 0], vo[:, 1])
+    ok &= spo > 1e-9
+    dl = vo / np.maximum(spo, 1e-300)[:, None]
+    rd = _readings(table, pr.rail, start, dl)
+    return _Launch(start, vo, wo, ok, rd, dl, ghost, cut)
+
+
+def _run(
+    m: BallModel,
+    table: TableSpec,
+    pr: _Problems,
+    pi: np.ndarray,
+    s: np.ndarray,
+    stroke: Stroke,
+    record: bool = False,
+) -> tuple[SimResult, _Launch]:
+    ln = _launch(m, table, pr, pi, s, stroke)
+    v0 = np.where(ln.ok[:, None], ln.v0, 0.0)
+    w0 = np.where(ln.ok[:, None], ln.w0, 0.0)
+    res = simulate(
+        m,
+        table,
+        pr.setups[0].family.rails,
+        ln.r0,
+        v0,
+        w0,
+        pr.balls[pi],
+        pr.ball_from[pi],
+        pr.target[pi],
+        pr.pocket[pi],
+        record=record,
+    )
+    bad = ~ln.ok
+    res.miss[bad] = np.nan
+    res.scores[bad] = False
+    return res, ln
+
+
+@dataclass(frozen=True, slots=True)
+class _Solved:
+    reading: float | None  # solver variable (line of centres for banks)
+    lo: float | None  # lowest scoring value found (None: not asked)
+    hi: float | None
+    reason: str
+    grid: np.ndarray | None = None
+    scores: np.ndarray | None = None
+
+
+def _root_pair(s: np.ndarray, mv: np.ndarray, centre: float) -> int | None:
+    """Index j of the sign change of mv between s[j] and s[j + 1] nearest the centre."""
+    a, b = mv[:-1], mv[1:]
+    ok = np.isfinite(a) & np.isfinite(b) & (a * b <= 0.0)
+    if not ok.any():
+        return None
+    mid = 0.5 * (s[:-1] + s[1:])
+    cand = np.flatnonzero(ok)
+    return int(cand[np.argmin(np.abs(mid[cand] - centre))])
+
+
+def _interp(s0: float, s1: float, m0: float, m1: float) -> float:
+    if m0 == m1:
+        return 0.5 * (s0 + s1)
+    return s0 + (s1 - s0) * (m0 / (m0 - m1))
+
+
+def _solve(
+    m: BallModel,
+    table: TableSpec,
+    pr: _Problems,
+    stroke: Stroke,
+    margins: bool,
+) -> list[_Solved]:
+    """Solve every problem of a batch: the root reading and, if asked, the scoring window."""
+    P = pr.start.shape[0]
+    unit = table.rail_unit(pr.rail)  # type: ignore[arg-type]
+    offs = np.linspace(-HALF_WINDOW, HALF_WINDOW, GRID) * unit
+    grid = pr.centre[:, None] + offs[None, :]
+    pi = np.repeat(np.arange(P), GRID)
+    res, _ = _run(m, table, pr, pi, grid.ravel(), stroke)
+    mv = res.miss.reshape(P, GRID)
+    sc = res.scores.reshape(P, GRID)
+    # brackets: [root lo, root hi, m lo, m hi] and the window ends [bad, good] x 2
+    root: list[list[float] | None] = []
+    edges: list[list[list[float] | None]] = []
+    cap = MARGIN_CAP * unit
+    for p in range(P):
+        j = _root_pair(grid[p], mv[p], pr.centre[p])
+        if j is None:
+            root.append(None)
+            edges.append([None, None])
+            continue
+        root.append([grid[p, j], grid[p, j + 1], mv[p, j], mv[p, j + 1]])
+        est = _interp(grid[p, j], grid[p, j + 1], mv[p, j], mv[p, j + 1])
+        e: list[list[float] | None] = []
+        # lower end: nearest non-scoring grid point at or below j
+        k = j
+        while k >= 0 and sc[p, k]:
+            k -= 1
+        if k < 0 or est - grid[p, k] > cap:
+            e.append(None)
+        else:
+            good = grid[p, k + 1] if k + 1 <= j else est
+            e.append([grid[p, k], good])
+        k = j + 1
+        while k < GRID and sc[p, k]:
+            k += 1
+        if k >= GRID or grid[p, k] - est > cap:
+            e.append(None)
+        else:
+            good = grid[p, k - 1] if k - 1 >= j + 1 else est
+            e.append([grid[p, k], good])
+        edges.append(e)
+    frac = np.arange(1, REFINE + 1) / (REFINE + 1)
+    for _ in range(2):
+        rows_p: list[int] = []
+        vals: list[np.ndarray] = []
+        tags: list[tuple[int, int]] = []  # (problem, 0 root / 1 lower / 2 upper)
+        for p in range(P):
+            rb = root[p]
+            if rb is None:
+                continue
+            vals.append(rb[0] + (rb[1] - rb[0]) * frac)
+            tags.append((p, 0))
+            if margins:
+                for side in (1, 2):
+                    eb = edges[p][side - 1]
+                    if eb is not None:
+                        vals.append(eb[0] + (eb[1] - eb[0]) * frac)
+                        tags.append((p, side))
+            rows_p.append(p)
+        if not tags:
+            break
+        s_all = np.concatenate(vals)
+        pi = np.repeat(np.array([t[0] for t in tags]), REFINE)
+        res, _ = _run(m, table, pr, pi, s_all, stroke)
+        mvr = res.miss.reshape(-1, REFINE)
+        scr = res.scores.reshape(-1, REFINE)
+        for row, (p, side) in enumerate(tags):
+            if side == 0:
+                rb = root[p]
+                assert rb is not None
+                ss = np.concatenate(([rb[0]], vals[row], [rb[1]]))
+                mm = np.concatenate(([rb[2]], mvr[row], [rb[3]]))
+                j = _root_pair(ss, mm, 0.5 * (rb[0] + rb[1]))
+                if j is None:  # lost the sign change (a gap in valid paths): keep the old one
+                    continue
+                root[p] = [ss[j], ss[j + 1], mm[j], mm[j + 1]]
+            else:
+                eb = edges[p][side - 1]
+                assert eb is not None
+                ss = np.concatenate(([eb[0]], vals[row], [eb[1]]))
+                ok = np.concatenate(([False], scr[row], [True]))
+                # first scoring point counting from the bad end
+                first = int(np.argmax(ok))
+                edges[p][side - 1] = [ss[first - 1], ss[first]]
+    out: list[_Solved] = []
+    for p in range(P):
+        rb = root[p]
+        if rb is None:
+            out.append(_Solved(None, None, None, "no sign change", grid[p], sc[p]))
+            continue
+        s_root = _interp(*rb)
+        lo = hi = None
+        if margins:
+            lo = s_root - cap if edges[p][0] is None else edges[p][0][1]
+            hi = s_root + cap if edges[p][1] is None else edges[p][1][1]
+        out.append(_Solved(s_root, lo, hi, "", grid[p], sc[p]))
+    return out
+
+
+def _window(
+    m: BallModel, table: TableSpec, pr: _Problems, stroke: Stroke, sol: _Solved, near: float
+) -> tuple[float, float] | None:
+    """The scoring window of grid readings nearest ``near``, its ends refined (two passes).
+
+    Used when the line through the target point itself does not score (a pocket met at an
+    angle, where the clean window is off the mouth's middle).
+    """
+    assert sol.grid is not None and sol.scores is not None
+    g, sc = sol.grid, sol.scores
+    if not sc.any():
+        return None
+    idx = np.flatnonzero(sc)
+    j = int(idx[np.argmin(np.abs(g[idx] - near))])
+    lo = j
+    while lo - 1 >= 0 and sc[lo - 1]:
+        lo -= 1
+    hi = j
+    while hi + 1 < g.size and sc[hi + 1]:
+        hi += 1
+    ends = [
+        [g[lo - 1] if lo > 0 else g[lo], g[lo]],
+        [g[hi + 1] if hi + 1 < g.size else g[hi], g[hi]],
+    ]
+    frac = np.arange(1, REFINE + 1) / (REFINE + 1)
+    for _ in range(2):
+        vals = np.concatenate([e[0] + (e[1] - e[0]) * frac for e in ends])
+        res, _ = _run(m, table, pr, np.zeros(vals.size, dtype=np.int64), vals, stroke)
+        scr = res.scores.reshape(2, REFINE)
+        for k in range(2):
+            ss = np.concatenate(([ends[k][0]], vals[k * REFINE : (k + 1) * REFINE], [ends[k][1]]))
+            ok = np.concatenate(([False], scr[k], [True]))
+            first = int(np.argmax(ok))
+            ends[k] = [ss[first - 1], ss[first]]
+    return float(ends[0][1]), float(ends[1][1])
+
+
+# ----- traces --------------------------------------------------------------------------------
+
+
+def _rails_text(rails: Sequence[str]) -> str:
+    return shots._rails_text(rails)
+
+
+def _extend(table: TableSpec, p: np.ndarray, d: np.ndarray) -> RailPoint | None:
+    """The wall crossing of the straight line from p along d (landing fallback)."""
+    R = table.ball_radius
+    best, rail, along = math.inf, None, 0.0
+    for code, name in enumerate(RAILS):
+        ax = 0 if code < 2 else 1
+        wall = R if code % 2 == 0 else (table.length if ax == 0 else table.width) - R
+        if abs(d[ax]) < 1e-15:
+            continue
+        t = (wall - p[ax]) / d[ax]
+        if 0 <= t < best:
+            best, rail, along = t, name, p[1 - ax] + t * d[1 - ax]
+    if rail is None:
+        return None
+    return RailPoint(rail, float(along))  # type: ignore[arg-type]
+
+
+def _trace_of(
+    m: BallModel, table: TableSpec, pr: _Problems, res: SimResult, ln: _Launch, row: int = 0
+) -> tuple[Trace, str]:
+    setup = pr.setups[0]
+    fam = setup.family
+    nf = len(fam.rails)
+    if not ln.ok[row]:
+        why = "the cue ball cannot send the object ball along this line"
+        if ln.cut[row] < math.radians(89.0):
+            why = "the cue ball stops before it reaches the object ball"
+        start = (float(ln.r0[row, 0]), float(ln.r0[row, 1]))
+        return Trace((start,), (), None, False, why, ()), why
+    hits = [RAILS[c] for c in res.hits[row] if c >= 0]
+    ats = [float(x) for x in res.hit_at[row][: len(hits)]]
+    if res.ball[row] >= 0:
+        nh = int(res.ball_walls[row])
+    elif res.pocket[row] >= 0:
+        nh = int(res.pocket_walls[row]) - 1
+    else:
+        nh = len(hits)
+    rails_hit = tuple(hits[:nh])
+    contacts = tuple(RailPoint(r, a) for r, a in zip(rails_hit, ats[:nh], strict=True))  # type: ignore[arg-type]
+    scores = bool(res.scores[row])
+    rails_t = _rails_text(rails_hit)
+    if res.ball[row] >= 0:
+        if res.ball[row] == 0 and scores:
+            outcome = "contacts the target ball"
+        elif res.ball[row] == 0:
+            outcome = f"meets the target ball after {rails_t}, not after {_rails_text(fam.rails)}"
+        else:
+            outcome = f"runs into another ball after {rails_t}"
+    elif res.pocket[row] >= 0:
+        name = POCKETS[int(res.pocket[row])]
+        ordered = rails_hit == fam.rails
+        if scores:
+            outcome = f"drops in {name}"
+        elif setup.pocket == name and ordered:
+            outcome = f"hits a jaw of {name} and stays out"
+        elif res.pocket_clean[row]:
+            outcome = f"drops in {name} after {rails_t}"
+        else:
+            outcome = f"rattles in the jaws of {name} after {rails_t}"
+    elif not np.isnan(res.stop_pos[row, 0]) and res.landing_rail[row] < 0:
+        outcome = f"stops after {rails_t}, short of the target"
+    else:
+        outcome = f"touches {rails_t} and misses the target"
+    landing = None
+    if res.landing_rail[row] >= 0:
+        landing = RailPoint(RAILS[int(res.landing_rail[row])], float(res.landing_at[row]))  # type: ignore[arg-type]
+    elif res.walls[row] >= nf and res.pocket[row] < 0:
+        # it came to rest after the family's rails: carry its last line of travel on to a
+        # wall (from where it met a ball, else from where it stopped), as a player reads it
+        endp = res.ball_pos[row] if res.ball[row] >= 0 else res.stop_pos[row]
+        if np.all(np.isfinite(endp)):
+            landing = _extend(table, endp, res.last_dir[row])
+    path = tuple(sample_path(m, res, row)) if res.segments else ()
+    return Trace(path, rails_hit, landing, scores, outcome, contacts), outcome
+
+
+def _model(table: TableSpec, cushion: CushionModel) -> BallModel:
+    return model_of(table, cushion)
+
+
+def _check_stroke(table: TableSpec, stroke: Stroke) -> None:
+    try:
+        check_offset(table, stroke.english, stroke.follow)
+    except StrokeError as exc:
+        raise ShotError(str(exc)) from None
+    if not (0.0 < stroke.speed <= 13.0):
+        raise ShotError(f"speed {stroke.speed:g} m/s is outside 0.1 to 13 m/s")
+
+
+def _bank_variable(
+    m: BallModel, table: TableSpec, pr: _Problems, reading: float, stroke: Stroke
+) -> float:
+    """The line-of-centres reading whose thrown launch line has the given reading."""
+    s = reading
+    pi = np.zeros(1, dtype=np.int64)
+    for _ in range(6):
+        ln = _launch(m, table, pr, pi, np.array([s]), stroke)
+        got = float(ln.reading[0])
+        if not (ln.ok[0] and math.isfinite(got)):
+            return reading
+        if abs(got - reading) < 1e-9:
+            break
+        s += reading - got
+    return s
+
+
+# ----- public entry points -------------------------------------------------------------------
+
+
+def predict_physical(
+    table: TableSpec,
+    setup: Setup,
+    stroke: Stroke,
+    reading: float,
+    cushion: CushionModel = "impulse",
+) -> Trace:
+    """Where a reading (metres along the first rail's line of sights) takes the travelling ball
+    under the physical model: the same meaning as shots.trace_ideal."""
+    _check_stroke(table, stroke)
+    m = _model(table, cushion)
+    pr = _problems(table, [setup])
+    s = _bank_variable(m, table, pr, reading, stroke) if pr.bank else reading
+    res, ln = _run(m, table, pr, np.zeros(1, dtype=np.int64), np.array([s]), stroke, record=True)
+    tr, _ = _trace_of(m, table, pr, res, ln)
+    return tr
+
+
+def solve_physical(
+    table: TableSpec, setup: Setup, stroke: Stroke, cushion: CushionModel = "impulse"
+) -> Aim:
+    """The reading whose simulated path touches the family's rails in order and reaches the
+    target, with the window of readings that still score (margin_minus/plus, metres).
+
+    Raises ShotError with a plain reason when no reading near the ideal one scores.
+    """
+    _check_stroke(table, stroke)
+    m = _model(table, cushion)
+    pr = _problems(table, [setup])
+    sol = _solve(m, table, pr, stroke, margins=True)[0]
+    rail = pr.rail
+    pi1 = np.zeros(1, dtype=np.int64)
+    if sol.reading is None:
+        res, ln = _run(m, table, pr, pi1, pr.centre[:1], stroke, record=False)
+        _, why = _trace_of(m, table, pr, res, ln)
+        raise ShotError(
+            f"no reading scores at {stroke.speed:.2f} m/s under the physical model: "
+            f"on the mirror line the ball {why}"
+        )
+    res, ln = _run(m, table, pr, pi1, np.array([sol.reading]), stroke, record=True)
+    tr, why = _trace_of(m, table, pr, res, ln)
+    if not tr.scores:
+        win = _window(m, table, pr, stroke, sol, sol.reading)
+        if win is None:
+            raise ShotError(f"no clean path under the physical model: the best line {why}")
+        mid = 0.5 * (win[0] + win[1])
+        sol = _Solved(mid, win[0], win[1], "window")
+        res, ln = _run(m, table, pr, pi1, np.array([mid]), stroke, record=True)
+        tr, why = _trace_of(m, table, pr, res, ln)
+        if not tr.scores:
+            raise ShotError(f"no clean path under the physical model: the best line {why}")
+    reading = float(ln.reading[0])
+    assert sol.lo is not None and sol.hi is not None
+    edge = _launch(m, table, pr, np.zeros(2, dtype=np.int64), np.array([sol.lo, sol.hi]), stroke)
+    lo_r, hi_r = (float(x) for x in edge.reading) if pr.bank else (sol.lo, sol.hi)
+    unit = table.rail_unit(rail)
+    minus = min(max(reading - lo_r, 0.0), MARGIN_CAP * unit)
+    plus = min(max(hi_r - reading, 0.0), MARGIN_CAP * unit)
+    target = setup.target_point(table)
+    landing = tr.landing
+    if landing is None:
+        raise ShotError("no clean path under the physical model: the ball finds no landing")
+    path = tr.path if setup.pocket is None else (*tr.path, target)
+    ghost = cut = None
+    notes: tuple[str, ...] = ()
+    if pr.bank:
+        ghost = (float(ln.ghost[0, 0]), float(ln.ghost[0, 1]))
+        cut = float(ln.cut[0])
+        if cut > math.radians(70):
+            notes = (f"thin cut ({math.degrees(cut):.0f} degrees): hard to send the object true",)
+    d = (float(ln.direction[0, 0]), float(ln.direction[0, 1]))
+    return Aim(
+        setup,
+        "physical",
+        rail,
+        reading,
+        d,
+        tr.contacts[: len(setup.family.rails)],
+        path,
+        landing,
+        target,
+        minus,
+        plus,
+        ghost,
+        cut,
+        stroke,
+        notes,
+    )
+
+
+def convergence_physical(
+    table: TableSpec,
+    setup: Setup,
+    starts: list[Point],
+    stroke: Stroke,
+    cushion: CushionModel = "impulse",
+) -> Convergence:
+    """The least-squares point nearest the physical aim lines from several start positions.
+
+    All starts are solved in one batch (no margins). Starts without a clean path are dropped.
+    For banks the cue ball is put behind each object position (shots._cue_behind, as the ideal
+    convergence does). The spread is the RMS distance of the lines from the point: not zero
+    under this model.
+    """
+    _check_stroke(table, stroke)
+    m = _model(table, cushion)
+    trials: list[Setup] = []
+    for s in starts:
+        t = shots._with_start(setup, s)
+        if setup.family.travel == "object":
+            t = shots._cue_behind(table, t)
+        try:
+            shots.make_setup(table, t.family, t.cue, t.object, t.pocket, t.target_ball)
+        except ValueError:
+            continue
+        trials.append(t)
+    if len(trials) < 2:
+        raise ShotError("too few start positions with a clean path to find a convergence point")
+    pr = _problems(table, trials)
+    sols = _solve(m, table, pr, stroke, margins=False)
+    keep = [p for p, sol in enumerate(sols) if sol.reading is not None]
+    if len(keep) < 2:
+        raise ShotError("too few start positions with a clean path to find a convergence point")
+    pi = np.array(keep, dtype=np.int64)
+    s = np.array([sols[p].reading for p in keep], dtype=float)
+    res, ln = _run(m, table, pr, pi, s, stroke)
+    good = res.scores & ln.ok
+    if good.sum() < 2:
+        raise ShotError("too few start positions with a clean path to find a convergence point")
+    pts = ln.r0[good]
+    dirs = ln.direction[good]
+    try:
+        fit = nearest_point_to_lines(pts, dirs)
+    except ValueError as exc:
+        raise ShotError(str(exc)) from None
+    return Convergence(
+        fit.point,
+        fit.spread,
+        tuple((float(a), float(b)) for a, b in pts),
+        tuple((float(a), float(b)) for a, b in dirs),
+        "physical",
+    )

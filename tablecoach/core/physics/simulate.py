@@ -1,0 +1,438 @@
+"""Batch event simulation of one travelling ball among still balls, rails and pockets.
+
+Leckie and Greenspan (2006) style: each ball moves in closed form (motion.py) from event to
+event, and every event time is a polynomial root (roots.py): end of a phase (closed form),
+cushion contact (a quadratic per wall), contact with a still ball (a quartic), pocket entry (a
+wall crossing inside a pocket mouth). No time step is taken between events. All candidate
+shots of a batch advance together: one loop pass moves every unfinished row to its own next
+event, so a batch of hundreds of shots costs a few dozen numpy passes.
+
+Conventions follow the ideal trace in shots.py: the ball centre moves in the box one radius
+inside the cushion noses; a crossing of that box inside a pocket mouth is a pocket entry
+(clean when the line of travel clears both jaw points by a radius); the first ball the row
+meets ends its path, after which it runs on (balls ignored) to find its landing, the first
+wall crossing after the family's rails.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from ..table import POCKETS, RAILS, TableSpec
+from .cushion import rail_impact
+from .motion import ROLLING, SPINNING, accel, evolve, phase_duration, phase_of, settle
+from .params import BallModel
+from .roots import first_quadratic_root, first_quartic_root
+
+_NORMALS = np.array([[-1.0, 0.0], [1.0, 0.0], [0.0, -1.0], [0.0, 1.0]])
+"""Outward normals of head, foot, left, right (RAILS order)."""
+
+
+@dataclass(slots=True)
+class Segment:
+    """One event-to-event stretch of every row (kept only when recording paths)."""
+
+    r: np.ndarray
+    v: np.ndarray
+    w: np.ndarray
+    phase: np.ndarray
+    dt: np.ndarray
+    live: np.ndarray
+
+
+@dataclass(slots=True)
+class SimResult:
+    """What each row did (arrays over rows; -1 / nan where a thing did not happen).
+
+    ``walls`` crossings made (cushions and the pocket mouth), ``hits`` (n, maxw) the rail codes
+    (RAILS order) of each crossing and ``hit_at`` (n, maxw) the along-rail coordinate;
+    ``ball``/``ball_walls``/``ball_pos`` the first still ball met, after how many crossings,
+    and where the moving centre was; ``pocket``/``pocket_walls``/``pocket_clean`` the pocket
+    entered (POCKETS index); ``landing_rail``/``landing_at`` the crossing after the family's
+    rails; ``stop_pos`` where a row came to rest; ``miss`` the signed closest approach of the
+    target point after the family's rails (left of travel positive); ``order_ok`` the family's
+    rails were the first crossings, in order, all on cushion; ``scores`` the shot made it.
+    """
+
+    walls: np.ndarray
+    hits: np.ndarray
+    hit_at: np.ndarray
+    ball: np.ndarray
+    ball_walls: np.ndarray
+    ball_pos: np.ndarray
+    pocket: np.ndarray
+    pocket_walls: np.ndarray
+    pocket_clean: np.ndarray
+    pocket_pos: np.ndarray
+    landing_rail: np.ndarray
+    landing_at: np.ndarray
+    stop_pos: np.ndarray
+    last_dir: np.ndarray
+    miss: np.ndarray
+    order_ok: np.ndarray
+    scores: np.ndarray
+    events: int
+    ball_event: np.ndarray = field(default_factory=lambda: np.zeros(0, dtype=np.int64))
+    segments: list[Segment] = field(default_factory=list)
+
+
+def _pocket_arrays(table: TableSpec) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    ps = table.pockets()
+    ja = np.array([ps[n].jaw_a for n in POCKETS])
+    jb = np.array([ps[n].jaw_b for n in POCKETS])
+    aim = np.array([ps[n].aim for n in POCKETS])
+    member = np.array([[r in ps[n].rails for n in POCKETS] for r in RAILS])  # (4, 6)
+    return ja, jb, aim, member
+
+
+def _on_cushion(table: TableSpec, rail: np.ndarray, along: np.ndarray) -> np.ndarray:
+    out = np.zeros(rail.shape[0], dtype=bool)
+    for code, name in enumerate(RAILS):
+        sel = rail == code
+        if not sel.any():
+            continue
+        ok = np.zeros(int(sel.sum()), dtype=bool)
+        for a, b in table.cushion_segments(name):
+            ok |= (along[sel] >= a) & (along[sel] <= b)
+        out[sel] = ok
+    return out
+
+
+def simulate(
+    m: BallModel,
+    table: TableSpec,
+    rails: tuple[str, ...],
+    r0: np.ndarray,
+    v0: np.ndarray,
+    w0: np.ndarray,
+    balls: np.ndarray,
+    ball_from: np.ndarray,
+    target_point: np.ndarray,
+    target_pocket: np.ndarray,
+    record: bool = False,
+    max_events: int = 200,
+) -> SimResult:
+    """Run every row to its landing, a pocket, or rest.
+
+    ``r0, v0, w0`` (n, 2), (n, 2), (n, 3) the travelling ball's start; ``balls`` (n, k, 2) still
+    balls (nan rows absent; ball 0 is the target ball when the target is a ball); ``ball_from``
+    (n, k) how many crossings the row must have made before a ball counts (the ideal trace
+    ignores the cue ball on a bank until the object has left its first rail);
+    ``target_point`` (n, 2) the point whose closest approach is ``miss``; ``target_pocket``
+    (n,) POCKETS index or -1.
+    """
+    n = r0.shape[0]
+    nf = len(rails)
+    maxw = nf + 1
+    rail_codes = np.array([RAILS.index(x) for x in rails], dtype=np.int64)
+    R = m.radius
+    lo = np.array([R, R])
+    hi = np.array([table.length - R, table.width - R])
+    ja, jb, paim, member = _pocket_arrays(table)
+    r = np.array(r0, dtype=float)
+    v = np.array(v0, dtype=float)
+    w = np.array(w0, dtype=float)
+    k = balls.shape[1]
+    walls = np.zeros(n, dtype=np.int64)
+    hits = np.full((n, maxw), -1, dtype=np.int64)
+    hit_at = np.full((n, maxw), np.nan)
+    ball = np.full(n, -1, dtype=np.int64)
+    ball_walls = np.full(n, -1, dtype=np.int64)
+    ball_pos = np.full((n, 2), np.nan)
+    ball_event = np.full(n, -1, dtype=np.int64)
+    pocket = np.full(n, -1, dtype=np.int64)
+    pocket_walls = np.full(n, -1, dtype=np.int64)
+    pocket_clean = np.zeros(n, dtype=bool)
+    pocket_pos = np.full((n, 2), np.nan)
+    landing_rail = np.full(n, -1, dtype=np.int64)
+    landing_at = np.full(n, np.nan)
+    stop_pos = np.full((n, 2), np.nan)
+    last_dir = np.zeros((n, 2))
+    best = np.full(n, np.inf)
+    miss = np.full(n, np.nan)
+    at_rest = np.zeros(n, dtype=bool)
+    live = np.ones(n, dtype=bool)
+    phase = phase_of(m, v, w)
+    segments: list[Segment] = []
+    events = 0
+    sp0 = np.hypot(v[:, 0], v[:, 1])
+    last_dir[sp0 > 0] = v[sp0 > 0] / sp0[sp0 > 0, None]
+    while live.any() and events < max_events:
+        events += 1
+        idx = np.flatnonzero(live)
+        # balls at rest leave the simulation
+        rest = phase[idx] <= SPINNING
+        if rest.any():
+            stop_pos[idx[rest]] = r[idx[rest]]
+            live[idx[rest]] = False
+            idx = idx[~rest]
+            if idx.size == 0:
+                break
+        ri, vi, wi, ph = r[idx], v[idx], w[idx], phase[idx]
+        a = accel(m, vi, wi, ph)
+        t_end = phase_duration(m, vi, wi, ph)
+        # cushion (box) crossings: one quadratic per wall
+        sgn = np.array([1.0, -1.0, 1.0, -1.0])
+        ax4 = np.array([0, 0, 1, 1])
+        wall4 = np.array([lo[0], hi[0], lo[1], hi[1]])
+        c2 = 0.5 * a[:, ax4] * sgn
+        c1 = vi[:, ax4] * sgn
+        c0 = (ri[:, ax4] - wall4) * sgn
+        t_wall = first_quadratic_root(c2, c1, c0, t_end[:, None])
+        wall_code = np.argmin(t_wall, axis=1)
+        t_w = t_wall[np.arange(idx.size), wall_code]
+        # still balls: one quartic per ball
+        t_b = np.full(idx.size, np.inf)
+        b_id = np.full(idx.size, -1, dtype=np.int64)
+        if k:
+            bb = balls[idx]
+            act = (
+                ~np.isnan(bb[:, :, 0])
+                & (walls[idx, None] >= ball_from[idx])
+                & (ball[idx, None] < 0)
+            )
+            # prefilter: a ball farther from the line of travel than the path can bend, or
+            # beyond the distance the row can cover before its next wall or phase end, is
+            # never met in this stretch
+            T = np.minimum(t_end, t_w)
+            T = np.where(np.isfinite(T), T, 1e3)
+            spd = np.hypot(vi[:, 0], vi[:, 1])
+            amag = np.hypot(a[:, 0], a[:, 1])
+            reach = spd * T + 0.5 * amag * T * T
+            dx = bb[:, :, 0] - ri[:, None, 0]
+            dy = bb[:, :, 1] - ri[:, None, 1]
+            gap = np.hypot(dx, dy)
+            with np.errstate(invalid="ignore", divide="ignore"):
+                ux = vi[:, 0] / np.maximum(spd, 1e-300)
+                uy = vi[:, 1] / np.maximum(spd, 1e-300)
+            perp = np.abs(ux[:, None] * dy - uy[:, None] * dx)
+            bend = (0.5 * amag * T * T)[:, None]
+            act &= (gap - 2.0 * R <= reach[:, None] + 1e-9) & (perp - 2.0 * R <= bend + 1e-9)
+            rows, cols = np.nonzero(act)
+            if rows.size:
+                p = ri[rows] - bb[rows, cols]
+                vv, aa = vi[rows], a[rows]
+                coef = np.stack(
+                    (
+                        0.25 * np.sum(aa * aa, axis=1),
+                        np.sum(vv * aa, axis=1),
+                        np.sum(vv * vv, axis=1) + np.sum(p * aa, axis=1),
+                        2.0 * np.sum(p * vv, axis=1),
+                        np.sum(p * p, axis=1) - (2.0 * R) ** 2,
+                    ),
+                    axis=1,
+                )
+                tb = first_quartic_root(coef, np.minimum(t_end, t_w)[rows])
+                tbm = np.full((idx.size, k), np.inf)
+                tbm[rows, cols] = tb
+                b_id = np.argmin(tbm, axis=1)
+                t_b = tbm[np.arange(idx.size), b_id]
+                b_id = np.where(np.isfinite(t_b), b_id, -1)
+        dt = np.minimum(np.minimum(t_end, t_w), t_b)
+        dt = np.where(np.isfinite(dt), dt, 0.0)
+        if record:
+            segments.append(Segment(ri.copy(), vi.copy(), wi.copy(), ph.copy(), dt.copy(), idx))
+        r2, v2, w2 = evolve(m, ri, vi, wi, ph, dt, a)
+        sp = np.hypot(v2[:, 0], v2[:, 1])
+        mv = sp > 1e-12
+        last_dir[idx[mv]] = v2[mv] / sp[mv, None]
+        is_ball = np.isfinite(t_b) & (t_b <= dt) & (t_b < t_w)
+        is_wall = ~is_ball & np.isfinite(t_w) & (t_w <= dt)
+        is_end = ~is_ball & ~is_wall
+        # closest approach of the target point while after the family's rails
+        after = (walls[idx] == nf) & (pocket[idx] < 0)
+        if after.any():
+            to_rest = (ph == ROLLING) & (t_end <= dt)
+            _closest(
+                ri, vi, a, dt, target_point[idx], after, to_rest, is_wall, best, miss, at_rest, idx
+            )
+        # ball contact: note it, and run on through the ball (balls ignored from now)
+        if is_ball.any():
+            bi = idx[is_ball]
+            ball[bi] = b_id[is_ball]
+            ball_walls[bi] = walls[bi]
+            ball_pos[bi] = r2[is_ball]
+            ball_event[bi] = len(segments) - 1 if record else events - 1
+        # phase ends
+        if is_end.any():
+            settle(m, v2, w2, is_end, ph)
+        # wall crossings
+        if is_wall.any():
+            wi_rows = np.flatnonzero(is_wall)
+            rows = idx[wi_rows]
+            code = wall_code[wi_rows]
+            ax = np.where(code < 2, 0, 1)
+            wallv = np.where(code % 2 == 0, lo[ax], hi[ax])
+            r2[wi_rows, ax] = wallv  # exactly on the wall
+            along = r2[wi_rows, 1 - ax]
+            cnt = walls[rows]
+            slot = np.minimum(cnt, maxw - 1)
+            hits[rows, slot] = code
+            hit_at[rows, slot] = along
+            walls[rows] = cnt + 1
+            cush = _on_cushion(table, code, along)
+            land = (cnt + 1 == maxw) & (landing_rail[rows] < 0)
+            landing_rail[rows[land]] = code[land]
+            landing_at[rows[land]] = along[land]
+            # pocket entries
+            pk = ~cush
+            if pk.any():
+                pr = rows[pk]
+                pc = code[pk]
+                al = along[pk]
+                pos = r2[wi_rows[pk]]
+                dist = np.abs(
+                    np.where(pc[:, None] < 2, paim[None, :, 1], paim[None, :, 0]) - al[:, None]
+                )
+                dist = np.where(member[pc], dist, np.inf)
+                which = np.argmin(dist, axis=1)
+                d = v2[wi_rows[pk]]
+                d = d / np.maximum(np.hypot(d[:, 0], d[:, 1]), 1e-300)[:, None]
+                da = d[:, 0] * (ja[which, 1] - pos[:, 1]) - d[:, 1] * (ja[which, 0] - pos[:, 0])
+                db = d[:, 0] * (jb[which, 1] - pos[:, 1]) - d[:, 1] * (jb[which, 0] - pos[:, 0])
+                # the row crosses the box outward, so it is heading into the mouth
+                clean = (da * db < 0) & (np.minimum(np.abs(da), np.abs(db)) >= R - 1e-12)
+                pocket[pr] = which
+                pocket_walls[pr] = cnt[pk] + 1
+                pocket_clean[pr] = clean
+                pocket_pos[pr] = pos
+                nl = landing_rail[pr] < 0
+                landing_rail[pr[nl]] = pc[nl]
+                landing_at[pr[nl]] = al[nl]
+                live[pr] = False
+            # cushion impacts for rows still going (the landing crossing ends a row)
+            go = cush & ~land
+            live[rows[cush & land]] = False
+            if go.any():
+                gi = wi_rows[go]
+                nv, nw = rail_impact(m, _NORMALS[code[go]], v2[gi], w2[gi])
+                v2[gi], w2[gi] = nv, nw
+        r[idx], v[idx], w[idx] = r2, v2, w2
+        phase[idx] = phase_of(m, v2, w2)
+    # order and scoring
+    if nf:
+        order_ok = (walls >= nf) & np.all(hits[:, :nf] == rail_codes[None, :], axis=1)
+        on_c = np.ones(n, dtype=bool)
+        on_c &= ~((pocket >= 0) & (pocket_walls <= nf))
+        order_ok &= on_c
+    else:
+        order_ok = np.ones(n, dtype=bool)
+    target_is_ball = ~np.isnan(balls[:, 0, 0]) if k else np.zeros(n, dtype=bool)
+    sc_ball = target_is_ball & (ball == 0) & (ball_walls == nf) & order_ok
+    sc_pocket = (
+        (target_pocket >= 0)
+        & (pocket == target_pocket)
+        & (pocket_walls == nf + 1)
+        & pocket_clean
+        & order_ok
+        & (ball < 0)
+    )
+    scores = sc_ball | sc_pocket
+    # a row whose nearest approach is where it came to rest never passed the target: no miss
+    miss = np.where(order_ok & ~(at_rest & (ball < 0)), miss, np.nan)
+    return SimResult(
+        walls,
+        hits,
+        hit_at,
+        ball,
+        ball_walls,
+        ball_pos,
+        pocket,
+        pocket_walls,
+        pocket_clean,
+        pocket_pos,
+        landing_rail,
+        landing_at,
+        stop_pos,
+        last_dir,
+        miss,
+        order_ok,
+        scores,
+        events,
+        ball_event,
+        segments,
+    )
+
+
+def _closest(
+    r: np.ndarray,
+    v: np.ndarray,
+    a: np.ndarray,
+    dt: np.ndarray,
+    c: np.ndarray,
+    sel: np.ndarray,
+    to_rest: np.ndarray,
+    to_wall: np.ndarray,
+    best: np.ndarray,
+    miss: np.ndarray,
+    at_rest: np.ndarray,
+    idx: np.ndarray,
+) -> None:
+    """Update the closest approach of point c to the path r + v t + a t^2/2, t in [0, dt].
+
+    Minimises |r(t) - c|^2 by Newton steps on (r(t) - c) . v(t) from the straight-line
+    estimate, clipped to the interval; the signed distance is positive with c left of travel.
+    """
+    p = r[sel] - c[sel]
+    vv, aa, T = v[sel], a[sel], dt[sel]
+    v2 = np.sum(vv * vv, axis=1)
+    t = np.clip(-np.sum(p * vv, axis=1) / np.maximum(v2, 1e-300), 0.0, T)
+    for _ in range(4):
+        q = p + vv * t[:, None] + 0.5 * aa * (t * t)[:, None]
+        u = vv + aa * t[:, None]
+        g = np.sum(q * u, axis=1)
+        dg = np.sum(u * u, axis=1) + np.sum(q * aa, axis=1)
+        t = np.clip(t - g / np.where(np.abs(dg) > 1e-300, dg, 1.0), 0.0, T)
+    q = p + vv * t[:, None] + 0.5 * aa * (t * t)[:, None]
+    u = vv + aa * t[:, None]
+    dist = np.hypot(q[:, 0], q[:, 1])
+    us = np.hypot(u[:, 0], u[:, 1])
+    cross = u[:, 0] * (-q[:, 1]) - u[:, 1] * (-q[:, 0])
+    side = np.sign(cross)
+    side = np.where((us > 1e-12) & (side != 0), side, 1.0)
+    # a stretch that ends on a wall with the point still ahead (a pocket mouth beyond the
+    # box): measure on the line of travel carried on past the wall
+    ahead = to_wall[sel] & (t >= T * (1.0 - 1e-12)) & (np.sum(-q * u, axis=1) > 0)
+    dist = np.where(ahead, np.abs(cross) / np.maximum(us, 1e-300), dist)
+    rows = idx[sel]
+    better = dist < best[rows]
+    best[rows[better]] = dist[better]
+    miss[rows[better]] = side[better] * dist[better]
+    at_rest[rows[better]] = (to_rest[sel] & (t >= T * (1.0 - 1e-9)))[better]
+
+
+def sample_path(
+    m: BallModel, res: SimResult, row: int, per_segment: int = 12, until_ball: bool = True
+) -> list[tuple[float, float]]:
+    """Points along one recorded row's curved path, from the start to where it ended.
+
+    With ``until_ball`` the path stops where the row met its first ball (as the ideal trace).
+    """
+    pts: list[tuple[float, float]] = []
+    last = int(res.ball_event[row]) if until_ball and res.ball[row] >= 0 else len(res.segments)
+    for seg in res.segments[: last + 1]:
+        hit = np.flatnonzero(seg.live == row)
+        if hit.size == 0:
+            continue
+        j = int(hit[0])
+        T = float(seg.dt[j])
+        sl = slice(j, j + 1)
+        ts = np.linspace(0.0, T, per_segment + 1) if T > 0 else np.zeros(1)
+        nseg = ts.size
+        rr, _, _ = evolve(
+            m,
+            np.repeat(seg.r[sl], nseg, axis=0),
+            np.repeat(seg.v[sl], nseg, axis=0),
+            np.repeat(seg.w[sl], nseg, axis=0),
+            np.repeat(seg.phase[sl], nseg),
+            ts,
+        )
+        pts.extend((float(x), float(y)) for x, y in rr)
+    # drop repeats
+    out: list[tuple[float, float]] = []
+    for p in pts:
+        if not out or abs(out[-1][0] - p[0]) > 1e-12 or abs(out[-1][1] - p[1]) > 1e-12:
+            out.append(p)
+    return out
