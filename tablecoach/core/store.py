@@ -240,23 +240,19 @@ def _to_row(a: Attempt) -> tuple[Any, ...]:
     )
 
 
-def _opt(x: float | None, y: float | None) -> tuple[float, float] | None:
-    return None if x is None or y is None else (x, y)
-
-
 def _from_row(r: Sequence[Any], id_: int | None = None) -> Attempt:
+    """A row selected as ``_COLS`` (plus id) back to an Attempt (the hot path of queries)."""
     shot = ShotRecord(
         r[3],
         tuple(r[4].split(",")),
         (r[9], r[10]),
-        _opt(r[11], r[12]),
+        None if r[11] is None else (r[11], r[12]),
         r[6],
-        _opt(r[7], r[8]),
+        None if r[7] is None else (r[7], r[8]),
         r[5],
     )
-    n = len(r)
     return Attempt(
-        datetime.fromisoformat(r[0]),
+        _fromiso(r[0]),
         r[1],
         r[2],
         shot,
@@ -270,12 +266,15 @@ def _from_row(r: Sequence[Any], id_: int | None = None) -> Attempt:
         r[20],
         r[21],
         r[22],
-        r[23] if n > 23 and r[23] is not None else "ideal",
-        r[24] if n > 24 and r[24] is not None else "",
-        r[25] if n > 25 and r[25] is not None else "",
-        r[26] if n > 26 else None,
+        r[23],
+        r[24],
+        r[25],
+        r[26],
         id_,
     )
+
+
+_fromiso = datetime.fromisoformat
 
 
 def attempt_identity(a: Attempt) -> str:
@@ -730,30 +729,38 @@ class Store:
         checked = [validate_attempt(a) for a in items]
         added = dups = 0
         seen: set[str] = set()
+        insert = f"INSERT INTO attempts ({_COLS}, ident) VALUES ({', '.join('?' * 28)})"
         for start in range(0, len(checked), _IMPORT_CHUNK):
+            # keys and rows are built before the write lock is taken, to keep it short
             chunk = checked[start : start + _IMPORT_CHUNK]
+            prepared = [(attempt_identity(a), _to_row(a)[:-1]) for a in chunk]
             with self._write() as c:
-                for a in chunk:
-                    ident = attempt_identity(a)
-                    if (
-                        ident in seen
-                        or c.execute(
-                            "SELECT 1 FROM attempts WHERE ident = ? LIMIT 1", (ident,)
-                        ).fetchone()
-                    ):
+                idents = [k for k, _ in prepared]
+                stored: set[str] = set()
+                for q in range(0, len(idents), 500):
+                    part = idents[q : q + 500]
+                    marks = ", ".join("?" * len(part))
+                    stored.update(
+                        r[0]
+                        for r in c.execute(
+                            f"SELECT ident FROM attempts WHERE ident IN ({marks})", part
+                        )
+                    )
+                rows = []
+                players: dict[str, str] = {}
+                for ident, row in prepared:
+                    if ident in seen or ident in stored:
                         dups += 1
                         continue
                     seen.add(ident)
-                    row = _to_row(replace(a, session=None))
-                    c.execute(
-                        f"INSERT INTO attempts ({_COLS}, ident) VALUES ({', '.join('?' * 28)})",
-                        (*row, ident),
-                    )
-                    c.execute(
-                        "INSERT OR IGNORE INTO players (name, created) VALUES (?, ?)",
-                        (a.player, row[0]),
-                    )
-                    added += 1
+                    rows.append((*row, None, ident))
+                    players.setdefault(row[1], row[0])
+                c.executemany(insert, rows)
+                c.executemany(
+                    "INSERT OR IGNORE INTO players (name, created) VALUES (?, ?)",
+                    players.items(),
+                )
+                added += len(rows)
         return added, dups
 
     # ----- tables -----------------------------------------------------------------------------
