@@ -17,7 +17,7 @@ from typing import Any
 import numpy as np
 
 from .records import Attempt
-from .shots import speed_name
+from .shots import SPEED_BANDS
 from .table import BUILTIN_TABLES, TableSpec
 
 # ----- streaks -------------------------------------------------------------------------------
@@ -361,60 +361,134 @@ class LandingBias:
     short: int
 
 
-def landing_offsets(
-    attempts: Sequence[Attempt], table_of: Callable[[str], TableSpec | None] | None = None
+# ----- the columnar engine (fast path for large histories) ----------------------------------
+
+_EPOCH = date(1970, 1, 1)
+
+
+def _codes(values: Sequence[Hashable]) -> tuple[np.ndarray, tuple[Any, ...]]:
+    """Integer codes for values, in order of first appearance, and the distinct values."""
+    distinct = tuple(dict.fromkeys(values))
+    index = {v: i for i, v in enumerate(distinct)}
+    return np.array([index[v] for v in values], dtype=np.int64), distinct
+
+
+@dataclass(frozen=True, slots=True)
+class Columns:
+    """Attempts as numpy columns, in time order (``attempts`` in that order; ``order[i]`` is
+    the position of ``attempts[i]`` in the input). ``*_code`` arrays index the tuple beside
+    them; ``start`` is the travelling ball's start in diamonds (object ball for banks)."""
+
+    attempts: tuple[Attempt, ...]
+    order: np.ndarray
+    ts: np.ndarray
+    hit: np.ndarray
+    family: np.ndarray
+    families: tuple[str, ...]
+    session: np.ndarray
+    sessions: tuple[Any, ...]
+    speed: np.ndarray
+    start: np.ndarray
+    shape: np.ndarray
+    shapes: tuple[tuple[str, tuple[str, ...], str], ...]
+    aim_used: np.ndarray
+    landing_rail: np.ndarray
+    landing_at: np.ndarray
+
+
+def columns(attempts: Iterable[Attempt]) -> Columns:
+    """Put attempts in time order (``when``, then id) and lay them out as columns."""
+    items = list(attempts)
+    n = len(items)
+    ts = np.array([a.when.timestamp() for a in items], dtype=np.float64)
+    order = np.arange(n)
+    if n > 1 and not bool(np.all(np.diff(ts) >= 0.0)):
+        ids = np.array([a.id if a.id is not None else -1 for a in items], dtype=np.int64)
+        order = np.lexsort((ids, ts))
+        items = [items[i] for i in order]
+        ts = ts[order]
+    shots_ = [a.shot for a in items]
+    hit = np.array([a.result == "hit" for a in items], dtype=np.bool_)
+    fam, fams = _codes([s.family or "custom" for s in shots_])
+    ses, sess = _codes(
+        [a.session if a.session is not None else ("unsaved", a.player, a.table) for a in items]
+    )
+    shape, shapes = _codes([(a.table, a.shot.rails, a.aim_rail) for a in items])
+    start = np.array(
+        [s.object if s.travel == "object" and s.object is not None else s.cue for s in shots_],
+        dtype=np.float64,
+    ).reshape(n, 2)
+    return Columns(
+        attempts=tuple(items),
+        order=order,
+        ts=ts,
+        hit=hit,
+        family=fam,
+        families=fams,
+        session=ses,
+        sessions=sess,
+        speed=np.array([a.speed for a in items], dtype=np.float64),
+        start=start,
+        shape=shape,
+        shapes=shapes,
+        aim_used=np.array([a.aim_used for a in items], dtype=np.float64),
+        landing_rail=np.array([_RAIL_CODE.get(a.landing_rail, 0) for a in items], np.int64),
+        landing_at=np.array([a.landing_at for a in items], dtype=np.float64),
+    )
+
+
+def offsets_of(
+    cols: Columns, table_of: Callable[[str], TableSpec | None] | None = None
 ) -> np.ndarray:
-    """Signed landing offset (diamonds, + long) of each attempt from the ideal landing of its
-    ``aim_used``; NaN where the table is unknown or the aim rail is not the family's first."""
+    """``landing_offsets`` over columns, in the columns' (time) order."""
     look = table_of or BUILTIN_TABLES.get
-    out = np.full(len(attempts), np.nan)
-    groups: dict[tuple[str, tuple[str, ...], str, str], list[int]] = {}
-    for i, a in enumerate(attempts):
-        s = a.shot
-        if not s.rails or a.aim_rail != s.rails[0]:
-            continue
-        groups.setdefault((a.table, s.rails, a.aim_rail, s.travel), []).append(i)
+    out = np.full(len(cols.attempts), np.nan)
     specs: dict[str, TableSpec | None] = {}
-    for (table, rails, aim_rail, travel), idx in groups.items():
+    for g, (table, rails, aim_rail) in enumerate(cols.shapes):
+        if not rails or aim_rail != rails[0]:
+            continue
         if table not in specs:
             specs[table] = look(table)
         spec = specs[table]
         if spec is None:
             continue
-        sel = [attempts[i] for i in idx]
-        if travel == "object":
-            starts = np.array([a.shot.object or a.shot.cue for a in sel], dtype=float)
-        else:
-            starts = np.array([a.shot.cue for a in sel], dtype=float)
-        readings = np.array([a.aim_used for a in sel], dtype=float)
-        code, at, sense = ideal_landings(spec, starts, rails, aim_rail, readings)
-        logged_code = np.array([_RAIL_CODE[a.landing_rail] for a in sel])
-        logged_at = np.array([a.landing_at for a in sel], dtype=float)
-        diff = _perimeter_array(logged_code, logged_at) - _perimeter_array(code, at)
+        idx = np.flatnonzero(cols.shape == g)
+        lc, at, sense = ideal_landings(spec, cols.start[idx], rails, aim_rail, cols.aim_used[idx])
+        logged = _perimeter_array(cols.landing_rail[idx], cols.landing_at[idx])
+        diff = logged - _perimeter_array(lc, at)
         diff = (diff + 12.0) % 24.0 - 12.0
-        out[np.array(idx)] = diff * sense
+        out[idx] = diff * sense
     return out
 
 
-def landing_bias(
-    attempts: Sequence[Attempt],
-    table_of: Callable[[str], TableSpec | None] | None = None,
-    offsets: np.ndarray | None = None,
-) -> list[LandingBias]:
-    """Landing bias by family and speed band (shots.speed_name), largest groups first."""
-    off = landing_offsets(attempts, table_of) if offsets is None else offsets
-    groups: dict[tuple[str, str], list[float]] = {}
-    for a, o in zip(attempts, off, strict=True):
-        if not math.isnan(o):
-            groups.setdefault((a.shot.family, speed_name(a.speed)), []).append(float(o))
+def landing_offsets(
+    attempts: Sequence[Attempt], table_of: Callable[[str], TableSpec | None] | None = None
+) -> np.ndarray:
+    """Signed landing offset (diamonds, + long) of each attempt, in the order given, from the
+    ideal landing of its ``aim_used``; NaN where the table is unknown or the aim rail is not
+    the family's first. The quantity of calibrate.landing_error under the ideal model,
+    vectorised per rail sequence (``ideal_landings``)."""
+    cols = columns(attempts)
+    out = np.full(len(cols.attempts), np.nan)
+    out[cols.order] = offsets_of(cols, table_of)
+    return out
+
+
+def bias_of(cols: Columns, offsets: np.ndarray) -> list[LandingBias]:
+    """``landing_bias`` over columns and their offsets."""
+    if len(cols.attempts) == 0:
+        return []
+    band, bands = _codes(_speed_bands(cols.speed).tolist())
+    key = cols.family * len(bands) + band
+    ok = ~np.isnan(offsets)
     out = []
-    for (fam, spd), vals in groups.items():
-        v = np.asarray(vals)
+    for k in np.unique(key[ok]).tolist():
+        v = offsets[(key == k) & ok]
         sd = float(v.std(ddof=1)) if len(v) > 1 else 0.0
         out.append(
             LandingBias(
-                fam,
-                spd,
+                cols.families[k // len(bands)],
+                str(bands[k % len(bands)]),
                 len(v),
                 float(v.mean()),
                 float(np.median(v)),
@@ -427,7 +501,162 @@ def landing_bias(
     return out
 
 
-# ----- zones on the table -----------------------------------------------------------------
+def landing_bias(
+    attempts: Sequence[Attempt], table_of: Callable[[str], TableSpec | None] | None = None
+) -> list[LandingBias]:
+    """Landing bias by family and speed band (shots.speed_name), largest groups first."""
+    cols = columns(attempts)
+    return bias_of(cols, offsets_of(cols, table_of))
+
+
+def zone_codes_of(cols: Columns) -> tuple[np.ndarray, tuple[Any, ...]]:
+    """Each attempt's coach zone (core/coach.py ``zone_of``) as an integer code, computed with
+    the coach's own grid constants and ``cell_of`` rule, and the Zone of each code."""
+    from . import coach  # noqa: PLC0415  (the coach owns the zone grid)
+
+    n = len(cols.attempts)
+    if n == 0:
+        return np.zeros(0, np.int64), ()
+    col = np.clip(np.floor(cols.start[:, 0] / coach.COL_WIDTH), 0, coach.ZONE_COLS - 1)
+    row = np.clip(np.floor(cols.start[:, 1] / coach.ROW_HEIGHT), 0, coach.ZONE_ROWS - 1)
+    band, bands = _codes(_speed_bands(cols.speed).tolist())
+    nb = len(bands)
+    raw = (
+        (cols.family * coach.ZONE_COLS + col.astype(np.int64)) * coach.ZONE_ROWS
+        + row.astype(np.int64)
+    ) * nb + band
+    uniq, inv = np.unique(raw, return_inverse=True)
+    zones = []
+    for r in uniq.tolist():
+        b, r = r % nb, r // nb
+        rw, r = r % coach.ZONE_ROWS, r // coach.ZONE_ROWS
+        cl, f = r % coach.ZONE_COLS, r // coach.ZONE_COLS
+        zones.append(coach.Zone(cols.families[f], cl, rw, str(bands[b])))
+    return inv.reshape(-1).astype(np.int64), tuple(zones)
+
+
+def zone_codes(items: Sequence[Attempt]) -> tuple[list[Any], tuple[Any, ...]]:
+    """The coach Zone of each attempt, in the order given (vectorised ``coach.zone_of``)."""
+    cols = columns(items)
+    code, zones = zone_codes_of(cols)
+    out: list[Any] = [None] * len(items)
+    for i, c in zip(cols.order.tolist(), code.tolist(), strict=True):
+        out[i] = zones[c]
+    return out, zones
+
+
+def group_streaks(codes: np.ndarray, hit: np.ndarray, groups: int) -> tuple[np.ndarray, np.ndarray]:
+    """Current and best hit streak of each group code 0..groups-1 (time order kept within each
+    group); the vectorised equal of ``streak`` applied group by group."""
+    cur = np.zeros(groups, np.int64)
+    best = np.zeros(groups, np.int64)
+    n = len(codes)
+    if n == 0:
+        return cur, best
+    order = np.argsort(codes, kind="stable")
+    c = codes[order]
+    h = hit[order]
+    idx = np.arange(n)
+    first = np.ones(n, bool)
+    first[1:] = c[1:] != c[:-1]
+    group_start = np.maximum.accumulate(np.where(first, idx, 0))
+    last_miss = np.maximum.accumulate(np.where(~h, idx, -1))
+    run = idx - np.maximum(last_miss, group_start - 1)
+    starts = np.flatnonzero(first)
+    ends = np.append(starts[1:], n) - 1
+    present = c[starts]
+    best[present] = np.maximum.reduceat(run, starts)
+    cur[present] = run[ends]
+    return cur, best
+
+
+def group_rates(
+    codes: np.ndarray, hit: np.ndarray, groups: int, confidence: float = 0.95
+) -> list[Rate]:
+    """The Wilson rate of each group code 0..groups-1."""
+    n = np.bincount(codes, minlength=groups)
+    k = np.bincount(codes, weights=hit.astype(np.float64), minlength=groups)
+    return [wilson(int(k[g]), int(n[g]), confidence) for g in range(groups)]
+
+
+def local_days(ts: np.ndarray, tz: tzinfo | None = None) -> np.ndarray:
+    """Local calendar day of each UTC timestamp (days since 1970-01-01 in ``tz``).
+
+    Offsets are looked up once per distinct UTC hour; an hour holding a change of offset (a
+    daylight-saving switch off the hour) is resolved attempt by attempt, so the result equals
+    ``local_date`` for every attempt.
+    """
+    if len(ts) == 0:
+        return np.zeros(0, np.int64)
+    hours = np.floor(ts / 3600.0).astype(np.int64)
+    uniq, inv = np.unique(hours, return_inverse=True)
+
+    def offset(t: float) -> float:
+        d = datetime.fromtimestamp(t, tz) if tz is not None else datetime.fromtimestamp(t)
+        if tz is None:
+            d = d.astimezone()
+        off = d.utcoffset()
+        return off.total_seconds() if off is not None else 0.0
+
+    lo = np.array([offset(float(h) * 3600.0) for h in uniq])
+    hi = np.array([offset(float(h) * 3600.0 + 3599.999) for h in uniq])
+    offs = lo[inv]
+    mixed = np.flatnonzero(lo != hi)
+    if len(mixed):
+        for i in np.flatnonzero(np.isin(inv, mixed)):
+            offs[i] = offset(float(ts[i]))
+    return np.floor((ts + offs) / 86400.0).astype(np.int64)
+
+
+def _day(d: int) -> date:
+    return _EPOCH + timedelta(days=int(d))
+
+
+def weeks_from_day_numbers(
+    days: np.ndarray, hit: np.ndarray, confidence: float = 0.95
+) -> list[WeekRate]:
+    """Weekly rates from local day numbers (the vectorised ``weekly_from_days``)."""
+    if len(days) == 0:
+        return []
+    monday = days - (days + 3) % 7  # 1970-01-01 was a Thursday (weekday 3, Monday = 0)
+    first = int(monday.min())
+    slot = (monday - first) // 7
+    count = int(slot.max()) + 1
+    rates = group_rates(slot, hit, count, confidence)
+    out = []
+    for i, r in enumerate(rates):
+        m = _day(first + 7 * i)
+        iso = m.isocalendar()
+        out.append(WeekRate(iso.year, iso.week, m, r))
+    return out
+
+
+def _speed_bands(speed: np.ndarray) -> np.ndarray:
+    """``shots.speed_name`` of each speed, vectorised (same published bands, same edges)."""
+    names = list(SPEED_BANDS)
+    conds = [(speed >= lo) & (speed < hi) for lo, hi in SPEED_BANDS.values()]
+    lowest = SPEED_BANDS[names[0]][0]
+    return np.select(conds + [speed < lowest], names + ["soft"], "break")
+
+
+def grid_from_zones(
+    zones: Mapping[Any, Rate],
+    family: str | None = None,
+    speed: str | None = None,
+    confidence: float = 0.95,
+) -> dict[tuple[int, int], Rate]:
+    """Pool zone rates into (col, row) cells of the coach's grid, for one family and speed
+    band or all of them."""
+    counts: dict[tuple[int, int], list[int]] = {}
+    for z, r in zones.items():
+        if family is not None and z.family != family:
+            continue
+        if speed is not None and z.speed != speed:
+            continue
+        c = counts.setdefault((z.col, z.row), [0, 0])
+        c[0] += r.hits
+        c[1] += r.attempts
+    return {k: wilson(h, n, confidence) for k, (h, n) in counts.items()}
 
 
 def grid_rates(
@@ -436,21 +665,12 @@ def grid_rates(
     speed: str | None = None,
     confidence: float = 0.95,
 ) -> dict[tuple[int, int], Rate]:
-    """Make rates per cell of the coach's zone grid (core/coach.py ``zone_of``), keyed
-    (col, row), pooled over families and speed bands unless ``family``/``speed`` pick one."""
-    from .coach import zone_of  # noqa: PLC0415  (coach owns the grid)
-
-    counts: dict[tuple[int, int], list[int]] = {}
-    for a in attempts:
-        if family is not None and a.shot.family != family:
-            continue
-        z = zone_of(a.shot, a.speed)
-        if speed is not None and z.speed != speed:
-            continue
-        c = counts.setdefault((z.col, z.row), [0, 0])
-        c[0] += a.result == "hit"
-        c[1] += 1
-    return {k: wilson(h, n, confidence) for k, (h, n) in counts.items()}
+    """Make rates per (col, row) cell of the coach's zone grid, pooled over families and speed
+    bands unless ``family``/``speed`` pick one."""
+    cols = columns(attempts)
+    code, zones = zone_codes_of(cols)
+    rates = group_rates(code, cols.hit, len(zones), confidence)
+    return grid_from_zones(dict(zip(zones, rates, strict=True)), family, speed, confidence)
 
 
 # ----- the whole picture --------------------------------------------------------------------
@@ -507,46 +727,100 @@ def summarize(
 
     ``tz`` is the player's time zone for days and ISO weeks (None: the machine's local zone);
     ``today`` the local date the current day streak is judged against (None: now in ``tz``);
-    ``zone_fn`` keys each attempt to its zone (None: the coach's ``zone_of`` if available);
+    ``zone_fn`` keys each attempt to its zone (None: the coach's zones, core/coach.py);
     ``table_of`` resolves table names for the landing bias (None: built-in tables only).
+    Works on numpy columns: the same numbers as the one-concept functions above (the tests
+    hold them to each other), fast enough for a hundred thousand attempts.
     """
-    items = ordered(attempts)
+    cols = columns(attempts)
+    items = cols.attempts
+    hit = cols.hit
     if today is None:
         today = datetime.now(tz).date() if tz is not None else datetime.now().astimezone().date()
-    zkey = zone_fn if zone_fn is not None else default_zone_fn()
-    hits = [a.result == "hit" for a in items]
-    days = [local_date(a.when, tz) for a in items]
-    fam_items: dict[str, list[int]] = {}
-    for i, a in enumerate(items):
-        fam_items.setdefault(a.shot.family, []).append(i)
-    family_weeks = {
-        f: tuple(weekly_from_days([days[i] for i in idx], [hits[i] for i in idx], confidence))
-        for f, idx in fam_items.items()
-    }
+    days = local_days(cols.ts, tz)
+    uniq_days = sorted({_day(d) for d in np.unique(days)})
+    nf, ns = len(cols.families), len(cols.sessions)
+    fam_rates = group_rates(cols.family, hit, nf, confidence)
+    fam_cur, fam_best = group_streaks(cols.family, hit, nf)
+    ses_rates = group_rates(cols.session, hit, ns, confidence)
+    ses_cur, ses_best = group_streaks(cols.session, hit, ns)
+    family_weeks = {}
+    for g, f in enumerate(cols.families):
+        sel = cols.family == g
+        family_weeks[f] = tuple(weeks_from_day_numbers(days[sel], hit[sel], confidence))
     zones: dict[Any, Rate] = {}
     zone_streaks: dict[Any, Streak] = {}
-    if zkey is not None:
-        zones = rates_by(items, zkey, confidence)
-        zone_streaks = streaks_by(items, zkey)
-    bias = tuple(landing_bias(items, table_of)) if with_bias else ()
+    if zone_fn is not None:
+        zcode, zkeys = _codes([zone_fn(a) for a in items])
+    else:
+        try:
+            zcode, zkeys = zone_codes_of(cols)
+        except ImportError:
+            zcode, zkeys = np.zeros(0, np.int64), ()
+    if zkeys:
+        nz = len(zkeys)
+        zr = group_rates(zcode, hit, nz, confidence)
+        zc, zb = group_streaks(zcode, hit, nz)
+        zones = {z: zr[i] for i, z in enumerate(zkeys)}
+        zone_streaks = {z: Streak(int(zc[i]), int(zb[i])) for i, z in enumerate(zkeys)}
+    sessions = []
+    if len(items):
+        order = np.argsort(cols.session, kind="stable")
+        sc = cols.session[order]
+        firsts = order[np.flatnonzero(np.r_[True, sc[1:] != sc[:-1]])]
+        lasts = order[np.flatnonzero(np.r_[sc[1:] != sc[:-1], True])]
+        pair = cols.session * max(nf, 1) + cols.family
+        _, first_of_pair = np.unique(pair, return_index=True)
+        fams_of: dict[int, list[str]] = {}
+        for i in np.sort(first_of_pair).tolist():
+            fams_of.setdefault(int(cols.session[i]), []).append(cols.families[int(cols.family[i])])
+        for i0, i1 in zip(firsts.tolist(), lasts.tolist(), strict=True):
+            a0 = items[i0]
+            sessions.append(
+                SessionSummary(
+                    a0.session,
+                    a0.player,
+                    a0.table,
+                    a0.when,
+                    items[i1].when,
+                    ses_rates[int(cols.session[i0])],
+                    Streak(
+                        int(ses_cur[int(cols.session[i0])]), int(ses_best[int(cols.session[i0])])
+                    ),
+                    tuple(fams_of[int(cols.session[i0])]),
+                )
+            )
+        sessions.sort(key=lambda s: s.start)
+    bias = tuple(bias_of(cols, offsets_of(cols, table_of))) if with_bias else ()
+    overall = streak_of_array(hit)
     return History(
-        rate=wilson(sum(hits), len(hits), confidence),
-        streak=streak(hits),
-        days=day_streak(days, today),
-        families=rates_by(items, lambda a: a.shot.family, confidence),
-        family_streaks=streaks_by(items, lambda a: a.shot.family),
+        rate=wilson(int(hit.sum()), len(hit), confidence),
+        streak=overall,
+        days=day_streak(uniq_days, today),
+        families={f: fam_rates[g] for g, f in enumerate(cols.families)},
+        family_streaks={
+            f: Streak(int(fam_cur[g]), int(fam_best[g])) for g, f in enumerate(cols.families)
+        },
         zones=zones,
         zone_streaks=zone_streaks,
-        session_streaks=streaks_by(items, lambda a: a.session),
-        weeks=tuple(weekly_from_days(days, hits, confidence)),
+        session_streaks={
+            s: Streak(int(ses_cur[g]), int(ses_best[g])) for g, s in enumerate(cols.sessions)
+        },
+        weeks=tuple(weeks_from_day_numbers(days, hit, confidence)),
         family_weeks=family_weeks,
-        sessions=tuple(session_list(items, confidence)),
+        sessions=tuple(sessions),
         bias=bias,
         first=items[0].when if items else None,
         last=items[-1].when if items else None,
         players=tuple(sorted({a.player for a in items})),
         tables=tuple(sorted({a.table for a in items})),
     )
+
+
+def streak_of_array(hit: np.ndarray) -> Streak:
+    """``streak`` of a boolean array, vectorised."""
+    cur, best = group_streaks(np.zeros(len(hit), np.int64), hit, 1)
+    return Streak(int(cur[0]), int(best[0]))
 
 
 # ----- plain data for --json ----------------------------------------------------------------

@@ -1,0 +1,308 @@
+"""The history screen: sessions, streaks, a heat map of make rates by zone, trends, filters."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+from datetime import date, datetime, timedelta, tzinfo
+from typing import Any
+
+from rich.table import Table as RichTable
+from rich.text import Text
+from textual import work
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical
+from textual.message import Message
+from textual.screen import Screen
+from textual.widgets import DataTable, Footer, Static
+
+from tablecoach.commands.history import Filters, pct, query, spark, table_resolver
+from tablecoach.core import history
+from tablecoach.render.heatmap import HeatMap, legend_text
+
+DATE_RANGES: tuple[tuple[str, int | None], ...] = (
+    ("all time", None),
+    ("last 7 days", 7),
+    ("last 30 days", 30),
+    ("last 12 weeks", 84),
+)
+"""Date filters the d key steps through: a label and how many local days back (today counts)."""
+
+
+class HistoryLoaded(Message):
+    """The history worker finished (``result`` set) or failed (``error`` set)."""
+
+    def __init__(self, token: int, result: Any = None, error: str = "") -> None:
+        super().__init__()
+        self.token = token
+        self.result = result
+        self.error = error
+
+
+@dataclass(frozen=True)
+class Loaded:
+    """What one load found: the history, and the names it saw for the filter keys."""
+
+    history: history.History
+    players: tuple[str, ...]
+    tables: tuple[str, ...]
+    families: tuple[str, ...]
+
+
+def _step(options: tuple[str | None, ...], current: str | None) -> str | None:
+    """The option after ``current`` (None means all), wrapping round."""
+    if current not in options:
+        return options[0] if options else None
+    return options[(options.index(current) + 1) % len(options)]
+
+
+class HistoryScreen(Screen[None]):
+    """Practice history for one player (or everyone), filtered from the keyboard.
+
+    ``tz`` is the player's time zone for days and weeks (None: the machine's); ``today`` pins
+    the date the day streak and date filters count from (None: today in ``tz``).
+    """
+
+    DEFAULT_CSS = """
+    HistoryScreen { layout: vertical; overflow: hidden hidden; }
+    #history-filters { height: 2; padding: 0 1; background: $boost; }
+    #history-top { height: 17; }
+    #history-streaks { width: 1fr; min-width: 30; padding: 0 1; overflow: hidden hidden; }
+    #history-map-box { width: 50; height: 17; padding: 0 1; }
+    #history-map { width: 48; height: 13; }
+    #history-legend { width: 48; height: 4; color: $text-muted; }
+    #history-trends { height: auto; max-height: 8; padding: 0 1; }
+    #history-sessions { height: 1fr; min-height: 4; }
+    #history-status { height: 1; padding: 0 1; color: $text-muted; }
+    """
+
+    BINDINGS = [
+        Binding("escape", "back", "Back"),
+        Binding("q", "back", "Back", show=False),
+        Binding("p", "next_player", "Player"),
+        Binding("t", "next_table", "Table"),
+        Binding("f", "next_family", "Family"),
+        Binding("d", "next_dates", "Dates"),
+        Binding("s", "clear_session", "All sessions", show=False),
+        Binding("a", "toggle_ascii", "ASCII map"),
+        Binding("r", "reset", "Reset"),
+    ]
+
+    def __init__(
+        self,
+        store: Any,
+        player: str | None = None,
+        tz: tzinfo | None = None,
+        today: date | None = None,
+        ascii_only: bool = False,
+    ) -> None:
+        super().__init__()
+        self.store = store
+        self.tz = tz
+        self.today = today
+        self.ascii_only = ascii_only
+        self.filters = Filters(player=player)
+        self.date_index = 0
+        self.token = 0
+        self.loaded: Loaded | None = None
+        self.players: tuple[str, ...] = (player,) if player else ()
+        self.tables: tuple[str, ...] = ()
+        self.families: tuple[str, ...] = ()
+        self.session_rows: list[int | None] = []
+
+    # ----- layout -----------------------------------------------------------------------
+    def compose(self) -> ComposeResult:
+        yield Static(id="history-filters")
+        with Horizontal(id="history-top"):
+            yield Static(id="history-streaks")
+            with Vertical(id="history-map-box"):
+                yield Static(id="history-map")
+                yield Static(id="history-legend")
+        yield Static(id="history-trends")
+        yield DataTable(id="history-sessions", cursor_type="row", zebra_stripes=True)
+        yield Static("loading the history...", id="history-status")
+        yield Footer()
+
+    def on_mount(self) -> None:
+        table = self.query_one("#history-sessions", DataTable)
+        table.add_columns("#", "started", "player", "table", "made", "rate", "best", "families")
+        self.reload()
+
+    # ----- loading ----------------------------------------------------------------------
+    def local_today(self) -> date:
+        if self.today is not None:
+            return self.today
+        if self.tz is not None:
+            return datetime.now(self.tz).date()
+        return datetime.now().astimezone().date()
+
+    def current_filters(self) -> Filters:
+        """The filters with the date range applied."""
+        days = DATE_RANGES[self.date_index][1]
+        if days is None:
+            return replace(self.filters, since=None, until=None)
+        today = self.local_today()
+        return replace(self.filters, since=today - timedelta(days=days - 1), until=today)
+
+    def reload(self) -> None:
+        """Query and summarise in a worker thread; the screen stays live meanwhile."""
+        self.token += 1
+        self.query_one("#history-status", Static).update("loading the history...")
+        self._show_filters()
+        self._load(self.token, self.current_filters())
+
+    @work(thread=True, exclusive=True, group="history", exit_on_error=False)
+    def _load(self, token: int, f: Filters) -> None:
+        try:
+            items = query(self.store, f, self.tz)
+            h = history.summarize(
+                items, tz=self.tz, today=self.local_today(), table_of=table_resolver(self.store)
+            )
+            players = tuple(self.store.players())
+            result = Loaded(h, players, h.tables, tuple(sorted(h.families)))
+        except ValueError as exc:
+            self.post_message(HistoryLoaded(token, error=str(exc)))
+            return
+        self.post_message(HistoryLoaded(token, result))
+
+    def on_history_loaded(self, message: HistoryLoaded) -> None:
+        if message.token != self.token:
+            return  # a newer filter is already loading
+        status = self.query_one("#history-status", Static)
+        if message.error:
+            status.update(Text(message.error, style="bold red"))
+            return
+        res: Loaded = message.result
+        self.loaded = res
+        self.players = res.players
+        if self.filters.table is None:
+            self.tables = res.tables
+        if self.filters.family is None:
+            self.families = res.families
+        self._show(res.history)
+        n = res.history.rate.attempts
+        status.update(Text(f"{n} attempts shown" if n else "no attempts match these filters"))
+
+    # ----- drawing ----------------------------------------------------------------------
+    def _show_filters(self) -> None:
+        f = self.filters
+        parts = [
+            f"[p] player: {f.player or 'everyone'}",
+            f"[t] table: {f.table or 'all'}",
+            f"[f] family: {f.family or 'all'}",
+            f"[d] dates: {DATE_RANGES[self.date_index][0]}",
+        ]
+        if f.session is not None:
+            parts.append(f"[s] session {f.session} only")
+        line2 = "Enter on a session shows it alone; Escape goes back"
+        self.query_one("#history-filters", Static).update(Text("   ".join(parts) + "\n" + line2))
+
+    def _show(self, h: history.History) -> None:
+        self._show_filters()
+        self.query_one("#history-streaks", Static).update(self._streaks(h))
+        cells = history.grid_from_zones(h.zones, self.filters.family)
+        self.query_one("#history-map", Static).update(
+            HeatMap(cells, ascii_only=self.ascii_only, rows=2)
+        )
+        self.query_one("#history-legend", Static).update(
+            Text("make rate by where the travelling ball started\n" + legend_text())
+        )
+        self.query_one("#history-trends", Static).update(self._trends(h))
+        table = self.query_one("#history-sessions", DataTable)
+        table.clear()
+        self.session_rows = []
+        for s in reversed(h.sessions):
+            start = s.start.astimezone(self.tz) if self.tz is not None else s.start.astimezone()
+            table.add_row(
+                "-" if s.session is None else str(s.session),
+                f"{start:%Y-%m-%d %H:%M}",
+                s.player,
+                s.table,
+                f"{s.rate.hits}/{s.rate.attempts}",
+                "-" if s.rate.rate is None else f"{100 * s.rate.rate:.0f}%",
+                str(s.streak.best),
+                ", ".join(s.families),
+            )
+            self.session_rows.append(s.session)
+
+    def _streaks(self, h: history.History) -> RichTable:
+        grid = RichTable.grid(padding=(0, 2))
+        grid.add_column(style="bold", no_wrap=True)
+        grid.add_column(justify="right")
+        grid.add_column(justify="right")
+        grid.add_row("streaks", "now", "best")
+        grid.add_row("hits in a row", str(h.streak.current), str(h.streak.best))
+        grid.add_row("days in a row", str(h.days.current), str(h.days.best))
+        for f, s in sorted(h.family_streaks.items()):
+            grid.add_row(f"  {f}", str(s.current), str(s.best))
+        if h.zone_streaks:
+            z, s = max(h.zone_streaks.items(), key=lambda kv: (kv[1].best, str(kv[0])))
+            grid.add_row("best zone run", "", str(s.best))
+            grid.add_row(Text(f"  {getattr(z, 'label', z)}", style="dim"), "", "")
+        grid.add_row("made", f"{h.rate.hits}/{h.rate.attempts}", pct(h.rate))
+        return grid
+
+    def _trends(self, h: history.History) -> RichTable:
+        grid = RichTable.grid(padding=(0, 1))
+        grid.add_column(style="bold", no_wrap=True)
+        grid.add_column(no_wrap=True)
+        grid.add_column(no_wrap=True)
+        if not h.weeks:
+            grid.add_row("weekly trend", "no weeks yet", "")
+            return grid
+        first, last = h.weeks[0].label, h.weeks[-1].label
+        grid.add_row("weekly trend", f"|{spark(h.weeks)}|", f"{first} to {last}")
+        for f, weeks in sorted(h.family_weeks.items()):
+            pad = [w for w in h.weeks if w.monday < weeks[0].monday] if weeks else []
+            empty = [history.WeekRate(w.year, w.week, w.monday, history.wilson(0, 0)) for w in pad]
+            grid.add_row(f"  {f}", f"|{spark(empty + list(weeks))}|", "")
+        recent = ", ".join(
+            f"{w.label[-3:]} {'-' if w.rate.rate is None else f'{100 * w.rate.rate:.0f}%'}"
+            for w in h.weeks[-6:]
+        )
+        grid.add_row("last weeks", recent, "")
+        return grid
+
+    # ----- keys -------------------------------------------------------------------------
+    def action_back(self) -> None:
+        self.app.pop_screen()
+
+    def action_next_player(self) -> None:
+        self.filters = replace(
+            self.filters, player=_step((None, *self.players), self.filters.player)
+        )
+        self.reload()
+
+    def action_next_table(self) -> None:
+        self.filters = replace(self.filters, table=_step((None, *self.tables), self.filters.table))
+        self.reload()
+
+    def action_next_family(self) -> None:
+        fam = _step((None, *self.families), self.filters.family)
+        self.filters = replace(self.filters, family=fam)
+        self.reload()
+
+    def action_next_dates(self) -> None:
+        self.date_index = (self.date_index + 1) % len(DATE_RANGES)
+        self.reload()
+
+    def action_clear_session(self) -> None:
+        if self.filters.session is not None:
+            self.filters = replace(self.filters, session=None)
+            self.reload()
+
+    def action_toggle_ascii(self) -> None:
+        self.ascii_only = not self.ascii_only
+        if self.loaded is not None:
+            self._show(self.loaded.history)
+
+    def action_reset(self) -> None:
+        self.filters = Filters()
+        self.date_index = 0
+        self.reload()
+
+    def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
+        i = event.cursor_row
+        if 0 <= i < len(self.session_rows) and self.session_rows[i] is not None:
+            self.filters = replace(self.filters, session=self.session_rows[i])
+            self.reload()
