@@ -225,3 +225,31 @@ def test_user_packs_and_lookup(tmp_path: Path) -> None:
     assert drills.find_drill("mixed", None).title != "My mixed"
     with pytest.raises(DrillError, match="unknown drill pack 'nope': use one of .*one-rail-kicks"):
         drills.find_drill("nope", user)
+
+
+def test_installed_layout_uses_packaged_packs(tmp_path: Path) -> None:
+    """In a wheel, pyproject force-includes drills/ as tablecoach/_drills (hatch's
+    force-include); a copy of the package laid out that way must find its packs there."""
+    import shutil
+    import subprocess
+    import sys
+
+    site = tmp_path / "site"
+    shutil.copytree(REPO / "tablecoach", site / "tablecoach",
+                    ignore=shutil.ignore_patterns("__pycache__"))  # fmt: skip
+    shutil.copytree(REPO / "drills", site / "tablecoach" / "_drills")
+    code = (
+        "from tablecoach.core import drills as d; "
+        "print(d.builtin_dir()); print(','.join(sorted(d.builtin_drills())))"
+    )
+    out = subprocess.run(
+        [sys.executable, "-c", code],
+        cwd=tmp_path,
+        env={"PYTHONPATH": str(site), "PATH": ""},
+        capture_output=True,
+        text=True,
+    )
+    assert out.returncode == 0, out.stderr
+    where, names = out.stdout.split()
+    assert Path(where) == site / "tablecoach" / "_drills"
+    assert names.split(",") == BUILTIN
