@@ -11,10 +11,11 @@ simulation frame (see motion.py for the frame and why "right" is a polar vector)
 Check (J. D. Barrow, "Cushioning the blow", Plus Magazine, 2010): b = 2R/5, a hit at 7/10 of
 the diameter above the cloth, gives zero contact slip, natural roll from the start.
 
-Tips: one tip of offset is taken as R/4 (about 7 mm on a 57 mm ball, half the width of a
-13-14 mm cue tip). This is a convention from memory of instructors' usage, not a published
-standard; the usual miscue limit is about half the radius (Alciatore, from memory), so the
-offset is capped at two tips.
+Tips: one tip of offset is taken as half the ball's radius, R/2 (14.3 mm on a 57.15 mm ball,
+about the width of a 13-14 mm cue tip). The usual miscue limit is about half the radius
+(Alciatore, from memory), so one tip is also the largest offset allowed, as `tablecoach aim`
+already enforces; natural roll is then 0.8 tips of follow. Both figures are from memory of
+instructors' usage, not a published standard.
 """
 
 from __future__ import annotations
@@ -26,7 +27,7 @@ import numpy as np
 from ..table import TableSpec
 from .params import BallModel
 
-TIP_FRACTION = 0.25
+TIP_FRACTION = 0.5
 """One tip of offset as a fraction of the ball radius (convention from memory, see above)."""
 
 MAX_OFFSET_FRACTION = 0.5
@@ -38,7 +39,7 @@ class StrokeError(ValueError):
 
 
 def tip_offset(radius: float, tips: float) -> float:
-    """Tips of english or follow to metres of offset from the ball's centre (1 tip = R/4)."""
+    """Tips of english or follow to metres of offset from the ball's centre (1 tip = R/2)."""
     return tips * TIP_FRACTION * radius
 
 
@@ -55,7 +56,7 @@ def check_offset(table: TableSpec, english: float, follow: float) -> None:
 
 
 def natural_roll_tips() -> float:
-    """The follow (tips) that rolls at once: b = 2R/5 (Barrow 2010), i.e. 1.6 tips."""
+    """The follow (tips) that rolls at once: b = 2R/5 (Barrow 2010), i.e. 0.8 tips."""
     return 0.4 / TIP_FRACTION
 
 

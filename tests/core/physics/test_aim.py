@@ -118,7 +118,7 @@ def test_spin_and_speed_move_the_physical_aim_off_the_mirror() -> None:
     s = _setup(t, "three-rail-kick-b")
     ideal = shots.solve_ideal(t, s)
     plain = aim.solve_physical(t, s, shots.Stroke(2.55))
-    side = aim.solve_physical(t, s, shots.Stroke(2.55, english=1.0))
+    side = aim.solve_physical(t, s, shots.Stroke(2.55, english=0.5))
     assert abs(plain.reading - ideal.reading) > 0.01
     assert abs(side.reading - plain.reading) > 0.005
 
@@ -184,7 +184,7 @@ def test_miscue_limit_is_a_shot_error() -> None:
     t = builtin_table("9ft")
     s = _setup(t, "one-rail-kick")
     with pytest.raises(shots.ShotError, match="miscue"):
-        aim.solve_physical(t, s, shots.Stroke(1.4, english=2.0, follow=2.0))
+        aim.solve_physical(t, s, shots.Stroke(1.4, english=1.0, follow=0.5))
 
 
 def test_physical_convergence_has_a_spread_and_uses_the_shots_hook() -> None:
