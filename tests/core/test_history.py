@@ -320,3 +320,88 @@ def test_history_dict_has_the_json_contract():
     fam = d["families"]["one-rail-kick"]
     assert (fam["attempts"], fam["hits"], fam["streaks"]["best"]) == (4, 3, 2)
     assert d["zones"]["z1"]["attempts"] == 4
+
+
+# ----- the columnar engine against the one-concept functions --------------------------------
+
+
+@pytest.mark.parametrize(
+    "zone",
+    [None, "UTC", "Europe/Berlin", "America/New_York", "Australia/Lord_Howe", "Asia/Kathmandu"],
+)
+def test_local_days_match_local_date(zone):
+    # Reference: datetime.astimezone with the IANA tz database (zoneinfo); Lord Howe shifts by
+    # half an hour for daylight saving and Kathmandu sits at +05:45, to catch hour-bucket errors.
+    tz = ZoneInfo(zone) if zone else None
+    rng = np.random.default_rng(17)
+    start = datetime(2026, 1, 1, tzinfo=UTC).timestamp()
+    ts = np.sort(start + rng.uniform(0, 365 * 86400, 4000))
+    days = h.local_days(ts, tz)
+    for t, d in zip(ts, days, strict=True):
+        when = datetime.fromtimestamp(float(t), UTC)
+        assert date(1970, 1, 1) + timedelta(days=int(d)) == h.local_date(when, tz)
+
+
+def test_speed_bands_match_speed_name():
+    from tablecoach.core.shots import SPEED_BANDS, speed_name
+
+    edges = [v for band in SPEED_BANDS.values() for v in band]
+    speeds = np.array(edges + [0.1, 0.3, 1.0, 2.2, 4.0, 5.0, 12.0] + [e - 1e-9 for e in edges])
+    assert list(h._speed_bands(speeds)) == [speed_name(float(s)) for s in speeds]
+
+
+def random_attempts(n, seed):
+    rng = np.random.default_rng(seed)
+    fams = ["one-rail-kick", "two-rail-kick", "cross-corner-bank"]
+    t0 = datetime(2026, 9, 1, 17, 0, tzinfo=UTC)
+    out = []
+    for _ in range(n):
+        fam = fams[int(rng.integers(0, 3))]
+        cue = (float(rng.uniform(0, 8)), float(rng.uniform(0, 4)))
+        obj = (float(rng.uniform(0, 8)), float(rng.uniform(0, 4)))
+        if fam == "cross-corner-bank":
+            shot = ShotRecord("object", ("right",), cue, obj, "foot-left", None, fam)
+        else:
+            shot = ShotRecord("cue", ("right",), cue, None, None, obj, fam)
+        out.append(
+            att(
+                t0 + timedelta(hours=float(rng.uniform(0, 24 * 60))),
+                "hit" if rng.random() < 0.55 else "miss",
+                fam,
+                session=int(rng.integers(1, 30)) if rng.random() < 0.9 else None,
+                player=["ann", "bo"][int(rng.integers(0, 2))],
+                shot=shot,
+                speed=float(rng.choice([0.5, 0.89, 1.4, 1.9, 2.6, 3.9, 4.6])),
+                landing_at=float(rng.uniform(0, 8)),
+            )
+        )
+    return out
+
+
+def test_zone_codes_match_the_coach():
+    from tablecoach.core.coach import zone_of
+
+    items = random_attempts(600, 1)
+    zones, _ = h.zone_codes(items)
+    assert zones == [zone_of(a.shot, a.speed) for a in items]
+
+
+def test_summarize_matches_the_reference_functions():
+    from tablecoach.core.coach import zone_of
+
+    items = random_attempts(800, 2)
+    tz = ZoneInfo("Europe/Berlin")
+    hist = h.summarize(items, tz=tz, today=date(2026, 11, 1))
+    ref = h.ordered(items)
+    assert hist.sessions == tuple(h.session_list(ref))
+    assert hist.weeks == tuple(h.weekly(ref, tz))
+    assert hist.families == h.rates_by(ref, lambda a: a.shot.family)
+    assert hist.zones == h.rates_by(ref, lambda a: zone_of(a.shot, a.speed))
+    assert hist.zone_streaks == h.streaks_by(ref, lambda a: zone_of(a.shot, a.speed))
+    days = {h.local_date(a.when, tz) for a in ref}
+    assert hist.days == h.day_streak(days, date(2026, 11, 1))
+    for fam, weeks in hist.family_weeks.items():
+        assert weeks == tuple(h.weekly([a for a in ref if a.shot.family == fam], tz))
+    grid = h.grid_rates(items, family="two-rail-kick")
+    n = sum(r.attempts for r in grid.values())
+    assert n == sum(a.shot.family == "two-rail-kick" for a in items)
