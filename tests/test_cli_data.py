@@ -227,3 +227,16 @@ def test_tables_errors_are_one_line(capsys: pytest.CaptureFixture[str], tmp_path
     assert code == 2 and "built-in" in err
     code, _, err = run_cli(capsys, "tables", "show", "nope")
     assert code == 2 and "known tables are 9ft, 8ft, 7ft" in err
+
+
+def test_data_dir_before_the_command_is_used(
+    capsys: pytest.CaptureFixture[str], tmp_path: Path
+) -> None:
+    other = tmp_path / "elsewhere"
+    code, out, err = run_cli(
+        capsys, "--data-dir", str(other), "import", str(DATA / "attempts_v1.jsonl")
+    )
+    assert code == 0, err
+    assert paths.db_path(other).exists() and not (tmp_path / "data").exists()
+    code, out, _ = run_cli(capsys, "--data-dir", str(other), "export")
+    assert len(out.splitlines()) == 3
