@@ -35,8 +35,12 @@ from .stick import StrokeError, check_offset, stick_hit
 GRID = 40
 """Readings in the first pass, spread over +-HALF_WINDOW rail diamonds around the ideal."""
 HALF_WINDOW = 2.5
-REFINE = 7
-"""Interior points per bracket in each refining pass."""
+REFINE = 15
+"""Interior points per bracket in the refining pass."""
+REFINE_EDGE = 47
+"""Interior points per bracket of the scoring window's ends (about 1 mm of reading)."""
+PASSES = 1
+"""Refining passes after the grid (each narrows every bracket REFINE + 1 times)."""
 MARGIN_CAP = 1.5
 """A scoring window wider than this many diamonds either way is reported as this (as shots)."""
 
@@ -207,6 +211,7 @@ def _run(
     s: np.ndarray,
     stroke: Stroke,
     record: bool = False,
+    lean: bool = False,
 ) -> tuple[SimResult, _Launch]:
     ln = _launch(m, table, pr, pi, s, stroke)
     v0 = np.where(ln.ok[:, None], ln.v0, 0.0)
@@ -223,6 +228,7 @@ def _run(
         pr.target[pi],
         pr.pocket[pi],
         record=record,
+        lean=lean,
     )
     bad = ~ln.ok
     res.miss[bad] = np.nan
@@ -257,6 +263,25 @@ def _interp(s0: float, s1: float, m0: float, m1: float) -> float:
     return s0 + (s1 - s0) * (m0 / (m0 - m1))
 
 
+def _interp3(ss: np.ndarray, mm: np.ndarray, j: int) -> float:
+    """The zero of the quadratic through three neighbouring samples around the sign change
+    between j and j + 1 (inverse-free: the quadratic's root inside the bracket), falling back
+    to the chord when the neighbours are not usable."""
+    lin = _interp(ss[j], ss[j + 1], mm[j], mm[j + 1])
+    for k in (j - 1, j) if mm[j] != 0.0 else ():
+        if k < 0 or k + 2 >= ss.size or not np.all(np.isfinite(mm[k : k + 3])):
+            continue
+        x, y = ss[k : k + 3], mm[k : k + 3]
+        c = np.polyfit(x - lin, y, 2)
+        rts = np.roots(c) if abs(c[0]) > 1e-300 else np.array([-c[2] / c[1]])
+        rts = rts[np.isreal(rts)].real + lin
+        lo, hi = min(ss[j], ss[j + 1]), max(ss[j], ss[j + 1])
+        inside = rts[(rts >= lo) & (rts <= hi)]
+        if inside.size:
+            return float(inside[np.argmin(np.abs(inside - lin))])
+    return lin
+
+
 def _solve(
     m: BallModel,
     table: TableSpec,
@@ -270,20 +295,23 @@ def _solve(
     offs = np.linspace(-HALF_WINDOW, HALF_WINDOW, GRID) * unit
     grid = pr.centre[:, None] + offs[None, :]
     pi = np.repeat(np.arange(P), GRID)
-    res, _ = _run(m, table, pr, pi, grid.ravel(), stroke)
+    res, _ = _run(m, table, pr, pi, grid.ravel(), stroke, lean=True)
     mv = res.miss.reshape(P, GRID)
     sc = res.scores.reshape(P, GRID)
     # brackets: [root lo, root hi, m lo, m hi] and the window ends [bad, good] x 2
     root: list[list[float] | None] = []
+    fine: list[tuple[np.ndarray, np.ndarray, int] | None] = []
     edges: list[list[list[float] | None]] = []
     cap = MARGIN_CAP * unit
     for p in range(P):
         j = _root_pair(grid[p], mv[p], pr.centre[p])
         if j is None:
             root.append(None)
+            fine.append(None)
             edges.append([None, None])
             continue
         root.append([grid[p, j], grid[p, j + 1], mv[p, j], mv[p, j + 1]])
+        fine.append((grid[p], mv[p], j))
         est = _interp(grid[p, j], grid[p, j + 1], mv[p, j], mv[p, j + 1])
         e: list[list[float] | None] = []
         # lower end: nearest non-scoring grid point at or below j
@@ -305,8 +333,8 @@ def _solve(
             e.append([grid[p, k], good])
         edges.append(e)
     frac = np.arange(1, REFINE + 1) / (REFINE + 1)
-    for _ in range(2):
-        rows_p: list[int] = []
+    frac_edge = np.arange(1, REFINE_EDGE + 1) / (REFINE_EDGE + 1)
+    for _ in range(PASSES):
         vals: list[np.ndarray] = []
         tags: list[tuple[int, int]] = []  # (problem, 0 root / 1 lower / 2 upper)
         for p in range(P):
@@ -319,31 +347,35 @@ def _solve(
                 for side in (1, 2):
                     eb = edges[p][side - 1]
                     if eb is not None:
-                        vals.append(eb[0] + (eb[1] - eb[0]) * frac)
+                        vals.append(eb[0] + (eb[1] - eb[0]) * frac_edge)
                         tags.append((p, side))
-            rows_p.append(p)
         if not tags:
             break
         s_all = np.concatenate(vals)
-        pi = np.repeat(np.array([t[0] for t in tags]), REFINE)
-        res, _ = _run(m, table, pr, pi, s_all, stroke)
-        mvr = res.miss.reshape(-1, REFINE)
-        scr = res.scores.reshape(-1, REFINE)
+        pi = np.concatenate(
+            [np.full(v.size, t[0], dtype=np.int64) for v, t in zip(vals, tags, strict=True)]
+        )
+        res, _ = _run(m, table, pr, pi, s_all, stroke, lean=True)
+        at = 0
         for row, (p, side) in enumerate(tags):
+            k = vals[row].size
+            mvr, scr = res.miss[at : at + k], res.scores[at : at + k]
+            at += k
             if side == 0:
                 rb = root[p]
                 assert rb is not None
                 ss = np.concatenate(([rb[0]], vals[row], [rb[1]]))
-                mm = np.concatenate(([rb[2]], mvr[row], [rb[3]]))
+                mm = np.concatenate(([rb[2]], mvr, [rb[3]]))
                 j = _root_pair(ss, mm, 0.5 * (rb[0] + rb[1]))
                 if j is None:  # lost the sign change (a gap in valid paths): keep the old one
                     continue
                 root[p] = [ss[j], ss[j + 1], mm[j], mm[j + 1]]
+                fine[p] = (ss, mm, j)
             else:
                 eb = edges[p][side - 1]
                 assert eb is not None
                 ss = np.concatenate(([eb[0]], vals[row], [eb[1]]))
-                ok = np.concatenate(([False], scr[row], [True]))
+                ok = np.concatenate(([False], scr, [True]))
                 # first scoring point counting from the bad end
                 first = int(np.argmax(ok))
                 edges[p][side - 1] = [ss[first - 1], ss[first]]
@@ -353,7 +385,9 @@ def _solve(
         if rb is None:
             out.append(_Solved(None, None, None, "no sign change", grid[p], sc[p]))
             continue
-        s_root = _interp(*rb)
+        fp = fine[p]
+        assert fp is not None
+        s_root = _interp3(*fp)
         lo = hi = None
         if margins:
             lo = s_root - cap if edges[p][0] is None else edges[p][0][1]
@@ -387,9 +421,9 @@ def _window(
         [g[hi + 1] if hi + 1 < g.size else g[hi], g[hi]],
     ]
     frac = np.arange(1, REFINE + 1) / (REFINE + 1)
-    for _ in range(2):
+    for _ in range(PASSES + 1):
         vals = np.concatenate([e[0] + (e[1] - e[0]) * frac for e in ends])
-        res, _ = _run(m, table, pr, np.zeros(vals.size, dtype=np.int64), vals, stroke)
+        res, _ = _run(m, table, pr, np.zeros(vals.size, dtype=np.int64), vals, stroke, lean=True)
         scr = res.scores.reshape(2, REFINE)
         for k in range(2):
             ss = np.concatenate(([ends[k][0]], vals[k * REFINE : (k + 1) * REFINE], [ends[k][1]]))

@@ -86,6 +86,38 @@ def phase_duration(m: BallModel, v: np.ndarray, w: np.ndarray, phase: np.ndarray
     return out
 
 
+def prepare(
+    m: BallModel, v: np.ndarray, w: np.ndarray
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Phase, acceleration and phase duration of each ball in one pass (the slip computed once).
+
+    The same results as phase_of, accel and phase_duration, for the simulation loop.
+    """
+    R = m.radius
+    ux = v[:, 0] - R * w[:, 1]
+    uy = v[:, 1] + R * w[:, 0]
+    us = np.sqrt(ux * ux + uy * uy)
+    vs = np.sqrt(v[:, 0] * v[:, 0] + v[:, 1] * v[:, 1])
+    wz = np.abs(w[:, 2])
+    sliding = us > EPS_V
+    rolling = ~sliding & (vs > EPS_V)
+    spinning = ~sliding & ~rolling & (wz > EPS_W)
+    phase = np.where(sliding, SLIDING, np.where(rolling, ROLLING, np.where(spinning, SPINNING, 0)))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ks = np.where(sliding, -m.mu_s * m.g / us, 0.0)
+        kr = np.where(rolling, -m.mu_r * m.g / vs, 0.0)
+        a = np.empty_like(v)
+        a[:, 0] = ks * ux + kr * v[:, 0]
+        a[:, 1] = ks * uy + kr * v[:, 1]
+        t_slide = 2.0 * us / (7.0 * m.mu_s * m.g) if m.mu_s > 0 else np.full_like(us, np.inf)
+        t_roll = vs / (m.mu_r * m.g) if m.mu_r > 0 else np.full_like(vs, np.inf)
+        t_spin = wz / m.spin_decel if m.spin_decel > 0 else np.full_like(wz, np.inf)
+    t_end = np.where(
+        sliding, t_slide, np.where(rolling, t_roll, np.where(spinning, t_spin, np.inf))
+    )
+    return phase.astype(np.int8), a, t_end
+
+
 def evolve(
     m: BallModel,
     r: np.ndarray,
@@ -103,19 +135,18 @@ def evolve(
     if a is None:
         a = accel(m, v, w, phase)
     tt = t[:, None]
-    r2 = r + v * tt + 0.5 * a * tt * tt
+    r2 = r + (v + 0.5 * a * tt) * tt
     v2 = v + a * tt
-    w2 = w.copy()
-    sl = phase == SLIDING
     k = 2.5 / m.radius
-    w2[sl, 0] += k * a[sl, 1] * t[sl]
-    w2[sl, 1] -= k * a[sl, 0] * t[sl]
+    moving = (phase >= ROLLING)[:, None]
+    v2 = np.where(moving, v2, 0.0)
+    w2 = np.empty_like(w)
+    slide_w0 = w[:, 0] + k * a[:, 1] * t
+    slide_w1 = w[:, 1] - k * a[:, 0] * t
+    sl = phase == SLIDING
     ro = phase == ROLLING
-    w2[ro, 0] = -v2[ro, 1] / m.radius
-    w2[ro, 1] = v2[ro, 0] / m.radius
-    st = phase <= SPINNING
-    v2[st] = 0.0
-    w2[st, :2] = 0.0
+    w2[:, 0] = np.where(sl, slide_w0, np.where(ro, -v2[:, 1] / m.radius, 0.0))
+    w2[:, 1] = np.where(sl, slide_w1, np.where(ro, v2[:, 0] / m.radius, 0.0))
     wz = w[:, 2]
     w2[:, 2] = np.sign(wz) * np.maximum(np.abs(wz) - m.spin_decel * t, 0.0)
     return r2, v2, w2

@@ -22,7 +22,7 @@ import numpy as np
 
 from ..table import POCKETS, RAILS, TableSpec
 from .cushion import rail_impact
-from .motion import ROLLING, SPINNING, accel, evolve, phase_duration, phase_of, settle
+from .motion import ROLLING, SPINNING, evolve, prepare, settle
 from .params import BallModel
 from .roots import first_quadratic_root, first_quartic_root
 
@@ -113,6 +113,7 @@ def simulate(
     target_pocket: np.ndarray,
     record: bool = False,
     max_events: int = 200,
+    lean: bool = False,
 ) -> SimResult:
     """Run every row to its landing, a pocket, or rest.
 
@@ -121,7 +122,9 @@ def simulate(
     (n, k) how many crossings the row must have made before a ball counts (the ideal trace
     ignores the cue ball on a bank until the object has left its first rail);
     ``target_point`` (n, 2) the point whose closest approach is ``miss``; ``target_pocket``
-    (n,) POCKETS index or -1.
+    (n,) POCKETS index or -1. With ``lean`` (aim solving) a row ends at its first ball or as
+    soon as it leaves the family's rail order: its miss and score are known by then, its
+    landing may be missing.
     """
     n = r0.shape[0]
     nf = len(rails)
@@ -154,29 +157,29 @@ def simulate(
     miss = np.full(n, np.nan)
     at_rest = np.zeros(n, dtype=bool)
     live = np.ones(n, dtype=bool)
-    phase = phase_of(m, v, w)
     segments: list[Segment] = []
+    sgn = np.array([1.0, -1.0, 1.0, -1.0])
+    ax4 = np.array([0, 0, 1, 1])
+    wall4 = np.array([lo[0], hi[0], lo[1], hi[1]])
     events = 0
     sp0 = np.hypot(v[:, 0], v[:, 1])
     last_dir[sp0 > 0] = v[sp0 > 0] / sp0[sp0 > 0, None]
     while live.any() and events < max_events:
         events += 1
         idx = np.flatnonzero(live)
-        # balls at rest leave the simulation
-        rest = phase[idx] <= SPINNING
+        ri, vi, wi = r[idx], v[idx], w[idx]
+        ph, a, t_end = prepare(m, vi, wi)
+        # balls at rest (or only spinning in place) leave the simulation
+        rest = ph <= SPINNING
         if rest.any():
-            stop_pos[idx[rest]] = r[idx[rest]]
+            stop_pos[idx[rest]] = ri[rest]
             live[idx[rest]] = False
-            idx = idx[~rest]
+            keep = ~rest
+            idx, ri, vi, wi = idx[keep], ri[keep], vi[keep], wi[keep]
+            ph, a, t_end = ph[keep], a[keep], t_end[keep]
             if idx.size == 0:
                 break
-        ri, vi, wi, ph = r[idx], v[idx], w[idx], phase[idx]
-        a = accel(m, vi, wi, ph)
-        t_end = phase_duration(m, vi, wi, ph)
         # cushion (box) crossings: one quadratic per wall
-        sgn = np.array([1.0, -1.0, 1.0, -1.0])
-        ax4 = np.array([0, 0, 1, 1])
-        wall4 = np.array([lo[0], hi[0], lo[1], hi[1]])
         c2 = 0.5 * a[:, ax4] * sgn
         c1 = vi[:, ax4] * sgn
         c0 = (ri[:, ax4] - wall4) * sgn
@@ -244,9 +247,14 @@ def simulate(
         # closest approach of the target point while after the family's rails
         after = (walls[idx] == nf) & (pocket[idx] < 0)
         if after.any():
-            to_rest = (ph == ROLLING) & (t_end <= dt)
+            if lean:  # the row stops at the ball: measure on through it to its next event
+                tc = np.where(is_ball, np.minimum(t_end, t_w), dt)
+                to_wall = is_wall | (is_ball & (t_w < t_end))
+            else:
+                tc, to_wall = dt, is_wall
+            to_rest = (ph == ROLLING) & (t_end <= tc) & ~to_wall
             _closest(
-                ri, vi, a, dt, target_point[idx], after, to_rest, is_wall, best, miss, at_rest, idx
+                ri, vi, a, tc, target_point[idx], after, to_rest, to_wall, best, miss, at_rest, idx
             )
         # ball contact: note it, and run on through the ball (balls ignored from now)
         if is_ball.any():
@@ -255,6 +263,8 @@ def simulate(
             ball_walls[bi] = walls[bi]
             ball_pos[bi] = r2[is_ball]
             ball_event[bi] = len(segments) - 1 if record else events - 1
+            if lean:
+                live[bi] = False
         # phase ends
         if is_end.any():
             settle(m, v2, w2, is_end, ph)
@@ -273,11 +283,16 @@ def simulate(
             hit_at[rows, slot] = along
             walls[rows] = cnt + 1
             cush = _on_cushion(table, code, along)
+            keep = np.ones(rows.size, dtype=bool)
+            if lean and nf:  # off the family's order: nothing more to learn from this row
+                off = (cnt < nf) & (code != rail_codes[np.minimum(cnt, nf - 1)])
+                live[rows[off]] = False
+                keep = ~off
             land = (cnt + 1 == maxw) & (landing_rail[rows] < 0)
             landing_rail[rows[land]] = code[land]
             landing_at[rows[land]] = along[land]
             # pocket entries
-            pk = ~cush
+            pk = ~cush & keep
             if pk.any():
                 pr = rows[pk]
                 pc = code[pk]
@@ -303,14 +318,13 @@ def simulate(
                 landing_at[pr[nl]] = al[nl]
                 live[pr] = False
             # cushion impacts for rows still going (the landing crossing ends a row)
-            go = cush & ~land
+            go = cush & ~land & keep
             live[rows[cush & land]] = False
             if go.any():
                 gi = wi_rows[go]
                 nv, nw = rail_impact(m, _NORMALS[code[go]], v2[gi], w2[gi])
                 v2[gi], w2[gi] = nv, nw
         r[idx], v[idx], w[idx] = r2, v2, w2
-        phase[idx] = phase_of(m, v2, w2)
     # order and scoring
     if nf:
         order_ok = (walls >= nf) & np.all(hits[:, :nf] == rail_codes[None, :], axis=1)
