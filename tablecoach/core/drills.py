@@ -529,8 +529,8 @@ def deal(
     Items get slots in proportion to their weights. By default the order is shuffled
     (interleaved, or "random", practice), which gives better retention than practising one
     kind of shot in a block (Shea and Morgan 1979, J. Exp. Psychol.: Human Learning and
-    Memory 5, 179-187); ``blocked=True`` keeps each item's setups together, in pack order.
-    The same generator state gives the same setups.
+    Memory 5, 179-187; reference details from memory); ``blocked=True`` keeps each item's
+    setups together, in pack order. The same generator state gives the same setups.
     """
     n = drill.count if count is None else int(count)
     if n < 0:
