@@ -618,26 +618,33 @@ class Store:
     # ----- attempts ---------------------------------------------------------------------------
     def log(self, attempt: Attempt) -> Attempt:
         """Validate and save one attempt, committed before returning; returns it with its id."""
-        validate_attempt(attempt)
-        row = _to_row(attempt)
-        ident = attempt_identity(attempt)
+        return self.log_many([attempt])[0]
+
+    def log_many(self, items: Sequence[Attempt]) -> list[Attempt]:
+        """Validate and save several attempts in one transaction (all or none); returns them
+        with their ids. Each is exactly as if logged alone (sessions kept, undo works)."""
+        for a in items:
+            validate_attempt(a)
+        prepared = [(a, _to_row(a), attempt_identity(a)) for a in items]
+        out: list[Attempt] = []
+        insert = f"INSERT INTO attempts ({_COLS}, ident) VALUES ({', '.join('?' * 28)})"
         with self._write() as c:
-            if attempt.session is not None:
-                found = c.execute(
-                    "SELECT 1 FROM sessions WHERE id = ?", (attempt.session,)
-                ).fetchone()
-                if found is None:
-                    raise StoreError(f"there is no session {attempt.session} in {self.path}")
-            cur = c.execute(
-                f"INSERT INTO attempts ({_COLS}, ident) VALUES ({', '.join('?' * 28)})",
-                (*row, ident),
-            )
-            new_id = int(cur.lastrowid or 0)
-            c.execute(
-                "INSERT OR IGNORE INTO players (name, created, created_by) VALUES (?, ?, ?)",
-                (attempt.player, row[0], new_id),
-            )
-        return replace(attempt, when=datetime.fromisoformat(row[0]), id=new_id)
+            known: set[int] = set()
+            for a, row, ident in prepared:
+                if a.session is not None and a.session not in known:
+                    found = c.execute(
+                        "SELECT 1 FROM sessions WHERE id = ?", (a.session,)
+                    ).fetchone()
+                    if found is None:
+                        raise StoreError(f"there is no session {a.session} in {self.path}")
+                    known.add(a.session)
+                new_id = int(c.execute(insert, (*row, ident)).lastrowid or 0)
+                c.execute(
+                    "INSERT OR IGNORE INTO players (name, created, created_by) VALUES (?, ?, ?)",
+                    (a.player, row[0], new_id),
+                )
+                out.append(replace(a, when=_fromiso(row[0]), id=new_id))
+        return out
 
     def undo_last(self, session_id: int) -> Attempt | None:
         """Remove the latest attempt of a session and return it (None if it has none).

@@ -506,3 +506,15 @@ def test_sigkill_loses_no_reported_attempt(db: Path) -> None:
     c = sqlite3.connect(db)
     assert c.execute("PRAGMA integrity_check").fetchone()[0] == "ok"
     c.close()
+
+
+def test_log_many_is_one_all_or_nothing_transaction(db: Path) -> None:
+    with Store.open(db) as s:
+        sid = s.start_session("ann", "9ft", "mixed")
+        saved = s.log_many([make_attempt(i, session=sid) for i in range(5)])
+        assert [a.id for a in saved] == [1, 2, 3, 4, 5]
+        assert s.attempts(session=sid) == saved
+        with pytest.raises(StoreError, match="no session 77"):
+            s.log_many([make_attempt(9, session=sid), make_attempt(10, session=77)])
+        assert s.count_attempts() == 5  # the good one of the failed batch was rolled back too
+        assert s.undo_last(sid) == saved[-1]
