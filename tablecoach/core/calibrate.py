@@ -3,11 +3,17 @@
 from __future__ import annotations
 
 import math
+import time
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass, replace
+from typing import Any
+
+import numpy as np
 
 from . import shots
 from .records import Attempt
 from .shots import RailPoint, Trace
-from .table import TableSpec
+from .table import RAILS, TableSpec
 
 
 class CalibrationError(ValueError):
@@ -84,3 +90,923 @@ def landing_error(
     if s == 0.0:
         return d
     return d * s if math.isfinite(d) else None
+
+
+# ----- the parameters ----------------------------------------------------------------------------
+
+TABLE_PARAMS: tuple[str, ...] = (
+    "cloth.mu_slide",
+    "cloth.mu_roll",
+    "cushion.restitution",
+    "cushion.friction",
+)
+"""The table parameters a calibration fits, as ``section.field`` of TableSpec."""
+
+PARAM_BOUNDS: dict[str, tuple[float, float]] = {
+    "cloth.mu_slide": (0.15, 0.4),
+    "cloth.mu_roll": (0.005, 0.015),
+    "cushion.restitution": (0.5, 1.0),
+    "cushion.friction": (0.0, 0.4),
+}
+"""Hard bounds of each fitted parameter: the ranges table.py validates custom tables against
+(cloth ranges from Alciatore's typical-parameter pages, PHYSICS.md section 2)."""
+
+PRIOR_SD: dict[str, float] = {
+    "cloth.mu_slide": (0.4 - 0.15) / 4.0,
+    "cloth.mu_roll": (0.015 - 0.005) / 4.0,
+    "cushion.restitution": (0.9 - 0.6) / 4.0,
+    "cushion.friction": 0.4 / 4.0,
+}
+"""Prior standard deviations: a published range read as +-2 sd. Sliding friction 0.15-0.4 and
+rolling resistance 0.005-0.015 (Alciatore, PHYSICS.md 2); cushion restitution uses the width of
+the published ball-rail restitution range 0.6-0.9 (Alciatore); cushion friction has no published
+range in the reference sheet, so the validation range 0-0.4 around Mathavan et al.'s 0.14 is
+used (a wide, weak prior)."""
+
+PARAM_WORDS: dict[str, str] = {
+    "cloth.mu_slide": "cloth sliding friction",
+    "cloth.mu_roll": "cloth rolling resistance",
+    "cushion.restitution": "cushion restitution",
+    "cushion.friction": "cushion friction",
+}
+
+
+def speed_prior_sd(preset: str) -> float:
+    """Prior sd of log(the player's m/s for a preset / the book's m/s): the published band
+    (Alciatore, "typical shot speeds") read as +-2 sd in log speed."""
+    lo, hi = shots.SPEED_BANDS[preset]
+    return math.log(hi / lo) / 4.0
+
+
+def get_param(table: TableSpec, name: str) -> float:
+    """A fitted parameter's value on a table (``cloth.mu_slide`` and so on)."""
+    sec, key = name.split(".")
+    return float(getattr(getattr(table, sec), key))
+
+
+def with_params(table: TableSpec, values: dict[str, float]) -> TableSpec:
+    """A copy of the table with some cloth/cushion parameters replaced."""
+    cloth = {k.split(".")[1]: v for k, v in values.items() if k.startswith("cloth.")}
+    cush = {k.split(".")[1]: v for k, v in values.items() if k.startswith("cushion.")}
+    return table.with_params(
+        cloth=replace(table.cloth, **cloth), cushion=replace(table.cushion, **cush)
+    )
+
+
+def preset_of(speed: float) -> str:
+    """The preset a logged speed belongs to: its published band, soft counted as slow and
+    break as power."""
+    name = shots.speed_name(speed)
+    return {"soft": "slow", "break": "power"}.get(name, name)
+
+
+# ----- results -----------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, slots=True)
+class Estimate:
+    """One fitted value: ``value`` with its standard deviation ``sd``, and the ``prior`` centre
+    it was pulled toward (the default table's value, or the book's m/s for a speed)."""
+
+    name: str
+    value: float
+    sd: float
+    prior: float
+
+    def as_dict(self) -> dict[str, float]:
+        return {"value": self.value, "sd": self.sd, "prior": self.prior}
+
+
+@dataclass(frozen=True, slots=True)
+class Shift:
+    """How far a family at a preset lands from the default table's prediction, on the logged
+    shots: ``long`` in diamonds (positive: the calibrated model has the ball land further along
+    its path), averaged over ``n`` attempts."""
+
+    family: str
+    preset: str
+    long: float
+    n: int
+
+
+@dataclass(frozen=True, slots=True)
+class Calibration:
+    """A fitted calibration of one table for one player.
+
+    ``params`` are the table's cloth and cushion parameters, ``speeds`` the player's m/s for
+    each preset they logged (``name`` = the preset). ``attempts`` is how many attempts were
+    given, ``used`` how many the model could follow, ``outliers`` how many the robust loss set
+    aside (a residual beyond 3 noise scales). RMS figures are landing errors in diamonds round
+    the table, before (the prior table, the book's speeds) and after calibration, over all used
+    attempts and over the inliers only. ``noise`` is the robust scale of the landing errors.
+    """
+
+    table: str
+    params: tuple[Estimate, ...]
+    speeds: tuple[Estimate, ...]
+    attempts: int
+    used: int = 0
+    outliers: int = 0
+    rms_before: float = math.nan
+    rms_after: float = math.nan
+    rms_before_inliers: float = math.nan
+    rms_after_inliers: float = math.nan
+    noise: float = math.nan
+    shifts: tuple[Shift, ...] = ()
+    model: str = "physical"
+    player: str = ""
+    seconds: float = 0.0
+    iterations: int = 0
+
+    # ----- reading values ----------------------------------------------------------------------
+    def value(self, name: str) -> float:
+        """A fitted table parameter by name (``cushion.restitution``) or a preset's m/s."""
+        for e in (*self.params, *self.speeds):
+            if e.name == name:
+                return e.value
+        raise CalibrationError(f"the calibration has no value {name!r}")
+
+    def speed(self, preset: str) -> float:
+        """What this player calls ``preset``, in m/s (the book's value if never calibrated)."""
+        for e in self.speeds:
+            if e.name == preset:
+                return e.value
+        return shots.SPEED_PRESETS[preset]
+
+    def speed_map(self) -> dict[str, float]:
+        """Preset -> m/s for this player, to use in place of shots.SPEED_PRESETS."""
+        return {p: self.speed(p) for p in shots.SPEED_PRESETS}
+
+    def actual_speed(self, logged: float) -> float:
+        """The speed a logged m/s figure stands for: scaled as the player's preset of that band."""
+        p = preset_of(logged)
+        return logged * self.speed(p) / shots.SPEED_PRESETS[p]
+
+    def apply(self, table: TableSpec) -> TableSpec:
+        """The calibrated table: ``table`` with the fitted cloth and cushion parameters."""
+        return with_params(table, {e.name: e.value for e in self.params})
+
+    @property
+    def status(self) -> str:
+        """``calibrated from N attempts``."""
+        return f"calibrated from {self.attempts} attempt{'s' if self.attempts != 1 else ''}"
+
+    # ----- storage -----------------------------------------------------------------------------
+    def as_dict(self) -> dict[str, Any]:
+        """Plain JSON values for Store.save_calibration (read back with from_dict)."""
+        return {
+            "table": self.table,
+            "player": self.player,
+            "model": self.model,
+            "params": {e.name: e.as_dict() for e in self.params},
+            "speeds": {e.name: e.as_dict() for e in self.speeds},
+            "attempts": self.attempts,
+            "used": self.used,
+            "outliers": self.outliers,
+            "rms_before": _num(self.rms_before),
+            "rms_after": _num(self.rms_after),
+            "rms_before_inliers": _num(self.rms_before_inliers),
+            "rms_after_inliers": _num(self.rms_after_inliers),
+            "noise": _num(self.noise),
+            "shifts": [[s.family, s.preset, s.long, s.n] for s in self.shifts],
+            "seconds": self.seconds,
+            "iterations": self.iterations,
+        }
+
+    @classmethod
+    def from_dict(cls, data: dict[str, Any], attempts: int | None = None) -> Calibration:
+        """Rebuild a calibration from as_dict() output; a damaged record is a CalibrationError."""
+        try:
+
+            def est(sec: str) -> tuple[Estimate, ...]:
+                return tuple(
+                    Estimate(str(k), float(v["value"]), float(v["sd"]), float(v["prior"]))
+                    for k, v in dict(data.get(sec, {})).items()
+                )
+
+            params = est("params")
+            speeds = est("speeds")
+            for e in params:
+                if e.name not in PARAM_BOUNDS:
+                    raise KeyError(e.name)
+                lo, hi = PARAM_BOUNDS[e.name]
+                if not (lo <= e.value <= hi):
+                    raise ValueError(e.name)
+            for e in speeds:
+                if e.name not in shots.SPEED_PRESETS or not (0.1 <= e.value <= 13.0):
+                    raise ValueError(e.name)
+            shifts = tuple(
+                Shift(str(f), str(p), float(v), int(n)) for f, p, v, n in data.get("shifts", [])
+            )
+
+            def f(key: str) -> float:
+                v = data.get(key)
+                return math.nan if v is None else float(v)
+
+            return cls(
+                table=str(data.get("table", "")),
+                params=params,
+                speeds=speeds,
+                attempts=int(data.get("attempts", 0) if attempts is None else attempts),
+                used=int(data.get("used", 0)),
+                outliers=int(data.get("outliers", 0)),
+                rms_before=f("rms_before"),
+                rms_after=f("rms_after"),
+                rms_before_inliers=f("rms_before_inliers"),
+                rms_after_inliers=f("rms_after_inliers"),
+                noise=f("noise"),
+                shifts=shifts,
+                model=str(data.get("model", "physical")),
+                player=str(data.get("player", "")),
+                seconds=float(data.get("seconds", 0.0)),
+                iterations=int(data.get("iterations", 0)),
+            )
+        except (KeyError, TypeError, ValueError, AttributeError):
+            raise CalibrationError(
+                "the stored calibration is damaged; run 'tablecoach calibrate' again"
+            ) from None
+
+    # ----- words -------------------------------------------------------------------------------
+    def sentences(self) -> list[str]:
+        """The calibration in a player's words, most useful first."""
+        out: list[str] = []
+        head = f"Calibrated from {self.attempts} attempts"
+        if self.outliers:
+            head += f" ({self.outliers} set aside as likely mislogged)"
+        if math.isfinite(self.rms_after) and math.isfinite(self.rms_before):
+            head += (
+                f": landings predicted to {self.rms_after_inliers:.2f} diamond RMS, "
+                f"against {self.rms_before_inliers:.2f} on the default table"
+            )
+        out.append(head + ".")
+        for s in sorted(self.shifts, key=lambda s: -abs(s.long)):
+            fam = shots.PRESETS.get(s.family)
+            title = (fam.title if fam else s.family).lower()
+            if abs(s.long) < 0.05:
+                out.append(f"{_cap(title)}s at {s.preset} land as on the default table.")
+                continue
+            way = "longer" if s.long > 0 else "shorter"
+            out.append(
+                f"{_cap(title)}s at {s.preset} land {abs(s.long):.1f} diamond {way} here "
+                "than on the default table."
+            )
+        for e in self.speeds:
+            book = shots.SPEED_PRESETS[e.name]
+            if abs(e.value - book) < max(e.sd, 0.02 * book):
+                out.append(f"Your {e.name} is the book's: {e.value:.2f} m/s.")
+                continue
+            way = "harder" if e.value > book else "softer"
+            out.append(
+                f"Your {e.name} is {e.value:.2f} +- {e.sd:.2f} m/s, {way} than the book's "
+                f"{book:.2f} m/s."
+            )
+        for e in self.params:
+            words = PARAM_WORDS[e.name]
+            if abs(e.value - e.prior) <= e.sd:
+                out.append(f"{_cap(words)} {e.value:.3g} +- {e.sd:.2g}: as the default.")
+                continue
+            way = "higher" if e.value > e.prior else "lower"
+            extra = ""
+            if e.name == "cushion.restitution":
+                extra = " (livelier cushions)" if way == "higher" else " (deader cushions)"
+            out.append(
+                f"{_cap(words)} {e.value:.3g} +- {e.sd:.2g}, {way} than the default "
+                f"{e.prior:.3g}{extra}."
+            )
+        return out
+
+
+def _cap(s: str) -> str:
+    return s[:1].upper() + s[1:]
+
+
+def _num(v: float) -> float | None:
+    return float(v) if math.isfinite(v) else None
+
+
+# ----- the fit -----------------------------------------------------------------------------------
+
+Predictor = Callable[[TableSpec, shots.Setup, float, shots.Stroke], Trace]
+"""A forward model: (table, setup, reading in metres, stroke) -> Trace."""
+
+CAUCHY_C = 2.3849
+"""Cauchy loss tuning constant: 95 % asymptotic efficiency under Gaussian noise (Holland and
+Welsch, "Robust regression using iteratively reweighted least-squares", 1977)."""
+
+MAD_TO_SD = 1.4826
+"""Median absolute deviation to standard deviation for Gaussian noise (1 / Phi^-1(3/4))."""
+
+NOISE_FLOOR = 0.1
+"""Smallest landing-noise scale the fit assumes, in diamonds: a player reads a landing to about
+a tenth of a diamond (common practice, no source), so smaller residuals are not told apart."""
+
+NO_LANDING = 3.0
+_DEBUG = False
+
+JUMP = 0.3
+"""A finite-difference change of a landing larger than this (diamonds) is an edge, not a slope."""
+"""Residual, in diamonds, given to a shot whose modelled ball never reaches a landing rail."""
+
+LOG_SPEED_LIMIT = 0.7
+"""The player's preset may differ from the book's by a factor up to e^0.7 (about 2) either way."""
+
+
+@dataclass(frozen=True, slots=True)
+class _Shot:
+    setup: shots.Setup
+    reading: float
+    logged: float
+    english: float
+    follow: float
+    preset: str
+    observed: RailPoint
+    family: str
+
+
+def _prepare(table: TableSpec, attempts: Sequence[Attempt]) -> list[_Shot]:
+    out = []
+    for a in attempts:
+        try:
+            setup = shots.setup_of(table, a.shot)
+            rail = setup.family.rails[0]
+            if a.aim_rail != rail:
+                continue
+            reading = table.along_to_metres(rail, a.aim_used)
+            obs = observed_landing(table, a)
+        except ValueError:
+            continue
+        out.append(
+            _Shot(
+                setup,
+                reading,
+                a.speed,
+                a.english,
+                a.follow,
+                preset_of(a.speed),
+                obs,
+                a.shot.family or "custom",
+            )
+        )
+    return out
+
+
+@dataclass(frozen=True, slots=True)
+class _ArrayStroke:
+    """A stroke with one speed, english and follow per row (the physics batch takes arrays)."""
+
+    speed: np.ndarray
+    english: np.ndarray
+    follow: np.ndarray
+
+
+class _Batch:
+    """Landings of many shots in one vectorised pass of the physical model per family.
+
+    physics/aim.py simulates rows of one family together (its solver's own batch path); this
+    runs the logged shots through the same steps predict_physical takes for one shot. At start
+    every group's first shot is checked against predict_physical itself; if they disagree, or
+    the batch steps are not there, ``make`` returns None and the fit predicts shot by shot.
+    """
+
+    def __init__(self, data: list[_Shot], groups: list[np.ndarray]) -> None:
+        self.data = data
+        self.groups = groups
+        self.where = {int(i): (g, k) for g, rows in enumerate(groups) for k, i in enumerate(rows)}
+        self._pr: dict[tuple[int, ...], Any] = {}
+
+    @classmethod
+    def make(cls, table: TableSpec, data: list[_Shot]) -> _Batch | None:
+        keys: dict[tuple[str, tuple[str, ...]], list[int]] = {}
+        for i, d in enumerate(data):
+            keys.setdefault((d.setup.family.travel, d.setup.family.rails), []).append(i)
+        b = cls(data, [np.array(v, dtype=int) for v in keys.values()])
+        try:
+            for rows in b.groups:
+                i = int(rows[0])
+                d = data[i]
+                got = b.landings(table, [i], {d.preset: 1.0})[0]
+                want = shots.predict(
+                    table,
+                    d.setup,
+                    d.reading,
+                    shots.Stroke(d.logged, d.english, d.follow),
+                    "physical",
+                ).landing
+                if (got is None) != (want is None):
+                    return None
+                if (
+                    got is not None
+                    and want is not None
+                    and (got.rail != want.rail or abs(got.at - want.at) > 1e-6)
+                ):
+                    return None
+        except (ImportError, AttributeError, TypeError, IndexError, ValueError):
+            return None
+        return b
+
+    def landings(
+        self, table: TableSpec, rows: Sequence[int], scale: dict[str, float]
+    ) -> list[RailPoint | None]:
+        from .physics import aim as pa  # noqa: PLC0415  (heavy; only the physical fit needs it)
+        from .physics.params import model_of  # noqa: PLC0415
+
+        m = model_of(table)
+        by_group: dict[int, list[int]] = {}
+        for i in rows:
+            by_group.setdefault(self.where[int(i)][0], []).append(int(i))
+        found: dict[int, RailPoint | None] = {}
+        for _g, idx in by_group.items():
+            ds = [self.data[i] for i in idx]
+            key = tuple(idx)
+            pr = self._pr.get(key)
+            if pr is None:  # the geometry of a batch does not change with cloth or cushion
+                pr = self._pr[key] = pa._problems(table, [d.setup for d in ds])
+            pi = np.arange(len(ds), dtype=np.int64)
+            reading = np.array([d.reading for d in ds])
+            stroke = _ArrayStroke(
+                np.array([d.logged * scale.get(d.preset, 1.0) for d in ds]),
+                np.array([d.english for d in ds]),
+                np.array([d.follow for d in ds]),
+            )
+            sv = reading.copy()
+            if pr.bank:
+                # the line-of-centres reading whose thrown launch line has the logged reading
+                for _ in range(6):
+                    ln = pa._launch(m, table, pr, pi, sv, stroke)
+                    good = ln.ok & np.isfinite(ln.reading)
+                    step = np.where(good, reading - ln.reading, 0.0)
+                    sv = sv + step
+                    if float(np.max(np.abs(step))) < 1e-9:
+                        break
+            res, ln = pa._run(m, table, pr, pi, sv, stroke)
+            nf = len(ds[0].setup.family.rails)
+            for k, i in enumerate(idx):
+                code = int(res.landing_rail[k])
+                found[i] = None
+                if not bool(ln.ok[k]):
+                    continue
+                if code >= 0:
+                    found[i] = RailPoint(RAILS[code], float(res.landing_at[k]))  # type: ignore[arg-type]
+                elif res.walls[k] >= nf and res.pocket[k] < 0:
+                    # as predict_physical: a ball at rest (or on a ball) after the family's
+                    # rails has its last line of travel carried on to a wall
+                    endp = res.ball_pos[k] if res.ball[k] >= 0 else res.stop_pos[k]
+                    if np.all(np.isfinite(endp)):
+                        found[i] = pa._extend(table, endp, res.last_dir[k])
+        return [found[int(i)] for i in rows]
+
+
+class _Problem:
+    """The normalised MAP problem: u = (theta - prior) / prior_sd, residuals in diamonds."""
+
+    def __init__(
+        self,
+        table: TableSpec,
+        prior_table: TableSpec,
+        data: list[_Shot],
+        predictor: Predictor,
+        prior_speeds: dict[str, float],
+        batch: _Batch | None = None,
+    ) -> None:
+        self.table = table
+        self.data = data
+        self.predictor = predictor
+        self.batch = batch
+        self.presets = sorted({d.preset for d in data}, key=list(shots.SPEED_PRESETS).index)
+        self.names = [*TABLE_PARAMS, *(f"speed.{p}" for p in self.presets)]
+        self.centre = np.array(
+            [get_param(prior_table, n) for n in TABLE_PARAMS]
+            + [math.log(prior_speeds[p]) for p in self.presets]
+        )
+        self.sd = np.array(
+            [PRIOR_SD[n] for n in TABLE_PARAMS] + [speed_prior_sd(p) for p in self.presets]
+        )
+        lo = [PARAM_BOUNDS[n][0] for n in TABLE_PARAMS]
+        hi = [PARAM_BOUNDS[n][1] for n in TABLE_PARAMS]
+        for p in self.presets:
+            book = math.log(shots.SPEED_PRESETS[p])
+            lo.append(book - LOG_SPEED_LIMIT)
+            hi.append(book + LOG_SPEED_LIMIT)
+        self.u_lo = (np.array(lo) - self.centre) / self.sd
+        self.u_hi = (np.array(hi) - self.centre) / self.sd
+        self.members = [
+            np.array([i for i, d in enumerate(data) if d.preset == p], dtype=int)
+            for p in self.presets
+        ]
+        self.evaluations = 0
+
+    def theta(self, u: np.ndarray) -> np.ndarray:
+        return self.centre + self.sd * u
+
+    def tables_and_speeds(self, u: np.ndarray) -> tuple[TableSpec, dict[str, float]]:
+        th = self.theta(u)
+        tab = with_params(self.table, dict(zip(TABLE_PARAMS, th[: len(TABLE_PARAMS)], strict=True)))
+        sp = {
+            p: math.exp(th[len(TABLE_PARAMS) + k]) / shots.SPEED_PRESETS[p]
+            for k, p in enumerate(self.presets)
+        }
+        return tab, sp
+
+    def landings(
+        self, u: np.ndarray, idx: Sequence[int] | np.ndarray | None = None
+    ) -> list[RailPoint | None]:
+        """The modelled landing of each shot in ``idx`` (all by default) at parameters u."""
+        tab, scale = self.tables_and_speeds(u)
+        rows = list(range(len(self.data))) if idx is None else [int(i) for i in idx]
+        self.evaluations += len(rows)
+        if self.batch is not None:
+            return self.batch.landings(tab, rows, scale)
+        out: list[RailPoint | None] = []
+        for i in rows:
+            d = self.data[i]
+            stroke = shots.Stroke(d.logged * scale[d.preset], d.english, d.follow)
+            try:
+                out.append(self.predictor(tab, d.setup, d.reading, stroke).landing)
+            except ValueError:
+                out.append(None)
+        return out
+
+    def residuals(self, u: np.ndarray, idx: Sequence[int] | np.ndarray | None = None) -> np.ndarray:
+        rows = list(range(len(self.data))) if idx is None else [int(i) for i in idx]
+        lands = self.landings(u, rows)
+        r = np.empty(len(rows))
+        for k, (i, land) in enumerate(zip(rows, lands, strict=True)):
+            if land is None:
+                r[k] = NO_LANDING
+            else:
+                r[k] = shots.landing_distance(self.table, self.data[i].observed, land)
+        return r
+
+    def jacobian(self, u: np.ndarray, r: np.ndarray, step: float = 0.05) -> np.ndarray:
+        """Forward differences in u (steps of 0.05 prior sd); a speed only moves its own shots.
+
+        A landing that moves more than JUMP diamonds for so small a step has crossed an edge
+        (a pocket mouth, a ball stopping short, a landing on the next rail round): its slope
+        there says nothing about the parameter, so that entry is set to zero.
+        """
+        n_t = len(TABLE_PARAMS)
+        J = np.zeros((len(r), len(u)))
+        for j in range(len(u)):
+            h = step if u[j] + step <= self.u_hi[j] else -step
+            up = u.copy()
+            up[j] += h
+            if j < n_t:
+                diff = self.residuals(up) - r
+                J[:, j] = np.where(np.abs(diff) > JUMP, 0.0, diff / h)
+            else:
+                idx = self.members[j - n_t]
+                diff = self.residuals(up, idx) - r[idx]
+                J[idx, j] = np.where(np.abs(diff) > JUMP, 0.0, diff / h)
+        return J
+
+
+def _best_start(
+    prob: _Problem, u: np.ndarray, r: np.ndarray, scale: float
+) -> tuple[np.ndarray, np.ndarray]:
+    """The best of a small grid of starts: every preset speed together, and the cushion
+    restitution, each at -1, 0 and +1 prior sd (the two trade off against each other in the
+    rebound angle, and a local search from the prior alone can settle between them)."""
+    n_t = len(TABLE_PARAMS)
+    j_e = TABLE_PARAMS.index("cushion.restitution")
+
+    def cost(rr: np.ndarray, uu: np.ndarray) -> float:
+        return float(np.sum(_cauchy(rr / scale)) + 0.5 * uu @ uu)
+
+    best = (cost(r, u), u, r)
+    for ds in (-1.0, 0.0, 1.0):
+        for de in (-1.0, 0.0, 1.0):
+            if ds == 0.0 and de == 0.0:
+                continue
+            uu = u.copy()
+            uu[n_t:] += ds
+            uu[j_e] += de
+            uu = np.clip(uu, prob.u_lo, prob.u_hi)
+            rr = prob.residuals(uu)
+            c = cost(rr, uu)
+            if c < best[0]:
+                best = (c, uu, rr)
+    return best[1], best[2]
+
+
+def _robust_scale(r: np.ndarray) -> float:
+    """MAD scale of residuals about zero (the model should be unbiased), floored."""
+    return max(float(np.median(np.abs(r))) * MAD_TO_SD, NOISE_FLOOR)
+
+
+def _cauchy(t: np.ndarray) -> np.ndarray:
+    return 0.5 * CAUCHY_C**2 * np.log1p((t / CAUCHY_C) ** 2)
+
+
+def _weights(t: np.ndarray) -> np.ndarray:
+    return 1.0 / (1.0 + (t / CAUCHY_C) ** 2)
+
+
+def _rms(r: np.ndarray) -> float:
+    return float(np.sqrt(np.mean(r * r))) if len(r) else math.nan
+
+
+def fit(
+    table: TableSpec,
+    attempts: Sequence[Attempt],
+    prior_table: TableSpec | None = None,
+    *,
+    model: str = "physical",
+    predictor: Predictor | None = None,
+    prior_speeds: dict[str, float] | None = None,
+    player: str = "",
+    max_iter: int = 12,
+    max_evals: int = 60,
+) -> Calibration:
+    """Fit cloth, cushion and the player's preset speeds to logged landings (robust MAP).
+
+    The objective is sum_i rho(r_i / s) + 1/2 sum_j ((theta_j - prior_j) / sd_j)^2, where r_i
+    is the signed landing error (diamonds round the table) of attempt i with the aim the player
+    used, rho the Cauchy loss (Holland and Welsch 1977) and s the robust noise scale (MAD of
+    the residuals, re-estimated between rounds). Gaussian priors come from the published
+    ranges (PRIOR_SD); speeds are fitted in log m/s. The minimiser is Levenberg-Marquardt
+    (K. Levenberg 1944, D. Marquardt 1963) on iteratively reweighted least squares, with a
+    finite-difference Jacobian taken afresh after every accepted step, from the best of a small
+    grid of starts. The search stops after ``max_iter`` steps or ``max_evals`` model runs per
+    attempt, whichever comes first, so a fit on a few hundred attempts takes seconds.
+    Uncertainties are the square roots of the diagonal
+    of the inverse Gauss-Newton Hessian of the MAP objective (a Laplace approximation).
+
+    ``table`` gives the geometry the attempts were made on; ``prior_table`` (default
+    ``table``) the cloth and cushion values the priors are centred on; ``prior_speeds`` the
+    preset speeds they are centred on (default the book's, shots.SPEED_PRESETS).
+    """
+    t0 = time.perf_counter()
+    prior_table = prior_table or table
+    speeds0 = dict(shots.SPEED_PRESETS)
+    speeds0.update(prior_speeds or {})
+    custom = predictor is not None
+    if predictor is None:
+
+        def predictor(t: TableSpec, s: shots.Setup, r: float, st: shots.Stroke) -> Trace:
+            return shots.predict(t, s, r, st, model)
+
+    data = _prepare(table, attempts)
+    if len(data) < 3:
+        raise CalibrationError(
+            f"only {len(data)} of {len(attempts)} attempts can be used for a calibration: "
+            "log at least 3 shots with their landings (the table check takes 5 to 10)"
+        )
+    batch = None
+    if model == "physical" and not custom:
+        batch = _Batch.make(table, data)
+    prob = _Problem(table, prior_table, data, predictor, speeds0, batch)
+    n_p = len(prob.names)
+    budget = max_evals * len(data)
+    u = np.zeros(n_p)
+    r = prob.residuals(u)
+    r_before = r.copy()
+    u, r = _best_start(prob, u, r, _robust_scale(r))
+    lam = 0.1
+    iterations = 0
+    J = prob.jacobian(u, r)
+    fresh = True
+    while iterations < max_iter and prob.evaluations < budget:
+        iterations += 1
+        # IRLS: the noise scale and the Cauchy weights follow the current residuals
+        scale = _robust_scale(r)
+
+        def cost(rr: np.ndarray, uu: np.ndarray, s: float = scale) -> float:
+            return float(np.sum(_cauchy(rr / s)) + 0.5 * uu @ uu)
+
+        c_now = cost(r, u)
+        w = _weights(r / scale)
+        Jw = J * (np.sqrt(w) / scale)[:, None]
+        A = Jw.T @ Jw + np.eye(n_p)
+        g = J.T @ (w * r) / scale**2 + u
+        accepted = False
+        for _try in range(4):
+            M = A + lam * np.diag(np.diag(A))
+            u_new = np.clip(u - np.linalg.solve(M, g), prob.u_lo, prob.u_hi)
+            r_new = prob.residuals(u_new)
+            c_new = cost(r_new, u_new)
+            if c_new < c_now:
+                accepted = True
+                break
+            lam *= 4.0
+        if not accepted:
+            break
+        du = u_new - u
+        gain = c_now - c_new
+        u, r = u_new, r_new
+        lam = max(lam / 3.0, 1e-4)
+        fresh = False
+        if _DEBUG:
+            print("it", iterations, c_new, scale, lam, prob.evaluations, np.round(prob.theta(u), 4))
+        if float(np.max(np.abs(du))) < 1e-3 or gain < 1e-3 * max(c_now, 1.0):
+            break
+        if prob.evaluations >= budget:
+            break
+        J = prob.jacobian(u, r)
+        fresh = True
+    scale = _robust_scale(r)
+    # Laplace approximation at the optimum, with a fresh Jacobian.
+    if not fresh:
+        J = prob.jacobian(u, r)
+    w = _weights(r / scale)
+    Jw = J * (np.sqrt(w) / scale)[:, None]
+    cov = np.linalg.inv(Jw.T @ Jw + np.eye(n_p))
+    sd_u = np.sqrt(np.clip(np.diag(cov), 0.0, None))
+    theta = prob.theta(u)
+    n_t = len(TABLE_PARAMS)
+    params = tuple(
+        Estimate(n, float(theta[j]), float(prob.sd[j] * sd_u[j]), float(prob.centre[j]))
+        for j, n in enumerate(TABLE_PARAMS)
+    )
+    speeds = []
+    for k, p in enumerate(prob.presets):
+        j = n_t + k
+        v = math.exp(theta[j])
+        speeds.append(Estimate(p, v, v * float(prob.sd[j] * sd_u[j]), speeds0[p]))
+    inlier = np.abs(r / scale) <= 3.0
+    cal = Calibration(
+        table=table.name,
+        params=params,
+        speeds=tuple(speeds),
+        attempts=len(attempts),
+        used=len(data),
+        outliers=int(np.sum(~inlier)),
+        rms_before=_rms(r_before),
+        rms_after=_rms(r),
+        rms_before_inliers=_rms(r_before[inlier]),
+        rms_after_inliers=_rms(r[inlier]),
+        noise=scale,
+        shifts=_shifts(prob, u),
+        model=model,
+        player=player,
+        iterations=iterations,
+    )
+    return replace(cal, seconds=time.perf_counter() - t0)
+
+
+def _shifts(prob: _Problem, u: np.ndarray) -> tuple[Shift, ...]:
+    """Mean long/short of the calibrated against the prior prediction, per family and preset.
+
+    Which way is long comes from the ideal trace of the same reading (the direction the ball
+    runs along its landing rail, which speed and spin do not turn round)."""
+    base = prob.landings(np.zeros_like(u))
+    cal = prob.landings(u)
+    groups: dict[tuple[str, str], list[float]] = {}
+    for i, d in enumerate(prob.data):
+        b, c = base[i], cal[i]
+        if b is None or c is None:
+            continue
+        ideal = shots.predict(prob.table, d.setup, d.reading, None, "ideal")
+        s = travel_sign(prob.table, ideal, d.setup.start) or 1.0
+        groups.setdefault((d.family, d.preset), []).append(
+            s * shots.landing_distance(prob.table, c, b)
+        )
+    return tuple(
+        Shift(f, p, float(np.mean(v)), len(v))
+        for (f, p), v in sorted(groups.items(), key=lambda kv: kv[0])
+    )
+
+
+# ----- using a calibration -----------------------------------------------------------------------
+
+
+def stroke_for(
+    calibration: Calibration | None, preset: str, english: float = 0.0, follow: float = 0.0
+) -> shots.Stroke:
+    """The stroke a player means by a preset: their calibrated m/s, or the book's without one."""
+    if preset not in shots.SPEED_PRESETS:
+        raise CalibrationError(
+            f"unknown speed preset {preset!r}: use one of {', '.join(shots.SPEED_PRESETS)}"
+        )
+    speed = calibration.speed(preset) if calibration is not None else shots.SPEED_PRESETS[preset]
+    return shots.Stroke(speed, english, follow)
+
+
+def speed_for(calibration: Calibration | None, text: str | float) -> float:
+    """A --speed value (a preset name or m/s) as the m/s the model should use: a preset name
+    becomes the player's calibrated m/s; a number of m/s is taken as given."""
+    if isinstance(text, str) and text.strip().lower() in shots.SPEED_PRESETS:
+        return stroke_for(calibration, text.strip().lower()).speed
+    return shots.parse_speed(text)
+
+
+NOT_CALIBRATED = "not calibrated yet"
+
+
+def stored_calibration(store: Any, table_name: str, player: str | None) -> Calibration | None:
+    """The newest stored calibration of a table for a player, or None."""
+    if not player:
+        return None
+    rec = store.calibration(table_name, player)
+    if rec is None:
+        return None
+    return Calibration.from_dict(rec["params"], int(rec["attempts"]))
+
+
+def default_player(store: Any, player: str | None) -> str | None:
+    """The player named, or the only player in the store, or None."""
+    if player:
+        return player
+    names = store.players()
+    return names[0] if len(names) == 1 else None
+
+
+@dataclass(frozen=True, slots=True)
+class Resolved:
+    """The table to aim on: the spec (calibrated if possible), the calibration, the player it
+    belongs to and a one-line status for the screen."""
+
+    table: TableSpec
+    calibration: Calibration | None
+    player: str | None
+    status: str
+
+
+def resolve(store: Any, table_name: str, player: str | None = None) -> Resolved:
+    """The table spec for ``table_name`` (built-in or stored) with the player's calibration
+    applied, if there is one. With no player named and one player in the store, that player."""
+    base = store.get_table(table_name)
+    who = default_player(store, player)
+    cal = stored_calibration(store, table_name, who)
+    if cal is None:
+        status = NOT_CALIBRATED if who else f"{NOT_CALIBRATED} (no player named)"
+        return Resolved(base, None, who, status)
+    return Resolved(cal.apply(base), cal, who, cal.status)
+
+
+def calibrated_table(store: Any, table_name: str, player: str | None) -> tuple[TableSpec, str]:
+    """The table with the player's calibration applied and a status line: "calibrated from N
+    attempts" or "not calibrated yet"."""
+    r = resolve(store, table_name, player)
+    return r.table, r.status
+
+
+def resolve_table(
+    table_name: str | None, player: str | None = None, store: Any = None
+) -> tuple[TableSpec, str]:
+    """For the aim and predict commands: the table to use and its status line.
+
+    ``store`` is an open Store (the command opens it from the data dir); with None, the
+    built-in table and "not calibrated yet". The core stays free of file paths.
+    """
+    from .table import DEFAULT_TABLE, builtin_table  # noqa: PLC0415
+
+    name = table_name or DEFAULT_TABLE
+    if store is None:
+        return builtin_table(name), NOT_CALIBRATED
+    return calibrated_table(store, name, player)
+
+
+# ----- the table check ---------------------------------------------------------------------------
+
+TABLE_CHECK: tuple[
+    tuple[str, tuple[float, float], tuple[float, float] | None, tuple[float, float] | None, str],
+    ...,
+] = (
+    ("one-rail-kick", (1.0, 1.0), None, (3.0, 1.0), "medium"),
+    ("one-rail-kick", (1.0, 1.0), None, (3.0, 2.0), "fast"),
+    ("two-rail-kick", (1.0, 1.0), None, (5.0, 1.0), "fast"),
+    ("three-rail-kick", (2.0, 1.0), None, (4.0, 1.5), "fast"),
+    ("three-rail-kick", (1.0, 2.0), None, (3.0, 1.0), "fast"),
+    ("cross-corner-bank", (5.28, 2.01), (5.5, 2.5), None, "fast"),
+    ("cross-side-bank", (5.09, 1.47), (5.0, 2.0), None, "fast"),
+    ("long-rail-bank", (5.47, 1.9), (6.0, 2.0), None, "fast"),
+)
+"""Reference shots of the table check: (family, cue, object, target ball, preset), positions in
+diamonds. Checking a system on each new table with a benchmark shot is common practice (no
+source); these cover one, two and three rails and three banks at the speeds a player uses
+most, so that the first calibration sees cushion, cloth and speed at once."""
+
+
+def table_check_setups(table: TableSpec, model: str = "ideal") -> list[Any]:
+    """The 5 to 10 reference shots that seed a new table's calibration, as drills.Dealt.
+
+    Each has a clean path on ``table`` under ``model`` (shots.solve_aim); shots that do not
+    fit this table are left out, and a CalibrationError says so if fewer than 5 remain.
+    """
+    from .drills import Dealt  # noqa: PLC0415  (drills imports the shot engine; keep it lazy)
+
+    out: list[Any] = []
+    for k, (fam, cue, obj, tb, preset) in enumerate(TABLE_CHECK):
+        family = shots.PRESETS[fam]
+
+        def met(p: tuple[float, float] | None) -> tuple[float, float] | None:
+            return None if p is None else table.to_metres(*p)
+
+        stroke = shots.Stroke(shots.SPEED_PRESETS[preset])
+        try:
+            setup = shots.make_setup(table, family, met(cue), met(obj), None, met(tb))  # type: ignore[arg-type]
+            aim = shots.solve_aim(table, setup, stroke, model)
+        except ValueError:
+            continue
+        label = f"table check: {family.title.lower()}, {preset}"
+        out.append(Dealt(setup, stroke, k, label, aim))
+    if len(out) < 5:
+        raise CalibrationError(
+            f"only {len(out)} of the table check's reference shots fit the {table.name} table; "
+            "log a few ordinary shots instead and run 'tablecoach calibrate'"
+        )
+    n = len(out)
+    return [
+        Dealt(d.setup, d.stroke, d.item, f"{d.label} ({i + 1} of {n})", d.aim)
+        for i, d in enumerate(out)
+    ]

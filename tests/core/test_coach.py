@@ -87,9 +87,11 @@ def test_zone_stats_shrink_toward_the_family_rate() -> None:
     busy = st[coach.Zone("one-rail-kick", 0, 1, "medium")]
     fam = (8 + 1) / (11 + 2)  # Laplace's rule of succession for the family
     assert lone.family_rate == pytest.approx(fam)
-    # Conjugate update: Beta(4 p, 4 (1 - p)) prior plus 0 of 1 made.
-    assert lone.mean == pytest.approx(4 * fam / 5)
-    assert lone.mean > 0.5  # one miss does not make a weak zone
+    # Conjugate update: Beta(k p, k (1 - p)) prior plus 0 of 1 made.
+    k = coach.PRIOR_STRENGTH
+    assert lone.mean == pytest.approx(k * fam / (k + 1))
+    # one miss does not make a weak zone: pooled above the unpooled Beta(1, 1) mean of 1/3
+    assert lone.mean > 1.0 / 3.0
     assert busy.record == "8 of 10 made"
     assert busy.low < busy.mean < busy.high
     assert stats.beta.ppf(0.1, busy.alpha, busy.beta) == pytest.approx(busy.low, abs=2e-3)
@@ -107,3 +109,146 @@ def test_sampling_is_deterministic_for_a_seed() -> None:
     s = coach.stats_for(3, 9, 0.6)
     a = [s.sample(np.random.default_rng(7)) for _ in range(3)]
     assert a[0] == a[1] == a[2]
+
+
+# ----- the scheduler ------------------------------------------------------------------------
+
+
+class _Dealt:
+    """Stand-in with drills.Dealt's fields (setup, stroke, item, label)."""
+
+    def __init__(self, setup: shots.Setup, stroke: shots.Stroke) -> None:
+        self.setup, self.stroke, self.item, self.label = setup, stroke, 0, "test"
+
+
+KICK = shots.PRESETS["one-rail-kick"]
+
+
+def _sampler(table, drill, rng, n):  # type: ignore[no-untyped-def]
+    """Random one-rail kicks, a third of them with no clean path (not checked here)."""
+    out = []
+    while len(out) < n:
+        cue = table.to_metres(rng.uniform(0.3, 7.7), rng.uniform(0.3, 3.7))
+        tb = table.to_metres(rng.uniform(0.3, 7.7), rng.uniform(0.3, 3.7))
+        try:
+            s = shots.make_setup(table, KICK, cue, None, None, tb)
+        except ValueError:
+            continue
+        out.append(_Dealt(s, shots.Stroke(1.4)))
+    return out
+
+
+def _has_clean_path(d: _Dealt) -> bool:
+    try:
+        shots.solve_ideal(T9, d.setup)
+    except ValueError:
+        return False
+    return True
+
+
+def _play(sch: coach.Scheduler, n: int, seed: int) -> list[coach.Choice]:
+    player = np.random.default_rng(seed)
+    out = []
+    for _ in range(n):
+        ch = sch.next()
+        out.append(ch)
+        rec = shots.record_of(T9, ch.dealt.setup)
+        hit = bool(player.random() < (0.3 if ch.zone.col == 1 else 0.8))
+        sch.record(
+            Attempt(
+                datetime(2026, 1, 1, tzinfo=UTC),
+                "ann",
+                "9ft",
+                rec,
+                1.4,
+                0.0,
+                0.0,
+                "right",
+                4.0,
+                4.0,
+                "hit" if hit else "miss",
+                "left",
+                4.0,
+            )
+        )
+    return out
+
+
+def test_sampler_really_deals_setups_without_a_clean_path() -> None:
+    # Guard for the next test: the stand-in sampler must include bad setups.
+    dealt = _sampler(T9, None, np.random.default_rng(0), 60)
+    assert any(not _has_clean_path(d) for d in dealt)
+
+
+def test_scheduler_never_proposes_a_setup_without_a_clean_path() -> None:
+    sch = coach.Scheduler(T9, None, [], np.random.default_rng(1), sampler=_sampler)
+    for ch in _play(sch, 40, 2):
+        assert _has_clean_path(ch.dealt)
+        assert sch.zone_of_dealt(ch.dealt) == ch.zone
+        assert ch.why.startswith("one-rail kick from x ")
+
+
+def test_scheduler_is_deterministic_for_a_seed() -> None:
+    runs = []
+    for _ in range(2):
+        sch = coach.Scheduler(T9, None, [], np.random.default_rng(5), sampler=_sampler)
+        runs.append([(c.zone, c.why, c.dealt.setup) for c in _play(sch, 25, 9)])
+    assert runs[0] == runs[1]
+    sch = coach.Scheduler(T9, None, [], np.random.default_rng(6), sampler=_sampler)
+    other = [(c.zone, c.why, c.dealt.setup) for c in _play(sch, 25, 9)]
+    assert other != runs[0]
+
+
+def test_scheduler_interleaves_and_explains() -> None:
+    sch = coach.Scheduler(T9, None, [], np.random.default_rng(3), sampler=_sampler)
+    picks = _play(sch, 30, 4)
+    # never the same zone twice in a row (Shea and Morgan 1979, interleaved practice)
+    assert all(a.zone != b.zone for a, b in zip(picks, picks[1:], strict=False))
+    assert all(c.reason in ("weak", "band", "strong", "new") for c in picks)
+    tried = [c for c in picks if "made" in c.why]
+    assert tried and all(" of " in c.why for c in tried)
+
+
+def test_scheduler_finds_the_weak_column() -> None:
+    # Zones of column 1 (x 2-4) make 30 %, the rest 80 %; after 80 attempts the coach's
+    # three weakest zones must be mostly theirs, and they get more than their uniform share.
+    sch = coach.Scheduler(T9, None, [], np.random.default_rng(11), sampler=_sampler)
+    picks = _play(sch, 80, 12)
+    weakest = sch.weakest(3)
+    assert len(weakest) == 3 and weakest[0][1].mean <= weakest[2][1].mean
+    assert sum(z.col == 1 for z, _ in weakest) >= 2
+    share = sum(c.zone.col == 1 for c in picks) / len(picks)
+    assert share > 0.3  # 4 of 16 cells: 25 % under uniform dealing
+
+
+def test_pin_a_zone_then_a_family() -> None:
+    sch = coach.Scheduler(T9, None, [], np.random.default_rng(8), sampler=_sampler)
+    first = sch.next()
+    sch.pin(zone=first.zone, count=3)
+    assert sch.pinned is not None and "3 more" in sch.pinned
+    pinned = [sch.next() for _ in range(3)]
+    assert all(c.zone == first.zone and c.reason == "pinned" for c in pinned)
+    assert "pinned" in pinned[0].why
+    assert sch.pinned is None  # the pin ran out
+    sch.pin(family="one-rail-kick", count=2)
+    assert all(sch.next().zone.family == "one-rail-kick" for _ in range(2))
+    sch.pin(family="one-rail-kick", count=5)
+    sch.unpin()
+    assert sch.pinned is None
+    with pytest.raises(ValueError):
+        sch.pin()
+
+
+def test_scheduler_rejects_a_bad_band() -> None:
+    with pytest.raises(ValueError, match="target band"):
+        coach.Scheduler(T9, None, [], np.random.default_rng(0), (0.9, 0.8), sampler=_sampler)
+
+
+def test_scheduler_with_a_builtin_drill() -> None:
+    from tablecoach.core import drills
+
+    pack = drills.builtin_drills()["mixed"]
+    sch = coach.Scheduler(T9, pack, [], np.random.default_rng(2))
+    fams = {sch.next().zone.family for _ in range(12)}
+    assert len(fams) >= 2
+    assert fams <= {item.family.name for item in pack.items}
