@@ -31,11 +31,15 @@ COMMANDS = (
 )
 
 
-def add_common(p: argparse.ArgumentParser) -> None:
-    """Options every subcommand takes."""
+def add_common(p: argparse.ArgumentParser, top: bool = False) -> None:
+    """Options every subcommand takes.
+
+    On a subcommand the default is SUPPRESS, so a --data-dir given before the command name is
+    not overwritten by the subparser's own default.
+    """
     p.add_argument(
         "--data-dir",
-        default=None,
+        default=None if top else argparse.SUPPRESS,
         help="where the practice database lives (default: your user data folder; "
         "also the TABLECOACH_DATA_DIR environment variable)",
     )
@@ -48,7 +52,7 @@ def build_parser() -> argparse.ArgumentParser:
         "practice screen.",
     )
     parser.add_argument("--version", action="version", version=f"tablecoach {__version__}")
-    add_common(parser)
+    add_common(parser, top=True)
     parser.add_argument("--table", default=None, help="table to practise on (practice screen)")
     parser.add_argument("--drill", default=None, help="drill pack to practise (practice screen)")
     parser.add_argument("--player", default=None, help="player name (practice screen)")

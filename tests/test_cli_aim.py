@@ -116,3 +116,17 @@ def test_aim_text_output_in_ascii_from_a_subprocess(tmp_path):
     assert "aim" in out.stdout and "right rail sights" in out.stdout
     assert "C" in out.stdout and "T" in out.stdout
     assert all(ord(ch) < 128 for line in out.stdout.splitlines()[:24] for ch in line)
+
+
+def test_data_dir_before_the_command_name_is_kept(tmp_path, monkeypatch):
+    # argparse: a subparser default must not overwrite the top-level --data-dir
+    import os
+
+    from tablecoach.cli import build_parser
+
+    monkeypatch.delenv("TABLECOACH_DATA_DIR", raising=False)
+    args = build_parser().parse_args(["--data-dir", str(tmp_path), "aim", "--cue", "1,1"])
+    assert args.data_dir == str(tmp_path)
+    args = build_parser().parse_args(["aim", "--data-dir", str(tmp_path), "--cue", "1,1"])
+    assert args.data_dir == str(tmp_path)
+    assert "TABLECOACH_DATA_DIR" not in os.environ

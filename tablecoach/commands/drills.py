@@ -16,14 +16,6 @@ def _action_common(p: argparse.ArgumentParser) -> None:
     p.add_argument("--json", action="store_true", help="print JSON instead of text")
 
 
-def _keep_outer_data_dir(p: argparse.ArgumentParser) -> None:
-    """Let a --data-dir given before the command name stand (a subparser's own default would
-    otherwise overwrite it with None)."""
-    for action in p._actions:
-        if action.dest == "data_dir":
-            action.default = argparse.SUPPRESS
-
-
 def register(sub: Any) -> None:
     p = sub.add_parser(
         "drills",
@@ -31,7 +23,6 @@ def register(sub: Any) -> None:
         description="Drill packs: the built-in ones and your own TOML files (docs/drills.md).",
     )
     add_common(p)
-    _keep_outer_data_dir(p)
     acts = p.add_subparsers(dest="action", metavar="ACTION")
     a = acts.add_parser("list", help="every pack, built-in and your own")
     _action_common(a)

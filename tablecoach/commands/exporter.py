@@ -12,14 +12,6 @@ from typing import Any
 from ..cli import add_common
 
 
-def _keep_outer_data_dir(p: argparse.ArgumentParser) -> None:
-    """Let a --data-dir given before the command name stand (a subparser's own default would
-    otherwise overwrite it with None)."""
-    for action in p._actions:
-        if action.dest == "data_dir":
-            action.default = argparse.SUPPRESS
-
-
 def register(sub: Any) -> None:
     p = sub.add_parser(
         "export",
@@ -28,7 +20,6 @@ def register(sub: Any) -> None:
         "file into an empty data folder gives back the same attempts.",
     )
     add_common(p)
-    _keep_outer_data_dir(p)
     p.add_argument(
         "--format",
         choices=("jsonl", "csv"),

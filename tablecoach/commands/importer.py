@@ -14,14 +14,6 @@ class ImportFileError(ValueError):
     """An import file cannot be read or has bad lines; the message says what to do."""
 
 
-def _keep_outer_data_dir(p: argparse.ArgumentParser) -> None:
-    """Let a --data-dir given before the command name stand (a subparser's own default would
-    otherwise overwrite it with None)."""
-    for action in p._actions:
-        if action.dest == "data_dir":
-            action.default = argparse.SUPPRESS
-
-
 def register(sub: Any) -> None:
     p = sub.add_parser(
         "import",
@@ -30,7 +22,6 @@ def register(sub: Any) -> None:
         "lines imports nothing unless --skip-bad. Attempts already stored are skipped.",
     )
     add_common(p)
-    _keep_outer_data_dir(p)
     p.add_argument("file", help="the file to read ('-' for standard input)")
     p.add_argument(
         "--format", choices=("jsonl", "csv"), default=None, help="default: from the file name"
