@@ -7,10 +7,14 @@ order (``when``, then ``id``); days and ISO weeks are counted in the player's lo
 
 from __future__ import annotations
 
+import gc
 import math
-from collections.abc import Callable, Hashable, Iterable, Mapping, Sequence
+import operator
+from collections.abc import Callable, Hashable, Iterable, Iterator, Mapping, Sequence
+from contextlib import contextmanager
 from dataclasses import dataclass, field
 from datetime import date, datetime, timedelta, tzinfo
+from itertools import chain, repeat
 from statistics import NormalDist
 from typing import Any
 
@@ -370,7 +374,7 @@ def _codes(values: Sequence[Hashable]) -> tuple[np.ndarray, tuple[Any, ...]]:
     """Integer codes for values, in order of first appearance, and the distinct values."""
     distinct = tuple(dict.fromkeys(values))
     index = {v: i for i, v in enumerate(distinct)}
-    return np.array([index[v] for v in values], dtype=np.int64), distinct
+    return np.fromiter(map(index.__getitem__, values), np.int64, len(values)), distinct
 
 
 @dataclass(frozen=True, slots=True)
@@ -396,44 +400,98 @@ class Columns:
     landing_at: np.ndarray
 
 
+_GET = operator.attrgetter(
+    "when", "result", "shot", "session", "speed", "table", "aim_rail", "aim_used",
+    "landing_rail", "landing_at", "player", "id",
+)  # fmt: skip
+_GET_SHOT = operator.attrgetter("family", "travel", "rails", "cue", "object")
+
+
+@contextmanager
+def _quiet_gc() -> Iterator[None]:
+    """Pause the cyclic garbage collector while building many small tuples at once (it would
+    rescan every live attempt on each collection); restores the caller's setting."""
+    was = gc.isenabled()
+    gc.disable()
+    try:
+        yield
+    finally:
+        if was:
+            gc.enable()
+
+
 def columns(attempts: Iterable[Attempt]) -> Columns:
     """Put attempts in time order (``when``, then id) and lay them out as columns."""
-    items = list(attempts)
+    with _quiet_gc():
+        return _columns(list(attempts))
+
+
+def _columns(items: list[Attempt]) -> Columns:
     n = len(items)
-    ts = np.array([a.when.timestamp() for a in items], dtype=np.float64)
+    if n == 0:
+        e = np.zeros(0)
+        ei = np.zeros(0, np.int64)
+        return Columns((), ei, e, np.zeros(0, bool), ei, (), ei, (), e, np.zeros((0, 2)),
+                       ei, (), e, ei, e)  # fmt: skip
+    rows = list(map(_GET, items))
+    (whens, results, shots_, sessions, speeds, tables, aim_rails, aim_used, lrails, lat,
+     players, ids) = zip(*rows, strict=True)  # fmt: skip
+    ts = np.fromiter(map(datetime.timestamp, whens), np.float64, n)
     order = np.arange(n)
     if n > 1 and not bool(np.all(np.diff(ts) >= 0.0)):
-        ids = np.array([a.id if a.id is not None else -1 for a in items], dtype=np.int64)
-        order = np.lexsort((ids, ts))
-        items = [items[i] for i in order]
+        idn = np.array([-1 if i is None else i for i in ids], dtype=np.int64)
+        order = np.lexsort((idn, ts))
+        ol = order.tolist()
+        items = [items[i] for i in ol]
         ts = ts[order]
-    shots_ = [a.shot for a in items]
-    hit = np.array([a.result == "hit" for a in items], dtype=np.bool_)
-    fam, fams = _codes([s.family or "custom" for s in shots_])
+
+        def pick(col: tuple[Any, ...]) -> tuple[Any, ...]:
+            return tuple(col[i] for i in ol)
+
+        results, shots_, sessions, speeds, tables = map(
+            pick, (results, shots_, sessions, speeds, tables)
+        )
+        aim_rails, aim_used, lrails, lat, players = map(
+            pick, (aim_rails, aim_used, lrails, lat, players)
+        )
+    fams, travels, rails, cues, objects = zip(*map(_GET_SHOT, shots_), strict=True)
+    hit = np.fromiter(map("hit".__eq__, results), np.bool_, n)
+    fam, fam_names = _codes(fams)
+    fam_names = tuple(f or "custom" for f in fam_names)
+    if len(set(fam_names)) != len(fam_names):  # "" and "custom" both present: merge them
+        fam, fam_names = _codes([f or "custom" for f in fams])
     ses, sess = _codes(
-        [a.session if a.session is not None else ("unsaved", a.player, a.table) for a in items]
+        [
+            s if s is not None else ("unsaved", p, t)
+            for s, p, t in zip(sessions, players, tables, strict=True)
+        ]
     )
-    shape, shapes = _codes([(a.table, a.shot.rails, a.aim_rail) for a in items])
-    start = np.array(
-        [s.object if s.travel == "object" and s.object is not None else s.cue for s in shots_],
-        dtype=np.float64,
-    ).reshape(n, 2)
+    shape, shapes = _codes(list(zip(tables, rails, aim_rails, strict=True)))
+    start = np.fromiter(chain.from_iterable(cues), np.float64, 2 * n).reshape(n, 2)
+    banks = [
+        i
+        for i, (tr, ob) in enumerate(zip(travels, objects, strict=True))
+        if tr == "object" and ob is not None
+    ]
+    if banks:
+        start[banks] = np.array([objects[i] for i in banks], dtype=np.float64)
+    land_code = np.fromiter(map(_RAIL_CODE.get, lrails, repeat(0, n)), np.int64, n)
     return Columns(
         attempts=tuple(items),
         order=order,
         ts=ts,
         hit=hit,
         family=fam,
-        families=fams,
+        families=fam_names,
         session=ses,
         sessions=sess,
-        speed=np.array([a.speed for a in items], dtype=np.float64),
+        speed=np.fromiter(speeds, np.float64, n),
         start=start,
         shape=shape,
         shapes=shapes,
-        aim_used=np.array([a.aim_used for a in items], dtype=np.float64),
-        landing_rail=np.array([_RAIL_CODE.get(a.landing_rail, 0) for a in items], np.int64),
-        landing_at=np.array([a.landing_at for a in items], dtype=np.float64),
+        aim_used=np.fromiter(aim_used, np.float64, n),
+        landing_rail=land_code,
+        landing_at=np.fromiter(lat, np.float64, n),
     )
 
 
@@ -714,7 +772,7 @@ def default_zone_fn() -> ZoneFn | None:
     return key
 
 
-def summarize(
+def _summarize(
     attempts: Iterable[Attempt],
     tz: tzinfo | None = None,
     today: date | None = None,
@@ -723,15 +781,7 @@ def summarize(
     confidence: float = 0.95,
     with_bias: bool = True,
 ) -> History:
-    """The whole history of a set of attempts (one player's, usually).
-
-    ``tz`` is the player's time zone for days and ISO weeks (None: the machine's local zone);
-    ``today`` the local date the current day streak is judged against (None: now in ``tz``);
-    ``zone_fn`` keys each attempt to its zone (None: the coach's zones, core/coach.py);
-    ``table_of`` resolves table names for the landing bias (None: built-in tables only).
-    Works on numpy columns: the same numbers as the one-concept functions above (the tests
-    hold them to each other), fast enough for a hundred thousand attempts.
-    """
+    """The body of ``summarize`` (which runs it with the garbage collector paused)."""
     cols = columns(attempts)
     items = cols.attempts
     hit = cols.hit
@@ -815,6 +865,28 @@ def summarize(
         players=tuple(sorted({a.player for a in items})),
         tables=tuple(sorted({a.table for a in items})),
     )
+
+
+def summarize(
+    attempts: Iterable[Attempt],
+    tz: tzinfo | None = None,
+    today: date | None = None,
+    zone_fn: ZoneFn | None = None,
+    table_of: Callable[[str], TableSpec | None] | None = None,
+    confidence: float = 0.95,
+    with_bias: bool = True,
+) -> History:
+    """The whole history of a set of attempts (one player's, usually).
+
+    ``tz`` is the player's time zone for days and ISO weeks (None: the machine's local zone);
+    ``today`` the local date the current day streak is judged against (None: now in ``tz``);
+    ``zone_fn`` keys each attempt to its zone (None: the coach's zones, core/coach.py);
+    ``table_of`` resolves table names for the landing bias (None: built-in tables only).
+    Works on numpy columns: the same numbers as the one-concept functions above (the tests
+    hold them to each other), fast enough for a hundred thousand attempts.
+    """
+    with _quiet_gc():
+        return _summarize(attempts, tz, today, zone_fn, table_of, confidence, with_bias)
 
 
 def streak_of_array(hit: np.ndarray) -> Streak:
