@@ -118,7 +118,7 @@ class TableCoachApp(App[int]):
 
     CSS_PATH = "app.tcss"
     TITLE = "tablecoach"
-    BINDINGS = [Binding("d", "toggle_theme", "Dark/Light")]
+    BINDINGS = [Binding("d", "toggle_theme", "Theme")]
 
     def __init__(
         self,

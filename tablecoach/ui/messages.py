@@ -14,12 +14,20 @@ class SetupDealt(Message):
 
     ``generation`` names the dealer state it was drawn from; a pin or a new session moves the
     generation on, so a setup dealt before it is dropped. ``error`` says why nothing was dealt.
+    ``drawn`` is (picture, ((width, height), lines)): the table picture drawn in the worker.
     """
 
     def __init__(
-        self, generation: int, pick: Any, aim: Aim | None, error: str = "", note: str = ""
+        self,
+        generation: int,
+        pick: Any,
+        aim: Aim | None,
+        error: str = "",
+        note: str = "",
+        drawn: Any = None,
     ) -> None:
         super().__init__()
+        self.drawn = drawn
         self.generation = generation
         self.pick = pick
         self.aim = aim

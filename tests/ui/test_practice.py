@@ -379,3 +379,18 @@ async def test_pin_keeps_the_zone(make_app):
         await settle(pilot)
         assert "unpinned" in text_of(app, "#message")
         assert "Pinned" not in text_of(app, "#notes")
+
+
+async def test_v_opens_history_and_escape_returns(make_app):
+    app = make_app()
+    async with app.run_test(size=(120, 40)) as pilot:
+        await settle(pilot)
+        await pilot.press("h")
+        await settle(pilot)
+        await pilot.press("v")
+        await settle(pilot)
+        assert type(app.screen).__name__ == "HistoryScreen"
+        await pilot.press("escape")
+        await settle(pilot)
+        assert isinstance(app.screen, PracticeScreen)
+        assert len(stored(app)) == 1

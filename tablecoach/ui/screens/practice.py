@@ -21,7 +21,7 @@ from ..widgets import wording as w
 from ..widgets.info import InfoCard, MessageLine, NotesPanel, SessionBar, card, notes, session_line
 from ..widgets.landing import LandingPrompt
 from ..widgets.session import REDRAWS, Session
-from ..widgets.table_panel import TablePanel
+from ..widgets.table_panel import TablePanel, draw, picture_of
 
 
 def history_available() -> bool:
@@ -74,6 +74,7 @@ class PracticeScreen(Screen[None]):
         self.dealing = False
         self.waiting = False
         self.model_note = ""
+        self.drawn: tuple[Any, Any] | None = None
 
     # ----- layout ----------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
@@ -85,7 +86,7 @@ class PracticeScreen(Screen[None]):
                 yield InfoCard(id="card")
         yield SessionBar(id="session")
         yield MessageLine(id="message")
-        yield Footer()
+        yield Footer(compact=True)
 
     def on_mount(self) -> None:
         self.say("h hit, m miss, ? help: each attempt is saved the moment you log it")
@@ -95,9 +96,15 @@ class PracticeScreen(Screen[None]):
     def _refresh(self) -> None:
         s = self.session
         pick = s.pick
-        self.query_one(TablePanel).show(
-            s.table, pick.setup if pick else None, self.aim, self.conv, self._table_note()
-        )
+        panel = self.query_one(TablePanel)
+        if self.drawn is not None and self.conv is None and self.aim is not None:
+            picture, lines = self.drawn
+            panel.show(s.table, None, None, None, self._table_note(), lines, picture)
+        else:
+            panel.show(
+                s.table, pick.setup if pick else None, self.aim, self.conv, self._table_note()
+            )
+        self.drawn = None
         self.query_one(InfoCard).update(
             card(s.table, pick, s.stroke, self.aim, self.conv, self.error)
         )
@@ -151,7 +158,8 @@ class PracticeScreen(Screen[None]):
     def _deal_ahead(self) -> None:
         if self.ahead is None and not self.dealing:
             self.dealing = True
-            self._ahead_worker(self.generation, self.session.model)
+            size = self.query_one(TablePanel).drawing_size()
+            self._ahead_worker(self.generation, self.session.model, size)
 
     def _forget_ahead(self) -> None:
         """Drop a setup dealt before a pin changed what the coach should deal."""
@@ -173,13 +181,18 @@ class PracticeScreen(Screen[None]):
             return
         self.session.show(msg.pick)
         self.aim = msg.aim
+        self.drawn = msg.drawn
         self.error = "" if msg.aim is not None else msg.note
         if msg.aim is None:
             self.say(msg.note + "; n deals another setup, s tries another speed", True)
         self.model_note = msg.note if msg.aim is not None else ""
         self._refresh()
-        if msg.aim is not None:
-            self._conv_worker(self.token, msg.aim.setup, msg.aim.stroke, msg.aim.model)
+        # background work starts once the new setup is on the screen, so it never delays it
+        self.call_after_refresh(self._after_shown, self.token, msg.aim)
+
+    def _after_shown(self, token: int, aim: Aim | None) -> None:
+        if aim is not None and token == self.token:
+            self._conv_worker(token, aim.setup, aim.stroke, aim.model)
         self._deal_ahead()
 
     def _solve(self) -> None:
@@ -194,7 +207,7 @@ class PracticeScreen(Screen[None]):
         self._solve_worker(self.token, pick.setup, self.session.stroke, self.session.model)
 
     @work(thread=True, group="ahead", exit_on_error=False)
-    def _ahead_worker(self, generation: int, model: str) -> None:
+    def _ahead_worker(self, generation: int, model: str, size: tuple[int, int]) -> None:
         for _ in range(REDRAWS):
             try:
                 pick = self.session.draw()
@@ -207,7 +220,9 @@ class PracticeScreen(Screen[None]):
                 break
             if generation != self.generation:
                 return
-        self.post_message(SetupDealt(generation, pick, aim, note=why))
+        picture = picture_of(self.session.table, pick.setup, aim, None)
+        drawn = (picture, (size, draw(picture, self.ascii_only, *size)))
+        self.post_message(SetupDealt(generation, pick, aim, note=why, drawn=drawn))
 
     @work(thread=True, exclusive=True, group="aim", exit_on_error=False)
     def _solve_worker(self, token: int, setup: shots.Setup, stroke: Stroke, model: str) -> None:
@@ -216,7 +231,6 @@ class PracticeScreen(Screen[None]):
             self.post_message(AimSolved(token, None, error=why))
             return
         self.post_message(AimSolved(token, aim, note=why))
-        self._conv_now(token, setup, stroke, aim.model)
 
     @work(thread=True, exclusive=True, group="aim", exit_on_error=False)
     def _conv_worker(self, token: int, setup: shots.Setup, stroke: Stroke, model: str) -> None:
@@ -260,7 +274,13 @@ class PracticeScreen(Screen[None]):
         if message.error:
             self.say(message.error + "; n deals another setup, s tries another speed", True)
         self.model_note = message.note if message.aim is not None else ""
+        if message.aim is not None:
+            self.call_after_refresh(self._after_solved, message.token, message.aim)
         self._refresh()
+
+    def _after_solved(self, token: int, aim: Aim) -> None:
+        if token == self.token:
+            self._conv_worker(token, aim.setup, aim.stroke, aim.model)
 
     def on_convergence_found(self, message: ConvergenceFound) -> None:
         if message.token != self.token:
@@ -384,7 +404,10 @@ class PracticeScreen(Screen[None]):
             return
         from . import history  # noqa: PLC0415
 
-        self.app.push_screen(history.HistoryScreen(self.session.store, self.session.player))
+        screen = history.HistoryScreen(
+            self.session.store, self.session.player, ascii_only=self.ascii_only
+        )
+        self.app.push_screen(screen)
 
     def action_setup(self) -> None:
         self.app.action_open_setup()  # type: ignore[attr-defined]

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from rich.console import RenderableType
+from rich.console import Group, RenderableType
 from rich.text import Text
 from textual.widget import Widget
 
@@ -31,8 +31,17 @@ def picture_of(
     )
 
 
+def draw(picture: Picture, ascii_only: bool, width: int, height: int) -> list[Text]:
+    """The picture as lines for a panel of this size (safe to call in a worker thread)."""
+    return TableView(picture, ascii_only=ascii_only, max_height=height).lines(width, height)
+
+
 class TablePanel(Widget):
-    """Draws the current setup with the renderer shared with the command line."""
+    """Draws the current setup with the renderer shared with the command line.
+
+    Drawing a picture takes a good part of a frame, so a setup dealt ahead can bring its
+    lines drawn in the worker (``show(..., lines=)``); they are used when the size matches.
+    """
 
     DEFAULT_CSS = """
     TablePanel { height: 1fr; }
@@ -43,6 +52,11 @@ class TablePanel(Widget):
         self.ascii_only = ascii_only
         self._picture = Picture()
         self._note = ""
+        self._lines: tuple[tuple[int, int], list[Text]] | None = None
+
+    def drawing_size(self) -> tuple[int, int]:
+        """The width and height the picture is drawn at (one line is kept for the legend)."""
+        return (max(self.content_size.width, 20), max(self.content_size.height - 1, 4))
 
     def show(
         self,
@@ -51,15 +65,20 @@ class TablePanel(Widget):
         aim: Aim | None,
         conv: Convergence | None,
         note: str = "",
+        lines: tuple[tuple[int, int], list[Text]] | None = None,
+        picture: Picture | None = None,
     ) -> None:
-        self._picture = picture_of(table, setup, aim, conv)
+        self._picture = picture if picture is not None else picture_of(table, setup, aim, conv)
         self._note = note
+        self._lines = lines
         self.refresh()
 
     def render(self) -> RenderableType:
-        from rich.console import Group
-
-        height = max(self.content_size.height - 1, 4)
-        view = TableView(self._picture, ascii_only=self.ascii_only, max_height=height)
+        size = self.drawing_size()
+        if self._lines is not None and self._lines[0] == size:
+            lines = self._lines[1]
+        else:
+            lines = draw(self._picture, self.ascii_only, *size)
+            self._lines = (size, lines)
         foot = Text(self._note, style="italic") if self._note else legend_text(self.ascii_only)
-        return Group(view, foot)
+        return Group(*lines, foot)
