@@ -26,7 +26,7 @@ from ..geometry import Point, axis_of, nearest_point_to_lines, unfold
 from ..shots import Aim, Convergence, RailPoint, Setup, ShotError, Stroke, Trace
 from ..table import POCKETS, RAILS, TableSpec
 from .collide import strike
-from .motion import SPINNING, accel, evolve, phase_duration, phase_of, settle
+from .motion import SPINNING, dot2, evolve, prepare, settle
 from .params import BallModel, CushionModel, model_of
 from .roots import first_quadratic_root
 from .simulate import SimResult, sample_path, simulate
@@ -142,12 +142,10 @@ def _advance(
     for _ in range(4):
         if not going.any():
             break
-        ph = phase_of(m, v, w)
+        ph, a, T = prepare(m, v, w)
         going &= ph > SPINNING
-        a = accel(m, v, w, ph)
-        T = phase_duration(m, v, w, ph)
-        along_v = np.sum(v * d, axis=1)
-        along_a = np.sum(a * d, axis=1)
+        along_v = dot2(v, d)
+        along_a = dot2(a, d)
         t = first_quadratic_root(-0.5 * along_a, -along_v, left, T)
         hit = going & np.isfinite(t)
         tt = np.where(hit, t, np.where(np.isfinite(T), T, 0.0))
@@ -191,7 +189,7 @@ def _launch(
     u = ghost - pr.cue[pi]
     dist = np.hypot(u[:, 0], u[:, 1])
     ud = u / np.maximum(dist, 1e-300)[:, None]
-    cut = np.arccos(np.clip(np.sum(ud * d, axis=1), -1.0, 1.0))
+    cut = np.arccos(np.clip(dot2(ud, d), -1.0, 1.0))
     vc, wc = stick_hit(m, ud, stroke.speed, stroke.english, stroke.follow)
     vc, wc, reached = _advance(m, vc, wc, dist)
     vo, wo = strike(m, vc, wc, d)
@@ -264,21 +262,35 @@ def _interp(s0: float, s1: float, m0: float, m1: float) -> float:
 
 
 def _interp3(ss: np.ndarray, mm: np.ndarray, j: int) -> float:
-    """The zero of the quadratic through three neighbouring samples around the sign change
-    between j and j + 1 (inverse-free: the quadratic's root inside the bracket), falling back
-    to the chord when the neighbours are not usable."""
+    """The zero, inside the bracket [ss[j], ss[j + 1]], of the quadratic through three
+    neighbouring samples (Lagrange form), or the chord's zero when no such quadratic fits."""
     lin = _interp(ss[j], ss[j + 1], mm[j], mm[j + 1])
-    for k in (j - 1, j) if mm[j] != 0.0 else ():
+    lo, hi = min(ss[j], ss[j + 1]), max(ss[j], ss[j + 1])
+    for k in (j - 1, j):
         if k < 0 or k + 2 >= ss.size or not np.all(np.isfinite(mm[k : k + 3])):
             continue
-        x, y = ss[k : k + 3], mm[k : k + 3]
-        c = np.polyfit(x - lin, y, 2)
-        rts = np.roots(c) if abs(c[0]) > 1e-300 else np.array([-c[2] / c[1]])
-        rts = rts[np.isreal(rts)].real + lin
-        lo, hi = min(ss[j], ss[j + 1]), max(ss[j], ss[j + 1])
-        inside = rts[(rts >= lo) & (rts <= hi)]
-        if inside.size:
-            return float(inside[np.argmin(np.abs(inside - lin))])
+        x0, x1, x2 = (float(x) - lin for x in ss[k : k + 3])
+        y0, y1, y2 = (float(y) for y in mm[k : k + 3])
+        d01, d02, d12 = x0 - x1, x0 - x2, x1 - x2
+        # y(x) = A x^2 + B x + C through the three points
+        A = y0 / (d01 * d02) - y1 / (d01 * d12) + y2 / (d02 * d12)
+        B = (
+            -y0 * (x1 + x2) / (d01 * d02)
+            + y1 * (x0 + x2) / (d01 * d12)
+            - y2 * (x0 + x1) / (d02 * d12)
+        )
+        C = y0 * x1 * x2 / (d01 * d02) - y1 * x0 * x2 / (d01 * d12) + y2 * x0 * x1 / (d02 * d12)
+        if abs(A) < 1e-300:
+            cands = [-C / B] if B != 0 else []
+        else:
+            disc = B * B - 4 * A * C
+            if disc < 0:
+                continue
+            q = -0.5 * (B + math.copysign(math.sqrt(disc), B))
+            cands = [q / A] + ([C / q] if q != 0 else [])
+        inside = [c + lin for c in cands if lo <= c + lin <= hi]
+        if inside:
+            return min(inside, key=lambda c: abs(c - lin))
     return lin
 
 

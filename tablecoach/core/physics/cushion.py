@@ -42,6 +42,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from .motion import dot2
 from .params import BallModel
 
 
@@ -130,51 +131,60 @@ def mathavan_impact(m: BallModel, v: np.ndarray, w: np.ndarray) -> tuple[np.ndar
 
 def impulse_impact(m: BallModel, v: np.ndarray, w: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """Closed-form rigid impulse with Coulomb friction, slip directions frozen (see module)."""
-    st = np.concatenate((v, w), axis=1).astype(float)
-    n = st.shape[0]
+    n = v.shape[0]
     if n == 0:
         return v.copy(), w.copy()
     R = m.radius
     s, c = np.sin(m.theta), np.cos(m.theta)
-    vx, vy, wx, wy, wz = st.T
+    vx, vy = v[:, 0], v[:, 1]
+    wx, wy, wz = w[:, 0], w[:, 1], w[:, 2]
     sx = vx + wy * R * s - wz * R * c
     sy = -vy * s + wx * R
     cx = vx - wy * R
     cy = vy + wx * R
-    phi = np.arctan2(sy, sx)
-    phit = np.arctan2(cy, cx)
-    s_mag = np.hypot(sx, sy)
-    c_mag = np.hypot(cx, cy)
-    mu_w = np.where(s_mag > 1e-12, m.mu_w, 0.0)
-    mu_s = np.where(c_mag > 1e-12, m.mu_s, 0.0)
-    # unit slip directions, for projecting the slip rates
-    ew = np.stack((np.cos(phi), np.sin(phi)), axis=1)
-    et = np.stack((np.cos(phit), np.sin(phit)), axis=1)
-    p_tot = np.zeros(n)
-    rate = np.zeros_like(st)
+    s_mag = np.sqrt(sx * sx + sy * sy)
+    c_mag = np.sqrt(cx * cx + cy * cy)
+    has_s = s_mag > 1e-12
+    has_c = c_mag > 1e-12
+    cp = np.where(has_s, sx / np.where(has_s, s_mag, 1.0), 1.0)
+    sp = np.where(has_s, sy / np.where(has_s, s_mag, 1.0), 0.0)
+    cpt = np.where(has_c, cx / np.where(has_c, c_mag, 1.0), 1.0)
+    spt = np.where(has_c, cy / np.where(has_c, c_mag, 1.0), 0.0)
+    mw = np.where(has_s, m.mu_w, 0.0)
+    ms = np.where(has_c, m.mu_s, 0.0)
+    inv_m = 1.0 / m.mass
+    kw = 2.5 / (m.mass * R)
+
+    def rates(mw: np.ndarray, ms: np.ndarray) -> tuple[np.ndarray, ...]:
+        k = s + mw * sp * c
+        dvx = -inv_m * (mw * cp + ms * cpt * k)
+        dvy = -inv_m * (c - mw * s * sp + ms * spt * k)
+        dwx = -kw * (mw * sp + ms * spt * k)
+        dwy = -kw * (mw * cp * s - ms * cpt * k)
+        dwz = kw * mw * cp * c
+        return dvx, dvy, dwx, dwy, dwz
+
+    def total(dvy: np.ndarray) -> np.ndarray:
+        neg = dvy < 0
+        return np.where(neg, (1.0 + m.e_cushion) * vy / -np.where(neg, dvy, -1.0), 0.0)
+
     for _ in range(2):
-        rate = _rates(m, st, mu_w, mu_s, frozen=(phi, phit))
-        pc = np.where(rate[:, 1] < 0, -vy / np.where(rate[:, 1] < 0, rate[:, 1], -1.0), 0.0)
-        p_tot = (1.0 + m.e_cushion) * pc
-        dvx, _, dwx, dwy, dwz = rate.T
-        dvy = rate[:, 1]
-        dsx = dvx + dwy * R * s - dwz * R * c
-        dsy = -dvy * s + dwx * R
-        dcx = dvx - dwy * R
-        dcy = dvy + dwx * R
-        ds_w = dsx * ew[:, 0] + dsy * ew[:, 1]  # rate of the slip along its own direction
-        ds_t = dcx * et[:, 0] + dcy * et[:, 1]
+        dvx, dvy, dwx, dwy, dwz = rates(mw, ms)
+        p_tot = total(dvy)
+        # rate of each slip along its own (frozen) direction
+        ds_w = (dvx + dwy * R * s - dwz * R * c) * cp + (-dvy * s + dwx * R) * sp
+        ds_t = (dvx - dwy * R) * cpt + (dvy + dwx * R) * spt
         with np.errstate(divide="ignore", invalid="ignore"):
             pw = np.where(ds_w < 0, s_mag / -ds_w, np.inf)
             pt = np.where(ds_t < 0, c_mag / -ds_t, np.inf)
-        safe = np.maximum(p_tot, 1e-300)
-        mu_w = np.where(pw < p_tot, mu_w * np.minimum(pw, safe) / safe, mu_w)
-        mu_s = np.where(pt < p_tot, mu_s * np.minimum(pt, safe) / safe, mu_s)
-    rate = _rates(m, st, mu_w, mu_s, frozen=(phi, phit))
-    pc = np.where(rate[:, 1] < 0, -vy / np.where(rate[:, 1] < 0, rate[:, 1], -1.0), 0.0)
-    p_tot = (1.0 + m.e_cushion) * pc
-    out = st + rate * p_tot[:, None]
-    return out[:, :2], out[:, 2:]
+            safe = np.maximum(p_tot, 1e-300)
+            mw = np.where(pw < p_tot, mw * pw / safe, mw)
+            ms = np.where(pt < p_tot, ms * pt / safe, ms)
+    dvx, dvy, dwx, dwy, dwz = rates(mw, ms)
+    p = total(dvy)
+    v2 = np.stack((vx + dvx * p, vy + dvy * p), axis=1)
+    w2 = np.stack((wx + dwx * p, wy + dwy * p, wz + dwz * p), axis=1)
+    return v2, w2
 
 
 def cushion_impact(m: BallModel, v: np.ndarray, w: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -194,10 +204,8 @@ def rail_impact(
     """
     nx, ny = normal[:, 0], normal[:, 1]
     ex = np.stack((ny, -nx), axis=1)
-    vc = np.stack((np.sum(v * ex, axis=1), np.sum(v * normal, axis=1)), axis=1)
-    wc = np.stack(
-        (np.sum(w[:, :2] * ex, axis=1), np.sum(w[:, :2] * normal, axis=1), w[:, 2]), axis=1
-    )
+    vc = np.stack((dot2(v, ex), dot2(v, normal)), axis=1)
+    wc = np.stack((dot2(w[:, :2], ex), dot2(w[:, :2], normal), w[:, 2]), axis=1)
     vo, wo = cushion_impact(m, vc, wc)
     v2 = ex * vo[:, :1] + normal * vo[:, 1:2]
     w2 = np.empty_like(w)

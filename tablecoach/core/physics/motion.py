@@ -35,6 +35,11 @@ EPS_W = 1e-7
 """Spins (rad/s) below this count as zero."""
 
 
+def dot2(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """Row-wise dot product of two (n, 2) arrays (cheaper than np.sum for small batches)."""
+    return a[:, 0] * b[:, 0] + a[:, 1] * b[:, 1]
+
+
 def slip(m: BallModel, v: np.ndarray, w: np.ndarray) -> np.ndarray:
     """Velocity of the cloth contact point, u = v + w x (-R z) = (vx - R wy, vy + R wx)."""
     return np.stack((v[:, 0] - m.radius * w[:, 1], v[:, 1] + m.radius * w[:, 0]), axis=1)

@@ -22,7 +22,7 @@ import numpy as np
 
 from ..table import POCKETS, RAILS, TableSpec
 from .cushion import rail_impact
-from .motion import ROLLING, SPINNING, evolve, prepare, settle
+from .motion import ROLLING, SPINNING, dot2, evolve, prepare, settle
 from .params import BallModel
 from .roots import first_quadratic_root, first_quartic_root
 
@@ -87,17 +87,20 @@ def _pocket_arrays(table: TableSpec) -> tuple[np.ndarray, np.ndarray, np.ndarray
     return ja, jb, aim, member
 
 
-def _on_cushion(table: TableSpec, rail: np.ndarray, along: np.ndarray) -> np.ndarray:
-    out = np.zeros(rail.shape[0], dtype=bool)
+def _segment_table(table: TableSpec) -> tuple[np.ndarray, np.ndarray]:
+    """Cushion stretches of each rail as (4, 2) arrays of starts and ends (nan-padded)."""
+    lo = np.full((4, 2), np.nan)
+    hi = np.full((4, 2), np.nan)
     for code, name in enumerate(RAILS):
-        sel = rail == code
-        if not sel.any():
-            continue
-        ok = np.zeros(int(sel.sum()), dtype=bool)
-        for a, b in table.cushion_segments(name):
-            ok |= (along[sel] >= a) & (along[sel] <= b)
-        out[sel] = ok
-    return out
+        for j, (a, b) in enumerate(table.cushion_segments(name)):
+            lo[code, j], hi[code, j] = a, b
+    return lo, hi
+
+
+def _on_cushion(seg: tuple[np.ndarray, np.ndarray], rail: np.ndarray, along: np.ndarray):
+    lo, hi = seg
+    al = along[:, None]
+    return np.any((al >= lo[rail]) & (al <= hi[rail]), axis=1)
 
 
 def simulate(
@@ -134,6 +137,7 @@ def simulate(
     lo = np.array([R, R])
     hi = np.array([table.length - R, table.width - R])
     ja, jb, paim, member = _pocket_arrays(table)
+    seg_tab = _segment_table(table)
     r = np.array(r0, dtype=float)
     v = np.array(v0, dtype=float)
     w = np.array(w0, dtype=float)
@@ -217,17 +221,8 @@ def simulate(
             if rows.size:
                 p = ri[rows] - bb[rows, cols]
                 vv, aa = vi[rows], a[rows]
-                coef = np.stack(
-                    (
-                        0.25 * np.sum(aa * aa, axis=1),
-                        np.sum(vv * aa, axis=1),
-                        np.sum(vv * vv, axis=1) + np.sum(p * aa, axis=1),
-                        2.0 * np.sum(p * vv, axis=1),
-                        np.sum(p * p, axis=1) - (2.0 * R) ** 2,
-                    ),
-                    axis=1,
-                )
-                tb = first_quartic_root(coef, np.minimum(t_end, t_w)[rows])
+                tmax = np.minimum(t_end, t_w)[rows]
+                tb = _ball_times(p, vv, aa, tmax, 2.0 * R)
                 tbm = np.full((idx.size, k), np.inf)
                 tbm[rows, cols] = tb
                 b_id = np.argmin(tbm, axis=1)
@@ -282,7 +277,7 @@ def simulate(
             hits[rows, slot] = code
             hit_at[rows, slot] = along
             walls[rows] = cnt + 1
-            cush = _on_cushion(table, code, along)
+            cush = _on_cushion(seg_tab, code, along)
             keep = np.ones(rows.size, dtype=bool)
             if lean and nf:  # off the family's order: nothing more to learn from this row
                 off = (cnt < nf) & (code != rail_codes[np.minimum(cnt, nf - 1)])
@@ -370,6 +365,52 @@ def simulate(
     )
 
 
+def _ball_times(
+    p: np.ndarray, v: np.ndarray, a: np.ndarray, t_max: np.ndarray, reach: float
+) -> np.ndarray:
+    """First time the centre r + v t + a t^2/2 comes within ``reach`` of a ball (p = r - c).
+
+    A path whose acceleration is along its velocity is straight: the contact is where the
+    line meets the circle of radius ``reach``, and its time a quadratic root. A curved path
+    (sliding with the slip across the velocity) is the quartic |p + v t + a t^2/2|^2 = reach^2
+    (Leckie and Greenspan 2006), solved in roots.py.
+    """
+    spd = np.sqrt(dot2(v, v))
+    amag = np.sqrt(dot2(a, a))
+    cross = np.abs(v[:, 0] * a[:, 1] - v[:, 1] * a[:, 0])
+    straight = cross <= 1e-12 * np.maximum(spd * amag, 1e-300)
+    out = np.full(p.shape[0], np.inf)
+    if straight.any():
+        ps, vs, as_ = p[straight], v[straight], a[straight]
+        sp = spd[straight]
+        u = vs / np.maximum(sp, 1e-300)[:, None]
+        b = dot2(ps, u)
+        cc = dot2(ps, ps) - reach * reach
+        disc = b * b - cc
+        s_hit = -b - np.sqrt(np.maximum(disc, 0.0))
+        ok = (disc >= 0) & (s_hit >= 0) & (sp > 0)
+        # distance along the line s(t) = |v| t + (a.u) t^2 / 2 reaching s_hit
+        t = first_quadratic_root(
+            -0.5 * dot2(as_, u), -sp, np.where(ok, s_hit, -1.0), t_max[straight]
+        )
+        out[straight] = np.where(ok, t, np.inf)
+    curved = ~straight
+    if curved.any():
+        pc, vc, ac = p[curved], v[curved], a[curved]
+        coef = np.stack(
+            (
+                0.25 * dot2(ac, ac),
+                dot2(vc, ac),
+                dot2(vc, vc) + dot2(pc, ac),
+                2.0 * dot2(pc, vc),
+                dot2(pc, pc) - reach * reach,
+            ),
+            axis=1,
+        )
+        out[curved] = first_quartic_root(coef, t_max[curved])
+    return out
+
+
 def _closest(
     r: np.ndarray,
     v: np.ndarray,
@@ -391,13 +432,13 @@ def _closest(
     """
     p = r[sel] - c[sel]
     vv, aa, T = v[sel], a[sel], dt[sel]
-    v2 = np.sum(vv * vv, axis=1)
-    t = np.clip(-np.sum(p * vv, axis=1) / np.maximum(v2, 1e-300), 0.0, T)
-    for _ in range(4):
+    v2 = dot2(vv, vv)
+    t = np.clip(-dot2(p, vv) / np.maximum(v2, 1e-300), 0.0, T)
+    for _ in range(3):
         q = p + vv * t[:, None] + 0.5 * aa * (t * t)[:, None]
         u = vv + aa * t[:, None]
-        g = np.sum(q * u, axis=1)
-        dg = np.sum(u * u, axis=1) + np.sum(q * aa, axis=1)
+        g = dot2(q, u)
+        dg = dot2(u, u) + dot2(q, aa)
         t = np.clip(t - g / np.where(np.abs(dg) > 1e-300, dg, 1.0), 0.0, T)
     q = p + vv * t[:, None] + 0.5 * aa * (t * t)[:, None]
     u = vv + aa * t[:, None]
@@ -408,7 +449,7 @@ def _closest(
     side = np.where((us > 1e-12) & (side != 0), side, 1.0)
     # a stretch that ends on a wall with the point still ahead (a pocket mouth beyond the
     # box): measure on the line of travel carried on past the wall
-    ahead = to_wall[sel] & (t >= T * (1.0 - 1e-12)) & (np.sum(-q * u, axis=1) > 0)
+    ahead = to_wall[sel] & (t >= T * (1.0 - 1e-12)) & (dot2(-q, u) > 0)
     dist = np.where(ahead, np.abs(cross) / np.maximum(us, 1e-300), dist)
     rows = idx[sel]
     better = dist < best[rows]

@@ -1,0 +1,232 @@
+"""Speed and accuracy figures of the physical model (prints figures; asserts nothing).
+
+Run from the repository root:  /work/venv/bin/python benchmarks/bench_physics.py [--quick]
+
+1. median physical aim solve, one rail and three rails (goals: 10 ms and 30 ms);
+2. a convergence point from nine start positions (goal: 150 ms);
+3. the fixed-step reference integrator beside the event simulation on the same strokes:
+   largest landing difference (goal: within 1 mm) and the speed ratio (goal: 20 times);
+4. the default 9-ft model's three-rail arrivals against a corner-five style diamond system;
+5. the centre-speed ratio of a perpendicular rolling hit for both cushion models.
+Times are wall clock and process CPU; the machine is shared, so both are shown.
+"""
+
+from __future__ import annotations
+
+import argparse
+import math
+import statistics
+import time
+from dataclasses import replace
+
+import numpy as np
+
+from tablecoach.core import shots
+from tablecoach.core.physics import aim
+from tablecoach.core.physics.cushion import cushion_impact
+from tablecoach.core.physics.params import model_of
+from tablecoach.core.physics.reference import integrate
+from tablecoach.core.physics.simulate import simulate
+from tablecoach.core.physics.stick import stick_hit
+from tablecoach.core.table import builtin_table
+
+T = builtin_table("9ft")
+
+
+def _setup(family: str, cue, obj=None, tb=None) -> shots.Setup:
+    return shots.make_setup(
+        T,
+        shots.preset(family),
+        T.to_metres(*cue),
+        T.to_metres(*obj) if obj else None,
+        None,
+        T.to_metres(*tb) if tb else None,
+    )
+
+
+def _timed(fn, reps: int) -> tuple[float, float, float]:
+    wall, cpu = [], []
+    for _ in range(reps):
+        w0, c0 = time.perf_counter(), time.process_time()
+        fn()
+        wall.append(time.perf_counter() - w0)
+        cpu.append(time.process_time() - c0)
+    return statistics.median(wall), statistics.median(cpu), min(wall)
+
+
+def bench_solve(reps: int) -> None:
+    print("1. physical aim solve (impulse cushion model), median over setups and repeats")
+    groups = {
+        "one rail": [
+            (_setup("one-rail-kick", (2, 1), None, (5, 1.5)), 2.55),
+            (_setup("one-rail-kick", (1.5, 2), None, (5.5, 1)), 1.4),
+            (_setup("cross-side-bank", (2, 1.5), (3, 2.5)), 2.55),
+        ],
+        "three rails": [
+            (_setup("three-rail-kick", (3, 3), None, (3, 1)), 2.55),
+            (_setup("three-rail-kick", (2, 3), None, (2.5, 1.5)), 2.55),
+            (_setup("three-rail-kick", (3, 3), None, (3, 1)), 3.85),
+        ],
+    }
+    goals = {"one rail": 10.0, "three rails": 30.0}
+    for name, cases in groups.items():
+        walls, cpus, mins = [], [], []
+        for s, sp in cases:
+            st = shots.Stroke(sp)
+            aim.solve_physical(T, s, st)  # warm
+            w, c, mn = _timed(lambda s=s, st=st: aim.solve_physical(T, s, st), reps)
+            walls.append(w)
+            cpus.append(c)
+            mins.append(mn)
+        print(
+            f"   {name:12s} median {statistics.median(walls) * 1e3:6.1f} ms wall, "
+            f"{statistics.median(cpus) * 1e3:6.1f} ms cpu, best {min(mins) * 1e3:6.1f} ms "
+            f"(goal {goals[name]:.0f} ms)"
+        )
+
+
+def bench_convergence(reps: int) -> None:
+    s = _setup("one-rail-kick", (2, 1), None, (5, 1.5))
+    starts = shots.neighbourhood(T, s.start, 0.4, 3)
+    st = shots.Stroke(2.55)
+    conv = aim.convergence_physical(T, s, starts, st)
+    w, c, mn = _timed(lambda: aim.convergence_physical(T, s, starts, st), reps)
+    cx, cy = T.to_diamonds(*conv.point)
+    print(
+        f"2. convergence from {len(starts)} starts ({len(conv.starts)} kept): "
+        f"{w * 1e3:.1f} ms wall, {c * 1e3:.1f} ms cpu, best {mn * 1e3:.1f} ms (goal 150 ms); "
+        f"point {cx:.2f},{cy:.2f} diamonds, spread {conv.spread * 1e3:.1f} mm"
+    )
+
+
+def bench_reference(n: int, dt: float) -> None:
+    m = model_of(T)
+    rng = np.random.default_rng(1)
+    r0 = np.stack((rng.uniform(0.3, 1.0, n), rng.uniform(0.3, 0.9, n)), axis=1)
+    ang = rng.uniform(0.5, 1.2, n)
+    d = np.stack((np.cos(ang), np.sin(ang)), axis=1)
+    v, w = stick_hit(
+        m, d, rng.uniform(1.5, 4.0, n), rng.uniform(-0.5, 0.5, n), rng.uniform(-0.5, 0.5, n)
+    )
+    args = (np.full((n, 1, 2), np.nan), np.zeros((n, 1), dtype=np.int64))
+    tail = (np.zeros((n, 2)), np.full(n, -1))
+
+    def event():
+        return simulate(m, T, ("right", "foot"), r0, v, w, *args, *tail)
+
+    event()
+    we, _, _ = _timed(event, 5)
+    res = event()
+    w0 = time.perf_counter()
+    rail, along = integrate(m, T, r0, v, w, 3, dt, t_max=8.0)
+    wr = time.perf_counter() - w0
+    ok = (rail >= 0) & (res.pocket < 0) & (res.landing_rail >= 0)
+    same = ok & (rail == res.landing_rail)
+    diff = np.abs(along[same] - res.landing_at[same])
+    print(
+        f"3. reference integrator (fixed step {dt * 1e3:g} ms) vs event simulation, {n} strokes, "
+        f"landing after two rails:"
+    )
+    print(
+        f"   {same.sum()} of {ok.sum()} comparable landings on the same rail; largest difference "
+        f"{diff.max() * 1e3:.3f} mm (goal 1 mm); event {we * 1e3:.1f} ms, reference "
+        f"{wr * 1e3:.0f} ms: event simulation {wr / we:.0f} times faster (goal 20)"
+    )
+
+
+def bench_system() -> None:
+    """Corner-five style three-rail system (Alciatore TP 7.2; Jewett, "Diamonds Redux",
+    Billiards Digest 2010): cue-ball number = first-rail number + third-rail number.
+
+    Numbering FROM MEMORY, uniform between diamonds: the path is right rail, foot rail, left
+    rail. First-rail numbers run along the right rail from the foot-right corner (0) toward the
+    head, one per diamond (number = 8 - x); third-rail numbers along the left rail from the
+    foot-left corner (0) toward the head (number = 8 - x); cue-ball numbers are where the
+    stroke line, run back, meets the left rail: 5 at the head-left corner, one less per diamond
+    toward the foot (number = 5 - x). The system assumes running english and a firm stroke:
+    here half a tip of running (left) english at 2.55 m/s.
+    """
+    m = model_of(T)
+    d_ = T.diamond
+    rows = []
+    for cue_no in (5.0, 4.5, 4.0, 3.5, 3.0):
+        for first_no in (1.0, 1.5, 2.0, 2.5):
+            third_sys = cue_no - first_no
+            if third_sys < 0:
+                continue
+            origin = np.array([(5.0 - cue_no) * d_, 0.0])
+            aim_pt = np.array([(8.0 - first_no) * d_, T.width])
+            u = (aim_pt - origin) / np.linalg.norm(aim_pt - origin)
+            start = origin + u * (0.6 * d_ / max(u[1], 1e-9))  # 0.6 diamond off the rail
+            rows.append((cue_no, first_no, third_sys, start, u))
+    n = len(rows)
+    r0 = np.array([r[3] for r in rows])
+    dirs = np.array([r[4] for r in rows])
+    v, w = stick_hit(m, dirs, 2.55, -0.5, 0.0)
+    res = simulate(
+        m,
+        T,
+        ("right", "foot", "left"),
+        r0,
+        v,
+        w,
+        np.full((n, 1, 2), np.nan),
+        np.zeros((n, 1), dtype=np.int64),
+        np.zeros((n, 2)),
+        np.full(n, -1),
+    )
+    print("4. three-rail arrivals of the default 9-ft model vs a corner-five style system")
+    print("   (numbering from memory; positive = model arrives nearer the head, diamonds)")
+    errs = []
+    for i, (cue_no, first_no, third_sys, _, _) in enumerate(rows):
+        ok = list(res.hits[i, :3]) == [3, 1, 2]
+        if not ok:
+            print(f"   cue {cue_no:3.1f} first {first_no:3.1f}: path is not right-foot-left")
+            continue
+        third_model = 8.0 - res.hit_at[i, 2] / d_
+        errs.append(third_model - third_sys)
+        print(
+            f"   cue {cue_no:3.1f} first {first_no:3.1f}: system third {third_sys:3.1f}, "
+            f"model {third_model:4.2f}, difference {third_sys - third_model:+5.2f}"
+        )
+    if errs:
+        e = np.array(errs)
+        print(f"   mean difference {-e.mean():+.2f}, RMS {math.sqrt(np.mean(e**2)):.2f} diamonds")
+
+
+def bench_cushion() -> None:
+    base = model_of(T)
+    print("5. centre-speed ratio of a perpendicular rolling hit at 1 m/s (Alciatore typical 0.75)")
+    for name in ("mathavan", "impulse"):
+        m = base.with_cushion(name)  # type: ignore[arg-type]
+
+        def ratio(e: float, m=m) -> float:
+            mm = replace(m, e_cushion=e)
+            v = np.array([[0.0, 1.0]])
+            w = np.array([[-1.0 / mm.radius, 0.0, 0.0]])
+            return float(-cushion_impact(mm, v, w)[0][0, 1])
+
+        lo, hi = 0.5, 1.0
+        for _ in range(30):
+            mid = 0.5 * (lo + hi)
+            lo, hi = (mid, hi) if ratio(mid) < 0.75 else (lo, mid)
+        print(
+            f"   {name:9s}: restitution {base.e_cushion:.2f} gives {ratio(base.e_cushion):.3f}; "
+            f"0.75 needs restitution {0.5 * (lo + hi):.3f}"
+        )
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--quick", action="store_true", help="fewer repeats, coarser reference")
+    args = ap.parse_args()
+    reps = 5 if args.quick else 15
+    bench_solve(reps)
+    bench_convergence(reps)
+    bench_reference(8 if args.quick else 16, 1e-4)
+    bench_system()
+    bench_cushion()
+
+
+if __name__ == "__main__":
+    main()
