@@ -24,7 +24,7 @@ import numpy as np
 from .. import shots
 from ..geometry import Point, axis_of, nearest_point_to_lines, unfold
 from ..shots import Aim, Convergence, RailPoint, Setup, ShotError, Stroke, Trace
-from ..table import POCKETS, RAILS, TableSpec
+from ..table import POCKETS, RAILS, RailName, TableSpec
 from .collide import strike
 from .motion import SPINNING, dot2, evolve, prepare, settle
 from .params import BallModel, CushionModel, model_of
@@ -50,7 +50,7 @@ class _Problems:
     """Per-setup arrays of a batch (index p)."""
 
     setups: tuple[Setup, ...]
-    rail: str
+    rail: RailName
     start: np.ndarray  # (P, 2)
     cue: np.ndarray  # (P, 2)
     target: np.ndarray  # (P, 2)
@@ -303,7 +303,7 @@ def _solve(
 ) -> list[_Solved]:
     """Solve every problem of a batch: the root reading and, if asked, the scoring window."""
     P = pr.start.shape[0]
-    unit = table.rail_unit(pr.rail)  # type: ignore[arg-type]
+    unit = table.rail_unit(pr.rail)
     offs = np.linspace(-HALF_WINDOW, HALF_WINDOW, GRID) * unit
     grid = pr.centre[:, None] + offs[None, :]
     pi = np.repeat(np.arange(P), GRID)
@@ -402,8 +402,9 @@ def _solve(
         s_root = _interp3(*fp)
         lo = hi = None
         if margins:
-            lo = s_root - cap if edges[p][0] is None else edges[p][0][1]
-            hi = s_root + cap if edges[p][1] is None else edges[p][1][1]
+            e_lo, e_hi = edges[p]
+            lo = s_root - cap if e_lo is None else e_lo[1]
+            hi = s_root + cap if e_hi is None else e_hi[1]
         out.append(_Solved(s_root, lo, hi, "", grid[p], sc[p]))
     return out
 
@@ -466,7 +467,7 @@ def _extend(table: TableSpec, p: np.ndarray, d: np.ndarray) -> RailPoint | None:
             best, rail, along = t, name, p[1 - ax] + t * d[1 - ax]
     if rail is None:
         return None
-    return RailPoint(rail, float(along))  # type: ignore[arg-type]
+    return RailPoint(rail, float(along))
 
 
 def _trace_of(
@@ -490,7 +491,7 @@ def _trace_of(
     else:
         nh = len(hits)
     rails_hit = tuple(hits[:nh])
-    contacts = tuple(RailPoint(r, a) for r, a in zip(rails_hit, ats[:nh], strict=True))  # type: ignore[arg-type]
+    contacts = tuple(RailPoint(r, a) for r, a in zip(rails_hit, ats[:nh], strict=True))
     scores = bool(res.scores[row])
     rails_t = _rails_text(rails_hit)
     if res.ball[row] >= 0:
@@ -517,7 +518,7 @@ def _trace_of(
         outcome = f"touches {rails_t} and misses the target"
     landing = None
     if res.landing_rail[row] >= 0:
-        landing = RailPoint(RAILS[int(res.landing_rail[row])], float(res.landing_at[row]))  # type: ignore[arg-type]
+        landing = RailPoint(RAILS[int(res.landing_rail[row])], float(res.landing_at[row]))
     elif res.walls[row] >= nf and res.pocket[row] < 0:
         # it came to rest after the family's rails: carry its last line of travel on to a
         # wall (from where it met a ball, else from where it stopped), as a player reads it
@@ -685,8 +686,8 @@ def convergence_physical(
     if len(keep) < 2:
         raise ShotError("too few start positions with a clean path to find a convergence point")
     pi = np.array(keep, dtype=np.int64)
-    s = np.array([sols[p].reading for p in keep], dtype=float)
-    res, ln = _run(m, table, pr, pi, s, stroke)
+    sv = np.array([sols[p].reading for p in keep], dtype=float)
+    res, ln = _run(m, table, pr, pi, sv, stroke)
     good = res.scores & ln.ok
     if good.sum() < 2:
         raise ShotError("too few start positions with a clean path to find a convergence point")

@@ -47,7 +47,11 @@ from .params import BallModel
 
 
 def _rates(
-    m: BallModel, st: np.ndarray, mu_w: np.ndarray | float, mu_s: np.ndarray | float, frozen=None
+    m: BallModel,
+    st: np.ndarray,
+    mu_w: np.ndarray | float,
+    mu_s: np.ndarray | float,
+    frozen: tuple[np.ndarray, np.ndarray] | None = None,
 ) -> np.ndarray:
     """dX/dP (n, 5) for states X = (vx, vy, wx, wy, wz) in the cushion frame."""
     R = m.radius
@@ -61,8 +65,8 @@ def _rates(
         phi = np.arctan2(sy, sx)
         phit = np.arctan2(cy, cx)
         # no slip at a contact: no friction there (Coulomb friction at rest is not modelled)
-        mw = np.where(np.hypot(sx, sy) > 1e-12, mu_w, 0.0)
-        ms = np.where(np.hypot(cx, cy) > 1e-12, mu_s, 0.0)
+        mw: np.ndarray | float = np.where(np.hypot(sx, sy) > 1e-12, mu_w, 0.0)
+        ms: np.ndarray | float = np.where(np.hypot(cx, cy) > 1e-12, mu_s, 0.0)
     else:
         phi, phit = frozen
         mw, ms = mu_w, mu_s

@@ -97,7 +97,9 @@ def _segment_table(table: TableSpec) -> tuple[np.ndarray, np.ndarray]:
     return lo, hi
 
 
-def _on_cushion(seg: tuple[np.ndarray, np.ndarray], rail: np.ndarray, along: np.ndarray):
+def _on_cushion(
+    seg: tuple[np.ndarray, np.ndarray], rail: np.ndarray, along: np.ndarray
+) -> np.ndarray:
     lo, hi = seg
     al = along[:, None]
     return np.any((al >= lo[rail]) & (al <= hi[rail]), axis=1)

@@ -38,7 +38,7 @@ class StrokeError(ValueError):
     """The stroke cannot be played as given (for example, too far off centre)."""
 
 
-def tip_offset(radius: float, tips: float) -> float:
+def tip_offset(radius: float, tips: np.ndarray | float) -> np.ndarray | float:
     """Tips of english or follow to metres of offset from the ball's centre (1 tip = R/2)."""
     return tips * TIP_FRACTION * radius
 
