@@ -195,3 +195,15 @@ def test_physical_convergence_has_a_spread_and_uses_the_shots_hook() -> None:
     conv = shots.convergence(t, s, starts, shots.Stroke(2.55), "physical")
     assert conv.model == "physical" and len(conv.starts) >= 5
     assert 0.0 < conv.spread < 0.05
+
+
+def test_rotating_through_the_convergence_point_beats_a_parallel_shift() -> None:
+    # DESIGN.md (common practice, no source): shifting a trusted aim line parallel to a new
+    # position is a common error; the line through the convergence point lands nearer.
+    t = builtin_table("9ft")
+    f = shots.preset("one-rail-kick")
+    ref = shots.make_setup(t, f, t.to_metres(2, 1), None, None, t.to_metres(5, 1.5))
+    new = shots.make_setup(t, f, t.to_metres(2.3, 1.2), None, None, t.to_metres(5, 1.5))
+    c = shots.compare_shift(t, ref, new, shots.Stroke(2.55), "physical")
+    assert c.parallel_miss is not None and c.rotated_miss is not None
+    assert abs(c.rotated_miss) < abs(c.parallel_miss)
