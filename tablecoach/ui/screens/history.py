@@ -29,6 +29,15 @@ DATE_RANGES: tuple[tuple[str, int | None], ...] = (
 """Date filters the d key steps through: a label and how many local days back (today counts)."""
 
 
+class SessionsListed(Message):
+    """The store's session list arrived (a fast first look, before the full history)."""
+
+    def __init__(self, token: int, sessions: list[Any]) -> None:
+        super().__init__()
+        self.token = token
+        self.sessions = sessions
+
+
 class HistoryLoaded(Message):
     """The history worker finished (``result`` set) or failed (``error`` set)."""
 
@@ -105,6 +114,7 @@ class HistoryScreen(Screen[None]):
         self.date_index = 0
         self.token = 0
         self.loaded: Loaded | None = None
+        self.loaded_token = 0
         self.players: tuple[str, ...] = (player,) if player else ()
         self.tables: tuple[str, ...] = ()
         self.families: tuple[str, ...] = ()
@@ -154,6 +164,9 @@ class HistoryScreen(Screen[None]):
     @work(thread=True, exclusive=True, group="history", exit_on_error=False)
     def _load(self, token: int, f: Filters) -> None:
         try:
+            if f.family is None and f.since is None and f.session is None:
+                # the store counts sessions in SQL: show them while the full history is built
+                self.post_message(SessionsListed(token, self.store.sessions(f.player, f.table)))
             items = query(self.store, f, self.tz)
             h = history.summarize(
                 items, tz=self.tz, today=self.local_today(), table_of=table_resolver(self.store)
@@ -165,6 +178,23 @@ class HistoryScreen(Screen[None]):
             return
         self.post_message(HistoryLoaded(token, result))
 
+    def on_sessions_listed(self, message: SessionsListed) -> None:
+        if message.token != self.token or self.loaded_token == message.token:
+            return
+        table = self.query_one("#history-sessions", DataTable)
+        table.clear()
+        self.session_rows = []
+        for s in reversed(message.sessions):  # start times follow with the attempts
+            rate = f"{100 * s.hits / s.attempts:.0f}%" if s.attempts else "-"
+            table.add_row(
+                str(s.id), "...", s.player, s.table,
+                f"{s.hits}/{s.attempts}", rate, "", s.drill,
+            )  # fmt: skip
+            self.session_rows.append(s.id)
+        self.query_one("#history-status", Static).update(
+            Text(f"{len(message.sessions)} sessions; working out streaks and rates...")
+        )
+
     def on_history_loaded(self, message: HistoryLoaded) -> None:
         if message.token != self.token:
             return  # a newer filter is already loading
@@ -174,6 +204,7 @@ class HistoryScreen(Screen[None]):
             return
         res: Loaded = message.result
         self.loaded = res
+        self.loaded_token = message.token
         self.players = res.players
         if self.filters.table is None:
             self.tables = res.tables
