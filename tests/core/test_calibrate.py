@@ -187,3 +187,137 @@ def test_prior_sd_reads_the_published_ranges() -> None:
     # medium band 0.89-1.9 m/s (Alciatore, typical shot speeds)
     assert calibrate.speed_prior_sd("medium") == pytest.approx(math.log(1.9 / 0.89) / 4)
     assert np.isfinite(calibrate.speed_prior_sd("power"))
+
+
+# ----- the fit against known tables -----------------------------------------------------------
+
+TRUE = {
+    "cloth.mu_slide": 0.25,
+    "cloth.mu_roll": 0.012,
+    "cushion.restitution": 0.92,
+    "cushion.friction": 0.20,
+}
+TRUE_SPEED = {"slow": 0.80, "medium": 1.65, "fast": 2.80}
+
+
+def _synthetic(seed: int, per_pack: int = 25) -> list[Attempt]:
+    """Noiseless landings of built-in drill shots on a table with known (invented) parameters,
+    struck by a player whose presets are TRUE_SPEED, logged with the book's speeds."""
+    from tablecoach.core import drills
+
+    truth = calibrate.with_params(T9, TRUE)
+    rng = np.random.default_rng(seed)
+    book = {v: k for k, v in shots.SPEED_PRESETS.items()}
+    out = []
+    packs = drills.builtin_drills()
+    for name in ("one-rail-kicks", "cross-corner-banks", "three-rail-kicks"):
+        n = 0
+        while n < per_pack:
+            d = drills.sample_setups(T9, packs[name], rng, 1)[0]
+            preset = book[d.stroke.speed]
+            tr = shots.predict(
+                truth, d.setup, d.aim.reading, shots.Stroke(TRUE_SPEED[preset]), "physical"
+            )
+            if tr.landing is None:
+                continue
+            out.append(_logged(T9, d.setup, d.aim.reading, preset, tr.landing))
+            n += 1
+    return out
+
+
+@pytest.fixture(scope="module")
+def synthetic() -> list[Attempt]:
+    return _synthetic(7)
+
+
+def test_fit_recovers_known_parameters_from_noiseless_landings(synthetic) -> None:  # type: ignore[no-untyped-def]
+    cal = calibrate.fit(T9, synthetic)
+    assert cal.used == len(synthetic) == 75
+    # The parameters the landings pin down come back close to the truth ...
+    assert cal.value("cushion.restitution") == pytest.approx(0.92, abs=0.01)
+    assert cal.value("cushion.friction") == pytest.approx(0.20, abs=0.01)
+    assert cal.value("cloth.mu_slide") == pytest.approx(0.25, abs=0.03)
+    assert cal.speed("fast") == pytest.approx(2.80, rel=0.03)
+    # ... and every true value lies within 3 reported sd (the uncertainties are honest).
+    for e in cal.params:
+        assert abs(e.value - TRUE[e.name]) <= 3 * e.sd, e
+    for e in cal.speeds:
+        assert abs(e.value - TRUE_SPEED[e.name]) <= 3 * e.sd, e
+    assert cal.rms_after < 0.1 < cal.rms_before
+    # the calibrated table lands the logged shots where the true table did
+    t = cal.apply(T9)
+    errs = [calibrate.landing_error(t, a, "physical", cal.actual_speed(a.speed)) for a in synthetic]
+    assert np.median(np.abs([e for e in errs if e is not None])) < 0.05
+
+
+def test_fit_holds_with_ten_percent_mislogged(synthetic) -> None:  # type: ignore[no-untyped-def]
+    rng = np.random.default_rng(3)
+    bad = rng.choice(len(synthetic), size=len(synthetic) // 10, replace=False)
+    atts = list(synthetic)
+    for i in bad:
+        a = atts[i]
+        # a slip of the key: the landing logged two to three diamonds off on the same rail
+        top = 8.0 if a.landing_rail in ("left", "right") else 4.0
+        off = rng.uniform(2.0, 3.0) * (1 if a.landing_at < top / 2 else -1)
+        atts[i] = replace(a, landing_at=min(max(a.landing_at + off, 0.0), top))
+    cal = calibrate.fit(T9, atts)
+    assert cal.outliers >= len(bad) - 1
+    assert cal.value("cushion.restitution") == pytest.approx(0.92, abs=0.02)
+    assert cal.value("cushion.friction") == pytest.approx(0.20, abs=0.02)
+    assert cal.speed("fast") == pytest.approx(2.80, rel=0.05)
+    # a plain least-squares fit would be dragged: check the robust one is not
+    assert cal.rms_after_inliers < 0.15
+
+
+def test_fit_on_a_linear_toy_model_is_exact() -> None:
+    # A forward model linear in the parameters: the MAP optimum of noiseless data is the
+    # truth up to the prior's pull, and scipy.optimize.least_squares (an independent reference
+    # solver, loss="linear") on the same stacked residuals agrees.
+    from scipy.optimize import least_squares
+
+    s, aim = _kick()
+    base = shots.predict(T9, s, aim.reading, None, "ideal").landing
+    assert base is not None
+
+    def toy(t, setup, reading, stroke):  # type: ignore[no-untyped-def]
+        tr = shots.predict(t, setup, reading, stroke, "ideal")
+        shift = (
+            2.0 * (t.cushion.restitution - 0.85)
+            + 1.5 * (t.cushion.friction - 0.14) * stroke.speed
+            + (reading - aim.reading) * 0.0
+        ) * T9.diamond
+        return replace(tr, landing=replace(tr.landing, at=tr.landing.at + shift))
+
+    rng = np.random.default_rng(4)
+    truth = calibrate.with_params(T9, {"cushion.restitution": 0.9, "cushion.friction": 0.2})
+    atts = []
+    for _ in range(30):
+        preset = ["slow", "medium", "fast"][int(rng.integers(3))]
+        st = shots.Stroke(shots.SPEED_PRESETS[preset])
+        tr = toy(truth, s, aim.reading, st)
+        atts.append(_logged(T9, s, aim.reading, preset, tr.landing))
+    cal = calibrate.fit(T9, atts, predictor=toy)
+    assert cal.value("cushion.restitution") == pytest.approx(0.9, abs=0.01)
+    assert cal.value("cushion.friction") == pytest.approx(0.2, abs=0.01)
+    assert cal.rms_after < 0.02
+
+    def stacked(th):  # type: ignore[no-untyped-def]
+        t = calibrate.with_params(T9, {"cushion.restitution": th[0], "cushion.friction": th[1]})
+        r = [
+            shots.landing_distance(
+                T9,
+                calibrate.observed_landing(T9, a),
+                toy(t, s, aim.reading, shots.Stroke(a.speed)).landing,
+            )
+            / calibrate.NOISE_FLOOR
+            for a in atts
+        ]
+        prior = [
+            (th[0] - 0.85) / calibrate.PRIOR_SD["cushion.restitution"],
+            (th[1] - 0.14) / calibrate.PRIOR_SD["cushion.friction"],
+        ]
+        return np.array(r + prior)
+
+    ref = least_squares(stacked, [0.85, 0.14], x_scale=[0.075, 0.1])
+    assert cal.value("cushion.restitution") == pytest.approx(ref.x[0], abs=0.01)
+    assert cal.value("cushion.friction") == pytest.approx(ref.x[1], abs=0.01)
