@@ -209,7 +209,7 @@ def _run(
     s: np.ndarray,
     stroke: Stroke,
     record: bool = False,
-    lean: bool = False,
+    lean: bool | np.ndarray = False,
 ) -> tuple[SimResult, _Launch]:
     ln = _launch(m, table, pr, pi, s, stroke)
     v0 = np.where(ln.ok[:, None], ln.v0, 0.0)
@@ -242,6 +242,9 @@ class _Solved:
     reason: str
     grid: np.ndarray | None = None
     scores: np.ndarray | None = None
+    res: SimResult | None = None  # the refining pass, recorded (single solves only)
+    rows: np.ndarray | None = None  # its rows inside the root's bracket
+    svals: np.ndarray | None = None  # and their solver values
 
 
 def _root_pair(s: np.ndarray, mv: np.ndarray, centre: float) -> int | None:
@@ -300,8 +303,13 @@ def _solve(
     pr: _Problems,
     stroke: Stroke,
     margins: bool,
+    final: bool = False,
 ) -> list[_Solved]:
-    """Solve every problem of a batch: the root reading and, if asked, the scoring window."""
+    """Solve every problem of a batch: the root reading and, if asked, the scoring window.
+
+    With ``final`` the root's bracket rows of the refining pass run to their landings and are
+    recorded, so the aim's landing, contacts and path can be read off them (no extra pass).
+    """
     P = pr.start.shape[0]
     unit = table.rail_unit(pr.rail)
     offs = np.linspace(-HALF_WINDOW, HALF_WINDOW, GRID) * unit
@@ -346,6 +354,8 @@ def _solve(
         edges.append(e)
     frac = np.arange(1, REFINE + 1) / (REFINE + 1)
     frac_edge = np.arange(1, REFINE_EDGE + 1) / (REFINE_EDGE + 1)
+    last_res: SimResult | None = None
+    bracket_rows: dict[int, tuple[np.ndarray, np.ndarray]] = {}
     for _ in range(PASSES):
         vals: list[np.ndarray] = []
         tags: list[tuple[int, int]] = []  # (problem, 0 root / 1 lower / 2 upper)
@@ -367,10 +377,16 @@ def _solve(
         pi = np.concatenate(
             [np.full(v.size, t[0], dtype=np.int64) for v, t in zip(vals, tags, strict=True)]
         )
-        res, _ = _run(m, table, pr, pi, s_all, stroke, lean=True)
+        lean = np.concatenate(
+            [np.full(v.size, not (final and t[1] == 0)) for v, t in zip(vals, tags, strict=True)]
+        )
+        res, _ = _run(m, table, pr, pi, s_all, stroke, record=final, lean=lean)
+        last_res = res
         at = 0
         for row, (p, side) in enumerate(tags):
             k = vals[row].size
+            if side == 0:
+                bracket_rows[p] = (np.arange(at, at + k), vals[row])
             mvr, scr = res.miss[at : at + k], res.scores[at : at + k]
             at += k
             if side == 0:
@@ -405,7 +421,20 @@ def _solve(
             e_lo, e_hi = edges[p]
             lo = s_root - cap if e_lo is None else e_lo[1]
             hi = s_root + cap if e_hi is None else e_hi[1]
-        out.append(_Solved(s_root, lo, hi, "", grid[p], sc[p]))
+        br = bracket_rows.get(p)
+        out.append(
+            _Solved(
+                s_root,
+                lo,
+                hi,
+                "",
+                grid[p],
+                sc[p],
+                last_res if final else None,
+                br[0] if br else None,
+                br[1] if br else None,
+            )
+        )
     return out
 
 
@@ -471,12 +500,18 @@ def _extend(table: TableSpec, p: np.ndarray, d: np.ndarray) -> RailPoint | None:
 
 
 def _trace_of(
-    m: BallModel, table: TableSpec, pr: _Problems, res: SimResult, ln: _Launch, row: int = 0
+    m: BallModel,
+    table: TableSpec,
+    pr: _Problems,
+    res: SimResult,
+    ln: _Launch | None,
+    row: int = 0,
 ) -> tuple[Trace, str]:
+    """The Trace of one simulated row (``ln`` None: the launch is known to be good)."""
     setup = pr.setups[0]
     fam = setup.family
     nf = len(fam.rails)
-    if not ln.ok[row]:
+    if ln is not None and not ln.ok[row]:
         why = "the cue ball cannot send the object ball along this line"
         if ln.cut[row] < math.radians(89.0):
             why = "the cue ball stops before it reaches the object ball"
@@ -527,6 +562,55 @@ def _trace_of(
             landing = _extend(table, endp, res.last_dir[row])
     path = tuple(sample_path(m, res, row)) if res.segments else ()
     return Trace(path, rails_hit, landing, scores, outcome, contacts), outcome
+
+
+def _lagrange(xs: np.ndarray, ys: np.ndarray, x: float) -> float:
+    """The value at x of the polynomial through the points (xs, ys)."""
+    total = 0.0
+    for i in range(xs.size):
+        term = float(ys[i])
+        for j in range(xs.size):
+            if j != i:
+                term *= (x - xs[j]) / (xs[i] - xs[j])
+        total += term
+    return float(total)
+
+
+def _read_off(
+    m: BallModel, table: TableSpec, pr: _Problems, sol: _Solved
+) -> tuple[Trace, RailPoint] | None:
+    """The trace at the root read off the recorded bracket rows of the refining pass.
+
+    The three rows nearest the root must all score with the same rails and landing rail;
+    the contacts and the landing are then the quadratic through them at the root (they are
+    smooth in the reading), the path and outcome those of the nearest row. None when the
+    rows do not agree (the caller then runs the root itself).
+    """
+    res, rows, sv = sol.res, sol.rows, sol.svals
+    if res is None or rows is None or sv is None or sol.reading is None or rows.size < 3:
+        return None
+    near = np.argsort(np.abs(sv - sol.reading))[:3]
+    rr = rows[near]
+    nf = len(pr.setups[0].family.rails)
+    if not bool(np.all(res.scores[rr])):
+        return None
+    if np.any(res.landing_rail[rr] != res.landing_rail[rr[0]]) or res.landing_rail[rr[0]] < 0:
+        return None
+    if np.any(res.hits[rr, :nf] != res.hits[rr[0], :nf]):
+        return None
+    xs = sv[near]
+    best = int(rr[0])
+    tr, _ = _trace_of(m, table, pr, res, None, best)
+    contacts = tuple(
+        RailPoint(c.rail, _lagrange(xs, res.hit_at[rr, k], sol.reading))
+        for k, c in enumerate(tr.contacts[:nf])
+    )
+    landing = RailPoint(
+        RAILS[int(res.landing_rail[best])],
+        _lagrange(xs, res.landing_at[rr], sol.reading),
+    )
+    tr = Trace(tr.path, tr.rails_hit, landing, True, tr.outcome, contacts + tr.contacts[nf:])
+    return tr, landing
 
 
 def _model(table: TableSpec, cushion: CushionModel) -> BallModel:
@@ -591,26 +675,34 @@ def solve_physical(
     _check_stroke(table, stroke)
     m = _model(table, cushion)
     pr = _problems(table, [setup])
-    sol = _solve(m, table, pr, stroke, margins=True)[0]
+    sol = _solve(m, table, pr, stroke, margins=True, final=True)[0]
     rail = pr.rail
     pi1 = np.zeros(1, dtype=np.int64)
     if sol.reading is None:
         res, ln = _run(m, table, pr, pi1, pr.centre[:1], stroke, record=False)
         _, why = _trace_of(m, table, pr, res, ln)
+        hint = "; try a firmer stroke" if "stops" in why else ""
         raise ShotError(
             f"no reading scores at {stroke.speed:.2f} m/s under the physical model: "
-            f"on the mirror line the ball {why}"
+            f"on the mirror line the ball {why}{hint}"
         )
-    res, ln = _run(m, table, pr, pi1, np.array([sol.reading]), stroke, record=True)
-    tr, why = _trace_of(m, table, pr, res, ln)
+    fast = _read_off(m, table, pr, sol)
+    if fast is not None:
+        tr, landing_fast = fast
+        ln = _launch(m, table, pr, pi1, np.array([sol.reading]), stroke)
+    else:
+        res, ln = _run(m, table, pr, pi1, np.array([sol.reading]), stroke, record=True)
+        tr, why = _trace_of(m, table, pr, res, ln)
+        landing_fast = None
     if not tr.scores:
         win = _window(m, table, pr, stroke, sol, sol.reading)
         if win is None:
-            raise ShotError(f"no clean path under the physical model: the best line {why}")
+            raise ShotError(f"no clean path under the physical model: the best line {tr.outcome}")
         mid = 0.5 * (win[0] + win[1])
         sol = _Solved(mid, win[0], win[1], "window")
         res, ln = _run(m, table, pr, pi1, np.array([mid]), stroke, record=True)
         tr, why = _trace_of(m, table, pr, res, ln)
+        landing_fast = None
         if not tr.scores:
             raise ShotError(f"no clean path under the physical model: the best line {why}")
     reading = float(ln.reading[0])
@@ -621,7 +713,7 @@ def solve_physical(
     minus = min(max(reading - lo_r, 0.0), MARGIN_CAP * unit)
     plus = min(max(hi_r - reading, 0.0), MARGIN_CAP * unit)
     target = setup.target_point(table)
-    landing = tr.landing
+    landing = landing_fast or tr.landing
     if landing is None:
         raise ShotError("no clean path under the physical model: the ball finds no landing")
     path = tr.path if setup.pocket is None else (*tr.path, target)

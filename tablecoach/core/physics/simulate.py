@@ -118,7 +118,7 @@ def simulate(
     target_pocket: np.ndarray,
     record: bool = False,
     max_events: int = 200,
-    lean: bool = False,
+    lean: bool | np.ndarray = False,
 ) -> SimResult:
     """Run every row to its landing, a pocket, or rest.
 
@@ -127,9 +127,9 @@ def simulate(
     (n, k) how many crossings the row must have made before a ball counts (the ideal trace
     ignores the cue ball on a bank until the object has left its first rail);
     ``target_point`` (n, 2) the point whose closest approach is ``miss``; ``target_pocket``
-    (n,) POCKETS index or -1. With ``lean`` (aim solving) a row ends at its first ball or as
-    soon as it leaves the family's rail order: its miss and score are known by then, its
-    landing may be missing.
+    (n,) POCKETS index or -1. With ``lean`` (aim solving; a flag or one per row) a row ends at
+    its first ball or as soon as it leaves the family's rail order: its miss and score are
+    known by then, its landing may be missing.
     """
     n = r0.shape[0]
     nf = len(rails)
@@ -163,6 +163,8 @@ def simulate(
     miss = np.full(n, np.nan)
     at_rest = np.zeros(n, dtype=bool)
     live = np.ones(n, dtype=bool)
+    lean_rows = np.broadcast_to(np.asarray(lean, dtype=bool), (n,))
+    any_lean = bool(lean_rows.any())
     segments: list[Segment] = []
     sgn = np.array([1.0, -1.0, 1.0, -1.0])
     ax4 = np.array([0, 0, 1, 1])
@@ -244,9 +246,10 @@ def simulate(
         # closest approach of the target point while after the family's rails
         after = (walls[idx] == nf) & (pocket[idx] < 0)
         if after.any():
-            if lean:  # the row stops at the ball: measure on through it to its next event
-                tc = np.where(is_ball, np.minimum(t_end, t_w), dt)
-                to_wall = is_wall | (is_ball & (t_w < t_end))
+            if any_lean:  # a lean row stops at the ball: measure on to its next event
+                lb = is_ball & lean_rows[idx]
+                tc = np.where(lb, np.minimum(t_end, t_w), dt)
+                to_wall = is_wall | (lb & (t_w < t_end))
             else:
                 tc, to_wall = dt, is_wall
             to_rest = (ph == ROLLING) & (t_end <= tc) & ~to_wall
@@ -260,8 +263,8 @@ def simulate(
             ball_walls[bi] = walls[bi]
             ball_pos[bi] = r2[is_ball]
             ball_event[bi] = len(segments) - 1 if record else events - 1
-            if lean:
-                live[bi] = False
+            if any_lean:
+                live[bi[lean_rows[bi]]] = False
         # phase ends
         if is_end.any():
             settle(m, v2, w2, is_end, ph)
@@ -281,8 +284,9 @@ def simulate(
             walls[rows] = cnt + 1
             cush = _on_cushion(seg_tab, code, along)
             keep = np.ones(rows.size, dtype=bool)
-            if lean and nf:  # off the family's order: nothing more to learn from this row
+            if any_lean and nf:  # off the family's order: nothing more to learn from the row
                 off = (cnt < nf) & (code != rail_codes[np.minimum(cnt, nf - 1)])
+                off &= lean_rows[rows]
                 live[rows[off]] = False
                 keep = ~off
             land = (cnt + 1 == maxw) & (landing_rail[rows] < 0)
