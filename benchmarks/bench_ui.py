@@ -4,7 +4,7 @@ the updated screen (goal under 50 ms).
 Run: python benchmarks/bench_ui.py [--repeat 5] [--model ideal|physical]. Each start-up runs in
 a fresh Python process (imports included) on a fresh data folder, headless at 100 x 30; "usable"
 means the first setup is on the screen with its aim solved, so h logs a hit. Key presses are
-timed from the press until the screen has drawn the result: h (log a hit and show the setup
+timed from the press until a frame showing the result is written: h (log a hit and show the setup
 dealt ahead), s (next speed: the aim is solved again in a worker), u (undo: the setup comes back
 and its aim is solved again), right in the landing prompt (a quarter diamond). Prints figures;
 asserts nothing, since the machines are shared and noisy.
@@ -63,10 +63,10 @@ def startup(model: str) -> dict[str, float]:
 async def keys(model: str, repeat: int) -> dict[str, list[float]]:
     """Time key presses in one running app (headless, 100 x 30).
 
-    A press is timed from the key being posted to the app until the screen has been redrawn
-    with its result (``call_after_refresh`` fires after the next screen update). The setup
-    dealt ahead and the convergence point are left to finish between presses, as they do
-    while a player walks round the table.
+    A press is timed from the key being posted to the app until a frame showing its result has
+    been written to the terminal driver (App._display). The setup dealt ahead and the
+    convergence point are left to finish between presses, as they do while a player walks
+    round the table.
     """
     sys.path.insert(0, str(ROOT))
     from tablecoach.ui.app import build_app
@@ -77,16 +77,15 @@ async def keys(model: str, repeat: int) -> dict[str, list[float]]:
         os.environ["TABLECOACH_CONFIG_DIR"] = tmp + "/cfg"
         app = build_app(player="bench", seed=2, model=model)
         async with app.run_test(size=(100, 30)) as pilot:
-            screen = app.screen
-            marks: list[float] = []
-            refresh = screen._refresh
+            frames: list[tuple[float, object]] = []
+            display = app._display
+            probe = [lambda: None]
 
-            def traced() -> None:
-                refresh()
-                if screen.aim is not None:
-                    screen.call_after_refresh(lambda: marks.append(time.perf_counter()))
+            def traced(screen, renderable) -> None:  # type: ignore[no-untyped-def]
+                display(screen, renderable)
+                frames.append((time.perf_counter(), probe[0]()))
 
-            screen._refresh = traced  # type: ignore[method-assign]
+            app._display = traced  # type: ignore[method-assign]
 
             async def settle() -> None:
                 for _ in range(3):
@@ -94,37 +93,46 @@ async def keys(model: str, repeat: int) -> dict[str, list[float]]:
                     await app.workers.wait_for_complete()
                 await pilot.pause()
 
-            async def timed(key: str) -> float:
+            async def timed(key: str, shown) -> float:  # type: ignore[no-untyped-def]
+                """Seconds from pressing ``key`` to the first frame for which shown() holds."""
                 await settle()
-                marks.clear()
+                probe[0] = shown
+                frames.clear()
                 t0 = time.perf_counter()
                 await pilot.press(key)
-                while not marks:
+                while not any(ok for _, ok in frames):
                     await asyncio.sleep(0.0005)
-                return marks[0] - t0
+                return next(t for t, ok in frames if ok) - t0
 
             await settle()
+            screen = app.screen
             for _ in range(repeat):
-                times["h"].append(await timed("h"))
-                times["s"].append(await timed("s"))
-                times["u"].append(await timed("u"))
+                before = screen.session.pick
+                times["h"].append(
+                    await timed("h", lambda b=before: screen.session.pick not in (b, None))
+                )
+                speed = screen.session.stroke.speed
+                times["s"].append(
+                    await timed(
+                        "s",
+                        lambda v=speed: screen.aim is not None and screen.aim.stroke.speed != v,
+                    )
+                )
+                shown = screen.session.pick
+                times["u"].append(
+                    await timed(
+                        "u",
+                        lambda p=shown: screen.session.pick is not p and screen.aim is not None,
+                    )
+                )
                 await settle()
                 await pilot.press("m")
                 await pilot.pause()
                 prompt = app.screen
-                shown = prompt._show
-                pmarks: list[float] = []
-
-                def traced_show(prompt=prompt, shown=shown, pmarks=pmarks) -> None:
-                    shown()
-                    prompt.call_after_refresh(lambda: pmarks.append(time.perf_counter()))
-
-                prompt._show = traced_show  # type: ignore[method-assign]
-                t0 = time.perf_counter()
-                await pilot.press("right")
-                while not pmarks:
-                    await asyncio.sleep(0.0005)
-                times["right (landing prompt)"].append(pmarks[0] - t0)
+                at = prompt.at
+                times["right (landing prompt)"].append(
+                    await timed("right", lambda p=prompt, a=at: p.at != a)
+                )
                 await pilot.press("escape")
         app.store.close()
     return times

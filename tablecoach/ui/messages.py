@@ -54,3 +54,7 @@ class ConvergenceFound(Message):
         super().__init__()
         self.token = token
         self.convergence = convergence
+
+
+class DealerRefreshed(Message):
+    """The coach has started again from the attempts still logged (after an undo)."""

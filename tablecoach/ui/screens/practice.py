@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import importlib.util
+from functools import partial
 from typing import Any
 
 from textual import work
@@ -16,12 +17,15 @@ from tablecoach.core import shots
 from tablecoach.core.shots import Aim, Convergence, Stroke
 from tablecoach.core.store import StoreError
 
-from ..messages import AimSolved, ConvergenceFound, SetupDealt
+from ..messages import AimSolved, ConvergenceFound, DealerRefreshed, SetupDealt
 from ..widgets import wording as w
 from ..widgets.info import InfoCard, MessageLine, NotesPanel, SessionBar, card, notes, session_line
 from ..widgets.landing import LandingPrompt
 from ..widgets.session import REDRAWS, Session
 from ..widgets.table_panel import TablePanel, draw, picture_of
+
+SOLVING_SHOWN_AFTER = 0.08
+"""Seconds an aim solve may take before the screen says it is working on it."""
 
 
 def history_available() -> bool:
@@ -75,6 +79,7 @@ class PracticeScreen(Screen[None]):
         self.waiting = False
         self.model_note = ""
         self.drawn: tuple[Any, Any] | None = None
+        self.refresh_dealer = False
 
     # ----- layout ----------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
@@ -113,7 +118,7 @@ class PracticeScreen(Screen[None]):
             notes(s.table, pick, self.aim, self.status, pinned, self.model_note)
         )
         self.query_one(SessionBar).update(
-            session_line(s.stats(), s.earlier_stats(), s.table.name, s.player)
+            session_line(s.stats(), s.earlier_stats(), s.table.name, s.player), layout=False
         )
 
     def _pinned_text(self) -> str:
@@ -134,7 +139,7 @@ class PracticeScreen(Screen[None]):
     def say(self, text: str, error: bool = False) -> None:
         line = self.query_one(MessageLine)
         line.set_class(error, "error")
-        line.update(text)
+        line.update(text, layout=False)
 
     # ----- dealing and solving -----------------------------------------------------------------
     # The next setup is dealt (and its aim solved) in a worker while the player shoots the one
@@ -201,10 +206,15 @@ class PracticeScreen(Screen[None]):
         self.aim = None
         self.conv = None
         self.error = ""
-        self._refresh()
         pick = self.session.pick
         assert pick is not None
         self._solve_worker(self.token, pick.setup, self.session.stroke, self.session.model)
+        # a quick solve is shown in one frame; a slow one shows "working out the aim" meanwhile
+        self.set_timer(SOLVING_SHOWN_AFTER, partial(self._still_solving, self.token))
+
+    def _still_solving(self, token: int) -> None:
+        if token == self.token and self.aim is None:
+            self._refresh()
 
     @work(thread=True, group="ahead", exit_on_error=False)
     def _ahead_worker(self, generation: int, model: str, size: tuple[int, int]) -> None:
@@ -281,6 +291,9 @@ class PracticeScreen(Screen[None]):
     def _after_solved(self, token: int, aim: Aim) -> None:
         if token == self.token:
             self._conv_worker(token, aim.setup, aim.stroke, aim.model)
+        if self.refresh_dealer:
+            self.refresh_dealer = False
+            self._refresh_dealer_worker()
 
     def on_convergence_found(self, message: ConvergenceFound) -> None:
         if message.token != self.token:
@@ -354,7 +367,17 @@ class PracticeScreen(Screen[None]):
             self._deal()
             return
         self.say(f"undone: the {gone.result} at {gone.landing_rail} rail; its setup is back")
+        self.refresh_dealer = True  # once the setup is back on the screen (see _after_solved)
         self._solve()
+
+    @work(thread=True, group="ahead", exit_on_error=False)
+    def _refresh_dealer_worker(self) -> None:
+        self.session.refresh_dealer()
+        self.post_message(DealerRefreshed())
+
+    def on_dealer_refreshed(self, message: DealerRefreshed) -> None:
+        # a setup dealt ahead before the undo counted the undone attempt: deal it again
+        self._forget_ahead()
 
     def action_skip(self) -> None:
         self.say("skipped; here is the next setup")

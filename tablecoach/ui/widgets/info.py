@@ -4,8 +4,7 @@ from __future__ import annotations
 
 import math
 
-from rich.console import Group, RenderableType
-from rich.table import Table as RichTable
+from rich.console import Console, ConsoleOptions, Group, RenderableType, RenderResult
 from rich.text import Text
 from textual.widgets import Static
 
@@ -19,6 +18,27 @@ POWER_CAUTION = (
     "power speed: keep the laptop and onlookers off the rail and out of the balls' way; "
     "follow the room's rules on power shots"
 )
+
+
+class Rows:
+    """Labelled rows with the values wrapped under themselves (a light two-column grid)."""
+
+    def __init__(self) -> None:
+        self.rows: list[tuple[str, Text]] = []
+
+    def add_row(self, label: str, value: str | Text) -> None:
+        self.rows.append((label, value if isinstance(value, Text) else Text(value)))
+
+    def __rich_console__(self, console: Console, options: ConsoleOptions) -> RenderResult:
+        if not self.rows:
+            return
+        lw = max(len(label) for label, _ in self.rows) + 1
+        width = max(options.max_width - lw, 10)
+        for label, value in self.rows:
+            for i, line in enumerate(value.wrap(console, width)):
+                head = Text((label if i == 0 else "").ljust(lw), style="bold")
+                head.append_text(line)
+                yield head
 
 
 def card(
@@ -37,9 +57,7 @@ def card(
     setup = pick.setup
     title = Text(setup.family.title or setup.family.name, style="bold")
     title.append(f": {w.target_text(setup)}", style="")
-    grid = RichTable.grid(padding=(0, 1), expand=True)
-    grid.add_column(style="bold", no_wrap=True)
-    grid.add_column(ratio=1)
+    grid = Rows()
     for i, line in enumerate(w.placements(table, setup)):
         grid.add_row("Place" if i == 0 else "", line)
     if error:
@@ -72,9 +90,7 @@ def notes(
     model_note: str = "",
 ) -> RenderableType:
     """Why this setup, the model and the table's calibration: the lines under the table."""
-    grid = RichTable.grid(padding=(0, 1), expand=True)
-    grid.add_column(style="bold", no_wrap=True)
-    grid.add_column(ratio=1)
+    grid = Rows()
     if pick is not None:
         grid.add_row("Why", pick.why)
     if pinned:

@@ -184,6 +184,7 @@ class Session:
         self.stroke: Stroke = Stroke()
         self.ended = False
         self.lock = threading.RLock()
+        self.dealer_stale = False
 
     # ----- setups -------------------------------------------------------------------------------
     def draw(self) -> Pick:
@@ -264,9 +265,16 @@ class Session:
         if gone is None:
             return None
         self.logged = [a for a in self.logged if a.id != gone.id]
-        with self.lock:
-            self.dealer.rebuild(self.earlier + self.logged)
+        self.dealer_stale = True
         return gone
+
+    def refresh_dealer(self) -> None:
+        """Let the coach forget an undone attempt: it starts again from what is still logged.
+        Slow (the coach deals a fresh pool), so the screen runs it in a worker thread."""
+        with self.lock:
+            if self.dealer_stale:
+                self.dealer.rebuild(self.earlier + self.logged)
+                self.dealer_stale = False
 
     def stats(self) -> Stats:
         return stats_of(self.logged)

@@ -2,8 +2,8 @@
 
 from __future__ import annotations
 
-from rich.console import Group, RenderableType
 from rich.text import Text
+from textual.strip import Strip
 from textual.widget import Widget
 
 from tablecoach.core.shots import Aim, Convergence, Setup
@@ -53,6 +53,7 @@ class TablePanel(Widget):
         self._picture = Picture()
         self._note = ""
         self._lines: tuple[tuple[int, int], list[Text]] | None = None
+        self._strips: tuple[tuple[int, int], list[Strip]] | None = None
 
     def drawing_size(self) -> tuple[int, int]:
         """The width and height the picture is drawn at (one line is kept for the legend)."""
@@ -71,9 +72,20 @@ class TablePanel(Widget):
         self._picture = picture if picture is not None else picture_of(table, setup, aim, conv)
         self._note = note
         self._lines = lines
+        self._strips = None
         self.refresh()
 
-    def render(self) -> RenderableType:
+    def render_line(self, y: int) -> Strip:
+        """One row of the picture (the line API: the drawn rows are kept as strips)."""
+        width = self.content_size.width
+        if self._strips is None or self._strips[0] != (width, self.content_size.height):
+            self._strips = ((width, self.content_size.height), self._build(width))
+        strips = self._strips[1]
+        if y < len(strips):
+            return strips[y]
+        return Strip.blank(width)
+
+    def _build(self, width: int) -> list[Strip]:
         size = self.drawing_size()
         if self._lines is not None and self._lines[0] == size:
             lines = self._lines[1]
@@ -81,4 +93,9 @@ class TablePanel(Widget):
             lines = draw(self._picture, self.ascii_only, *size)
             self._lines = (size, lines)
         foot = Text(self._note, style="italic") if self._note else legend_text(self.ascii_only)
-        return Group(*lines, foot)
+        console = self.app.console
+        out = []
+        for line in [*lines, foot]:
+            segments = list(line.render(console))
+            out.append(Strip(segments).crop_extend(0, width, None))
+        return out
