@@ -54,17 +54,12 @@ def simulate(
         aim_sd = AIM_NOISE * BASE.rail_unit(rail) if noise else 0.0
         actual = given + rng.normal(0.0, aim_sd) if noise else given
         speed = TRUE_SPEED[preset] * (1.0 + (rng.normal(0.0, SPEED_NOISE) if noise else 0.0))
-        tr = shots.predict(
-            truth,
-            d.setup,
-            actual,
-            shots.Stroke(speed, d.stroke.english, d.stroke.follow),
-            "physical",
-        )
-        if tr.landing is None:
+        stroke = shots.Stroke(speed, d.stroke.english, d.stroke.follow)
+        land = calibrate.model_landing(truth, d.setup, actual, stroke, "physical")
+        if land is None:
             continue
-        at = BASE.along_to_diamonds(tr.landing.rail, tr.landing.at)
-        top = 8.0 if tr.landing.rail in ("left", "right") else 4.0
+        at = BASE.along_to_diamonds(land.rail, land.at)
+        top = 8.0 if land.rail in ("left", "right") else 4.0
         g = BASE.along_to_diamonds(rail, given)
         if not (0.0 <= g <= (8.0 if rail in ("left", "right") else 4.0)):
             continue
@@ -79,8 +74,8 @@ def simulate(
             rail,
             g,
             g,
-            "hit" if tr.scores else "miss",
-            tr.landing.rail,
+            "miss",
+            land.rail,
             min(max(at, 0.0), top),
         )
         out.append((d, a))
@@ -125,9 +120,12 @@ def main() -> None:
     )
     print("true table:", ", ".join(f"{k} {v:g}" for k, v in TRUE_PARAMS.items()))
     print("true speeds:", ", ".join(f"{k} {v:g} m/s" for k, v in TRUE_SPEED.items()))
+    c0 = time.process_time()
     cal = calibrate.fit(BASE, [a for _, a in train], model="physical", player="sim")
+    cpu = time.process_time() - c0
     print(
-        f"fit on {cal.attempts} attempts: {cal.seconds:.2f} s, {cal.iterations} steps, "
+        f"fit on {cal.attempts} attempts: {cal.seconds:.2f} s wall, {cpu:.2f} s CPU, "
+        f"{cal.iterations} steps, "
         f"{cal.outliers} set aside, noise scale {cal.noise:.2f} diamond"
     )
     for e in (*cal.params, *cal.speeds):
@@ -167,9 +165,12 @@ def main() -> None:
         for name in PACKS:
             extra += simulate(truth, packs[name], rng, args.big // len(PACKS) + 1, noise=True)
         atts = [a for _, a in extra][: args.big]
+        c0 = time.process_time()
         big = calibrate.fit(BASE, atts, model="physical")
+        cpu = time.process_time() - c0
         print(
-            f"\ntiming: fit on {len(atts)} attempts took {big.seconds:.2f} s "
+            f"\ntiming: fit on {len(atts)} attempts took {big.seconds:.2f} s wall, "
+            f"{cpu:.2f} s CPU "
             f"({big.iterations} steps); RMS {big.rms_before:.3f} -> {big.rms_after:.3f}"
         )
 

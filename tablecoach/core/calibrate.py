@@ -49,23 +49,24 @@ def travel_sign(table: TableSpec, trace: Trace, start: tuple[float, float]) -> f
     return s if land.rail in ("left", "foot") else -s
 
 
-def predicted_trace(
+def model_landing(
     table: TableSpec,
-    attempt: Attempt,
-    model: str = "ideal",
-    speed: float | None = None,
-) -> Trace:
-    """Where the model sends the ball of a logged attempt with the aim the player used.
-
-    ``speed`` (m/s) replaces the logged speed when given (the player's calibrated speed).
-    """
-    setup = shots.setup_of(table, attempt.shot)
-    rail = setup.family.rails[0]
-    reading = table.along_to_metres(rail, attempt.aim_used)
-    stroke = shots.Stroke(
-        attempt.speed if speed is None else speed, attempt.english, attempt.follow
-    )
-    return shots.predict(table, setup, reading, stroke, model)
+    setup: shots.Setup,
+    reading: float,
+    stroke: shots.Stroke,
+    model: str = "physical",
+) -> RailPoint | None:
+    """Where the model has the travelling ball cross the landing rail for this reading, with
+    the other balls off the table (the landing a player logs: DESIGN.md, attempt records; the
+    ideal trace's landing already ignores balls). None when the ball never gets there."""
+    if model == "physical":
+        shot = _Shot(setup, reading, stroke.speed, stroke.english, stroke.follow, "", None, "")  # type: ignore[arg-type]
+        batch = _Batch([shot], [np.array([0])])
+        try:
+            return batch.landings(table, [0], {}, balls=False)[0]
+        except (ImportError, AttributeError, TypeError, IndexError):
+            pass  # the physics batch steps changed: fall back to the public trace
+    return shots.predict(table, setup, reading, stroke, model).landing
 
 
 def observed_landing(table: TableSpec, attempt: Attempt) -> RailPoint:
@@ -79,17 +80,24 @@ def landing_error(
 ) -> float | None:
     """Signed error of the logged landing against the model's, in diamonds round the table.
 
-    Positive means long: the ball landed further along its path than the model predicts for
-    the aim used. None when the model's ball never reaches a landing rail.
+    The model's landing is for the aim the player used, at ``speed`` m/s (default the logged
+    speed). Positive means long: the ball landed further along its path than the model
+    predicts (which way is "along" comes from the ideal trace of the same reading). None when
+    the model's ball never reaches a landing rail.
     """
-    tr = predicted_trace(table, attempt, model, speed)
-    if tr.landing is None:
+    setup = shots.setup_of(table, attempt.shot)
+    rail = setup.family.rails[0]
+    reading = table.along_to_metres(rail, attempt.aim_used)
+    stroke = shots.Stroke(
+        attempt.speed if speed is None else speed, attempt.english, attempt.follow
+    )
+    land = model_landing(table, setup, reading, stroke, model)
+    if land is None:
         return None
-    d = shots.landing_distance(table, observed_landing(table, attempt), tr.landing)
-    s = travel_sign(table, tr, shots.setup_of(table, attempt.shot).start)
-    if s == 0.0:
-        return d
-    return d * s if math.isfinite(d) else None
+    d = shots.landing_distance(table, observed_landing(table, attempt), land)
+    ideal = shots.trace_ideal(table, setup, shots.direction_of(table, setup.start, rail, reading))
+    s = travel_sign(table, ideal, setup.start)
+    return d if s == 0.0 else d * s
 
 
 # ----- the parameters ----------------------------------------------------------------------------
@@ -181,7 +189,7 @@ class Estimate:
 class Shift:
     """How far a family at a preset lands from the default table's prediction, on the logged
     shots: ``long`` in diamonds (positive: the calibrated model has the ball land further along
-    its path), averaged over ``n`` attempts."""
+    its path), the median over ``n`` attempts."""
 
     family: str
     preset: str
@@ -353,7 +361,10 @@ class Calibration:
         for e in self.speeds:
             book = shots.SPEED_PRESETS[e.name]
             if abs(e.value - book) < max(e.sd, 0.02 * book):
-                out.append(f"Your {e.name} is the book's: {e.value:.2f} m/s.")
+                out.append(
+                    f"Your {e.name} is about the book's: {e.value:.2f} +- {e.sd:.2f} m/s "
+                    f"(book {book:.2f})."
+                )
                 continue
             way = "harder" if e.value > book else "softer"
             out.append(
@@ -472,7 +483,7 @@ class _Batch:
         self.data = data
         self.groups = groups
         self.where = {int(i): (g, k) for g, rows in enumerate(groups) for k, i in enumerate(rows)}
-        self._pr: dict[tuple[int, ...], Any] = {}
+        self._pr: dict[tuple[Any, ...], Any] = {}
 
     @classmethod
     def make(cls, table: TableSpec, data: list[_Shot]) -> _Batch | None:
@@ -484,7 +495,7 @@ class _Batch:
             for rows in b.groups:
                 i = int(rows[0])
                 d = data[i]
-                got = b.landings(table, [i], {d.preset: 1.0})[0]
+                got = b.landings(table, [i], {d.preset: 1.0}, balls=True)[0]
                 want = shots.predict(
                     table,
                     d.setup,
@@ -505,8 +516,15 @@ class _Batch:
         return b
 
     def landings(
-        self, table: TableSpec, rows: Sequence[int], scale: dict[str, float]
+        self,
+        table: TableSpec,
+        rows: Sequence[int],
+        scale: dict[str, float],
+        balls: bool = False,
     ) -> list[RailPoint | None]:
+        """Landings of the given shots; with ``balls`` False the other balls are taken off
+        the table, so the landing is where the travelling ball really crosses the landing rail
+        (the design's definition: as a player sees it practising with the object ball off)."""
         from .physics import aim as pa  # noqa: PLC0415  (heavy; only the physical fit needs it)
         from .physics.params import model_of  # noqa: PLC0415
 
@@ -517,10 +535,13 @@ class _Batch:
         found: dict[int, RailPoint | None] = {}
         for _g, idx in by_group.items():
             ds = [self.data[i] for i in idx]
-            key = tuple(idx)
+            key = (*idx, balls)
             pr = self._pr.get(key)
             if pr is None:  # the geometry of a batch does not change with cloth or cushion
-                pr = self._pr[key] = pa._problems(table, [d.setup for d in ds])
+                pr = pa._problems(table, [d.setup for d in ds])
+                if not balls:
+                    pr = replace(pr, balls=np.full_like(pr.balls, np.nan))
+                self._pr[key] = pr
             pi = np.arange(len(ds), dtype=np.int64)
             reading = np.array([d.reading for d in ds])
             stroke = _ArrayStroke(
@@ -889,7 +910,8 @@ def fit(
 
 
 def _shifts(prob: _Problem, u: np.ndarray) -> tuple[Shift, ...]:
-    """Mean long/short of the calibrated against the prior prediction, per family and preset.
+    """Median long/short of the calibrated against the prior prediction, per family and preset
+    (the median, so that a shot whose modelled ball drops in a pocket does not set the figure).
 
     Which way is long comes from the ideal trace of the same reading (the direction the ball
     runs along its landing rail, which speed and spin do not turn round)."""
@@ -906,7 +928,7 @@ def _shifts(prob: _Problem, u: np.ndarray) -> tuple[Shift, ...]:
             s * shots.landing_distance(prob.table, c, b)
         )
     return tuple(
-        Shift(f, p, float(np.mean(v)), len(v))
+        Shift(f, p, float(np.median(v)), len(v))
         for (f, p), v in sorted(groups.items(), key=lambda kv: kv[0])
     )
 

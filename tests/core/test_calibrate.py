@@ -215,12 +215,12 @@ def _synthetic(seed: int, per_pack: int = 25) -> list[Attempt]:
         while n < per_pack:
             d = drills.sample_setups(T9, packs[name], rng, 1)[0]
             preset = book[d.stroke.speed]
-            tr = shots.predict(
+            land = calibrate.model_landing(
                 truth, d.setup, d.aim.reading, shots.Stroke(TRUE_SPEED[preset]), "physical"
             )
-            if tr.landing is None:
+            if land is None:
                 continue
-            out.append(_logged(T9, d.setup, d.aim.reading, preset, tr.landing))
+            out.append(_logged(T9, d.setup, d.aim.reading, preset, land))
             n += 1
     return out
 
@@ -321,3 +321,40 @@ def test_fit_on_a_linear_toy_model_is_exact() -> None:
     ref = least_squares(stacked, [0.85, 0.14], x_scale=[0.075, 0.1])
     assert cal.value("cushion.restitution") == pytest.approx(ref.x[0], abs=0.01)
     assert cal.value("cushion.friction") == pytest.approx(ref.x[1], abs=0.01)
+
+
+# ----- the command --------------------------------------------------------------------------
+
+
+def test_calibrate_command_fits_saves_and_prints(tmp_path, synthetic, capsys) -> None:  # type: ignore[no-untyped-def]
+    import json
+    from datetime import timedelta
+
+    from tablecoach import cli
+    from tablecoach.core.store import Store
+
+    with Store.open(tmp_path / "tablecoach.sqlite3") as store:
+        store.log_many(
+            [replace(a, when=a.when + timedelta(seconds=k)) for k, a in enumerate(synthetic)]
+        )
+    assert cli.main(["calibrate", "--data-dir", str(tmp_path), "--table", "9ft", "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    assert out["attempts"] == len(synthetic) and out["saved"] is True
+    assert out["params"]["cushion.restitution"]["value"] == pytest.approx(0.92, abs=0.01)
+    assert out["sentences"][0].startswith(f"Calibrated from {len(synthetic)} attempts")
+    with Store.open(tmp_path / "tablecoach.sqlite3") as store:
+        table, status = calibrate.calibrated_table(store, "9ft", None)
+    assert status == f"calibrated from {len(synthetic)} attempts"
+    assert table.cushion.restitution == pytest.approx(0.92, abs=0.01)
+    # plain text, not saved
+    assert cli.main(["calibrate", "--data-dir", str(tmp_path), "--table", "9ft", "--no-save"]) == 0
+    text = capsys.readouterr().out
+    assert "9ft table, ann: calibrated from" in text and "(not saved)" in text
+
+
+def test_calibrate_command_errors_are_one_line(tmp_path, capsys) -> None:  # type: ignore[no-untyped-def]
+    from tablecoach import cli
+
+    assert cli.main(["calibrate", "--data-dir", str(tmp_path), "--table", "9ft"]) == 2
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1 and "no practice database" in err
