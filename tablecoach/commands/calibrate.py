@@ -42,24 +42,10 @@ def run(args: argparse.Namespace) -> int:
             f"no practice database at {path} yet: log some attempts on the table first"
         )
     with Store.open(path) as store:
-        player = calibrate.default_player(store, args.player)
-        if player is None:
-            names = store.players()
-            if not names:
-                raise calibrate.CalibrationError("no attempts logged yet: practise first")
-            raise calibrate.CalibrationError(
-                f"name the player: --player NAME (players: {', '.join(names)})"
-            )
-        table = store.get_table(args.table)
-        attempts = store.attempts(player=player, table=args.table)
-        if not attempts:
-            raise calibrate.CalibrationError(
-                f"{player} has no attempts logged on the {args.table} table yet; the table "
-                "check in the practice screen takes 5 to 10 shots"
-            )
-        cal = calibrate.fit(table, attempts, model=args.model, player=player)
-        if not args.no_save:
-            store.save_calibration(args.table, player, cal.as_dict(), cal.attempts)
+        cal = calibrate.calibrate_from_store(
+            store, args.table, args.player, model=args.model, save=not args.no_save
+        )
+    player = cal.player
     if args.json:
         out = cal.as_dict()
         out["saved"] = not args.no_save

@@ -1077,3 +1077,35 @@ def table_check_setups(table: TableSpec, model: str = "ideal") -> list[Any]:
         Dealt(d.setup, d.stroke, d.item, f"{d.label} ({i + 1} of {n})", d.aim)
         for i, d in enumerate(out)
     ]
+
+
+def needs_table_check(store: Any, table_name: str, player: str | None) -> bool:
+    """True when the app should offer the table check: no calibration of this table for this
+    player yet (the player may skip it)."""
+    who = default_player(store, player)
+    return who is None or store.calibration(table_name, who) is None
+
+
+def calibrate_from_store(
+    store: Any, table_name: str, player: str | None, model: str = "physical", save: bool = True
+) -> Calibration:
+    """Fit a table for a player from the attempts in the store, and save the fit (for the
+    command and for the app's worker after a table check). One-line CalibrationError when
+    there is no player or no attempt to fit."""
+    who = default_player(store, player)
+    if who is None:
+        names = store.players()
+        if not names:
+            raise CalibrationError("no attempts logged yet: practise first")
+        raise CalibrationError(f"name the player: --player NAME (players: {', '.join(names)})")
+    table = store.get_table(table_name)
+    attempts = store.attempts(player=who, table=table_name)
+    if not attempts:
+        raise CalibrationError(
+            f"{who} has no attempts logged on the {table_name} table yet; the table check in "
+            "the practice screen takes 5 to 10 shots"
+        )
+    cal = fit(table, attempts, model=model, player=who)
+    if save:
+        store.save_calibration(table_name, who, cal.as_dict(), cal.attempts)
+    return cal

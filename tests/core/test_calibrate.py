@@ -154,6 +154,14 @@ def test_resolve_with_a_store(tmp_path) -> None:  # type: ignore[no-untyped-def]
         assert table.cushion.restitution == 0.92
         r = calibrate.resolve(store, "9ft", "bob")
         assert r.calibration is None and r.table == T9
+        assert not calibrate.needs_table_check(store, "9ft", None)
+        assert calibrate.needs_table_check(store, "7ft", None)
+        store.ensure_player("bob")
+        assert calibrate.needs_table_check(store, "9ft", "bob")
+        with pytest.raises(calibrate.CalibrationError, match="name the player"):
+            calibrate.calibrate_from_store(store, "9ft", None)
+        with pytest.raises(calibrate.CalibrationError, match="no attempts logged on the 9ft"):
+            calibrate.calibrate_from_store(store, "9ft", "bob")
     assert calibrate.resolve_table(None) == (T9, "not calibrated yet")
 
 
