@@ -14,7 +14,7 @@ from collections.abc import Iterable
 from datetime import UTC, datetime
 from typing import IO, Any
 
-from .records import SCHEMA_VERSION, Attempt, RecordError, ShotRecord, validate_attempt
+from .records import SCHEMA_VERSION, Attempt, RecordError, ShotRecord, flatten, validate_attempt
 
 FORMATS = ("jsonl", "csv")
 
@@ -285,38 +285,9 @@ def _cell(v: float | None) -> str:
 
 def attempt_to_row(a: Attempt) -> list[str]:
     """One attempt as CSV cells in CSV_COLUMNS order (floats as repr, exact)."""
-    s = a.shot
-    tb = s.target_ball
-    ob = s.object
-    return [
-        str(SCHEMA_VERSION),
-        when_text(a.when),
-        a.player,
-        a.table,
-        s.travel,
-        ";".join(s.rails),
-        s.family,
-        s.pocket or "",
-        _cell(tb[0] if tb else None),
-        _cell(tb[1] if tb else None),
-        _cell(s.cue[0]),
-        _cell(s.cue[1]),
-        _cell(ob[0] if ob else None),
-        _cell(ob[1] if ob else None),
-        _cell(a.speed),
-        _cell(a.english),
-        _cell(a.follow),
-        a.aim_rail,
-        _cell(a.aim_given),
-        _cell(a.aim_used),
-        a.result,
-        a.landing_rail,
-        _cell(a.landing_at),
-        a.note,
-        a.model,
-        a.drill,
-        a.zone,
-    ]
+    f = flatten(a)
+    cells = [_cell(v) if isinstance(v, float) or v is None else v for v in f[5:]]
+    return [str(SCHEMA_VERSION), when_text(f[0]), *f[1:4], ";".join(f[4]), *cells]
 
 
 def write_csv(attempts: Iterable[Attempt], fh: IO[str]) -> int:

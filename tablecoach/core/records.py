@@ -10,7 +10,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 from datetime import UTC, datetime
-from typing import Literal
+from typing import Any, Literal
 
 from .table import POCKETS, RAILS, TableError
 
@@ -75,6 +75,79 @@ class Attempt:
     @property
     def hit(self) -> bool:
         return self.result == "hit"
+
+
+FLAT_FIELDS: tuple[str, ...] = (
+    "when",
+    "player",
+    "table",
+    "travel",
+    "rails",
+    "family",
+    "pocket",
+    "target_x",
+    "target_y",
+    "cue_x",
+    "cue_y",
+    "object_x",
+    "object_y",
+    "speed",
+    "english",
+    "follow",
+    "aim_rail",
+    "aim_given",
+    "aim_used",
+    "result",
+    "landing_rail",
+    "landing_at",
+    "note",
+    "model",
+    "drill",
+    "zone",
+)
+"""The fields of an attempt laid flat, in the one order the store, CSV and identity share."""
+
+
+def _opt(v: float | None) -> float | None:
+    return None if v is None else float(v)
+
+
+def flatten(a: Attempt) -> tuple[Any, ...]:
+    """An attempt's content as values in FLAT_FIELDS order (id and session left out).
+
+    ``when`` stays a datetime and ``rails`` a tuple; absent positions are None.
+    """
+    s = a.shot
+    tb = s.target_ball or (None, None)
+    ob = s.object or (None, None)
+    return (
+        a.when,
+        a.player,
+        a.table,
+        s.travel,
+        tuple(s.rails),
+        s.family,
+        s.pocket,
+        _opt(tb[0]),
+        _opt(tb[1]),
+        float(s.cue[0]),
+        float(s.cue[1]),
+        _opt(ob[0]),
+        _opt(ob[1]),
+        float(a.speed),
+        float(a.english),
+        float(a.follow),
+        a.aim_rail,
+        float(a.aim_given),
+        float(a.aim_used),
+        a.result,
+        a.landing_rail,
+        float(a.landing_at),
+        a.note,
+        a.model,
+        a.drill,
+        a.zone,
+    )
 
 
 def utc_now() -> datetime:
@@ -159,11 +232,13 @@ def validate_attempt(a: Attempt) -> Attempt:
 
 __all__ = [
     "Attempt",
+    "FLAT_FIELDS",
     "RecordError",
     "SCHEMA_VERSION",
     "ShotRecord",
     "TableError",
     "check_rail_point",
+    "flatten",
     "utc_now",
     "validate_attempt",
 ]

@@ -20,7 +20,7 @@ from pathlib import Path
 from types import TracebackType
 from typing import Any
 
-from .records import Attempt, ShotRecord, utc_now, validate_attempt
+from .records import Attempt, ShotRecord, flatten, utc_now, validate_attempt
 from .table import BUILTIN_TABLES, TableError, TableSpec, table_from_mapping, table_to_mapping
 
 SCHEMA_VERSION = 2
@@ -206,38 +206,10 @@ def iso_utc(when: datetime) -> str:
     return when.astimezone(UTC).isoformat(timespec="microseconds")
 
 
-def _pair(p: tuple[float, float] | None) -> tuple[float | None, float | None]:
-    return (None, None) if p is None else (float(p[0]), float(p[1]))
-
-
 def _to_row(a: Attempt) -> tuple[Any, ...]:
-    s = a.shot
-    return (
-        iso_utc(a.when),
-        a.player,
-        a.table,
-        s.travel,
-        ",".join(s.rails),
-        s.family,
-        s.pocket,
-        *_pair(s.target_ball),
-        *_pair(s.cue),
-        *_pair(s.object),
-        float(a.speed),
-        float(a.english),
-        float(a.follow),
-        a.aim_rail,
-        float(a.aim_given),
-        float(a.aim_used),
-        a.result,
-        a.landing_rail,
-        float(a.landing_at),
-        a.note,
-        a.model,
-        a.drill,
-        a.zone,
-        a.session,
-    )
+    """An attempt as a row in ``_COLS`` order (the flat order of records.FLAT_FIELDS)."""
+    f = flatten(a)
+    return (iso_utc(f[0]), *f[1:4], ",".join(f[4]), *f[5:], a.session)
 
 
 def _from_row(r: Sequence[Any], id_: int | None = None) -> Attempt:
@@ -283,32 +255,8 @@ def attempt_identity(a: Attempt) -> str:
     Floats enter through repr (exact), times as UTC ISO-8601 to the microsecond, so two records
     are the same attempt exactly when every exported field is equal.
     """
-    s = a.shot
-    content = [
-        iso_utc(a.when),
-        a.player,
-        a.table,
-        s.travel,
-        list(s.rails),
-        s.family,
-        s.pocket,
-        _pair(s.target_ball),
-        _pair(s.cue),
-        _pair(s.object),
-        float(a.speed),
-        float(a.english),
-        float(a.follow),
-        a.aim_rail,
-        float(a.aim_given),
-        float(a.aim_used),
-        a.result,
-        a.landing_rail,
-        float(a.landing_at),
-        a.note,
-        a.model,
-        a.drill,
-        a.zone,
-    ]
+    f = flatten(a)
+    content = [iso_utc(f[0]), *f[1:4], list(f[4]), *f[5:]]
     text = json.dumps(content, separators=(",", ":"), ensure_ascii=False)
     return hashlib.sha256(text.encode("utf-8")).hexdigest()
 
