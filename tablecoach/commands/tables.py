@@ -10,8 +10,7 @@ from ..cli import add_common
 
 
 def _action_common(p: argparse.ArgumentParser) -> None:
-    # SUPPRESS: a value given before the action ("tables --data-dir X list") is not reset
-    p.add_argument("--data-dir", default=argparse.SUPPRESS, help=argparse.SUPPRESS)
+    add_common(p)  # --data-dir may also follow the action
     p.add_argument("--json", action="store_true", help="print JSON instead of text")
 
 
