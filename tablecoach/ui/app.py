@@ -17,6 +17,7 @@ from textual.binding import Binding
 from textual.screen import Screen
 
 from tablecoach import paths
+from tablecoach.core import calibrate
 from tablecoach.core import drills as drills_mod
 from tablecoach.core.store import Store, StoreError
 from tablecoach.core.table import BUILTIN_TABLES, DEFAULT_TABLE, TableSpec
@@ -82,6 +83,7 @@ class Resolved:
     status: str
     drill: Any
     player: str
+    calibration: Any = None
 
 
 def resolve(store: Store, table: str, drill: str, player: str) -> Resolved:
@@ -89,16 +91,9 @@ def resolve(store: Store, table: str, drill: str, player: str) -> Resolved:
     player = player.strip()
     if not player or len(player) > 40:
         raise ValueError(f"a player name must be 1 to 40 characters, got {player!r}")
-    spec = store.get_table(table)
-    status = "stock figures for this table (not calibrated)"
-    try:
-        from tablecoach.core.calibrate import calibrated_table  # noqa: PLC0415
-    except ImportError:
-        calibrated_table = None
-    if calibrated_table is not None:
-        spec, status = calibrated_table(store, table, player)
+    r = calibrate.resolve(store, table, player)
     pack = drills_mod.find_drill(drill, paths.user_drills_dir())
-    return Resolved(spec, status, pack, player)
+    return Resolved(r.table, r.status, pack, player, r.calibration)
 
 
 def drill_names() -> list[tuple[str, str]]:
@@ -149,7 +144,9 @@ class TableCoachApp(App[int]):
         self.push_screen(self.practice)
 
     def _practice_for(self, r: Resolved, drill_name: str) -> PracticeScreen:
-        session = Session(self.store, r.table, r.drill, r.player, self.rng, self.model)
+        session = Session(
+            self.store, r.table, r.drill, r.player, self.rng, self.model, r.calibration
+        )
         self.drill_name = drill_name
         return PracticeScreen(session, r.status, self.ascii_only)
 

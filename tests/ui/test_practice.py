@@ -74,7 +74,7 @@ async def test_hit_logs_the_shown_aim(make_app):
         assert abs(a.landing_at - table.along_to_diamonds(aim.landing.rail, aim.landing.at)) < 0.006
         assert a.model == "ideal" and a.player == "tester" and a.table == "9ft"
         assert a.session == screen.session.id
-        assert "1 shots, 1 hits" in text_of(app, "#session")
+        assert "1 shot, 1 hit" in text_of(app, "#session")
         assert "streak 1" in text_of(app, "#session")
         # the next setup is dealt and solved
         assert screen.aim is not None and screen.aim is not aim
@@ -185,7 +185,7 @@ async def test_undo_removes_the_last_attempt(make_app):
         back = app.screen.session.pick.setup
         assert shots.record_of(table, back) == shots.record_of(table, second.setup)
         assert "undone" in text_of(app, "#message")
-        assert "1 shots, 1 hits" in text_of(app, "#session")
+        assert "1 shot, 1 hit" in text_of(app, "#session")
         await pilot.press("u", "u")
         await settle(pilot)
         assert stored(app) == []
@@ -236,7 +236,7 @@ async def test_quit_and_reopen_shows_the_attempts(make_app):
         await pilot.press("q")
         await pilot.pause()
     assert app.return_code == 0
-    assert app.summary == "session: 2 attempts, 1 hits, current streak 0, best streak 1"
+    assert app.summary == "session: 2 attempts, 1 hit, current streak 0, best streak 1"
     app.store.close()
     # the attempts are on disk, in a session that was closed
     with Store.open(paths.db_path()) as st:
@@ -247,7 +247,7 @@ async def test_quit_and_reopen_shows_the_attempts(make_app):
         await settle(pilot)
         line = text_of(again, "#session")
         assert "this session: 0 shots" in line
-        assert "before: 2 shots, 1 hits" in line
+        assert "before: 2 shots, 1 hit" in line
 
 
 async def test_escape_from_summary_keeps_practising(make_app):
@@ -394,3 +394,26 @@ async def test_v_opens_history_and_escape_returns(make_app):
         await settle(pilot)
         assert isinstance(app.screen, PracticeScreen)
         assert len(stored(app)) == 1
+
+
+async def test_table_check_from_the_palette(make_app):
+    """The palette's table check deals calibrate.table_check_setups' reference shots first."""
+    from tablecoach.core.calibrate import table_check_setups
+
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        screen = app.screen
+        assert "not calibrated" in text_of(app, "#notes")
+        [cmd] = [c for c in app.get_system_commands(screen) if c.title == "Table check"]
+        cmd.callback()
+        await settle(pilot)
+        ref = table_check_setups(screen.session.table)
+        table = screen.session.table
+        for k in range(2):
+            pick = screen.session.pick
+            assert f"reference shot {k + 1} of {len(ref)}" in pick.why
+            assert shots.record_of(table, pick.setup) == shots.record_of(table, ref[k].setup)
+            await pilot.press("h")
+            await settle(pilot)
+        assert [a.result for a in stored(app)] == ["hit", "hit"]

@@ -58,6 +58,11 @@ class PracticeScreen(Screen[None]):
         ("speed", "Change speed", "Next speed preset for this attempt; re-solves the aim (s)"),
         ("pin", "Pin this zone", "Keep practising this zone (p again to unpin)"),
         ("history", "History", "Streaks, rates and trends (v)"),
+        (
+            "table_check",
+            "Table check",
+            "Shoot the reference shots that calibrate this table (palette only)",
+        ),
         ("setup", "Change table, pack or player", "Open the setup screen (t)"),
         ("help", "Help", "What every key does (?)"),
         ("quit_session", "Quit with a summary", "Show the session summary, then leave (q)"),
@@ -348,7 +353,7 @@ class PracticeScreen(Screen[None]):
             return
         st = self.session.stats()
         where = f"{a.landing_rail} rail at {w.num(a.landing_at)}"
-        self.say(f"logged a {a.result} ({where}); {st.shots} shots, streak {st.streak}")
+        self.say(f"logged a {a.result} ({where}); {w.count(st.shots, 'shot')}, streak {st.streak}")
         self._deal()
 
     def action_undo(self) -> None:
@@ -386,8 +391,8 @@ class PracticeScreen(Screen[None]):
     def action_speed(self) -> None:
         if self.session.pick is None:
             return
-        stroke = self.session.next_speed()
-        self.say(f"speed for this attempt: {shots.speed_name(stroke.speed)}")
+        preset, stroke = self.session.next_speed()
+        self.say(f"speed for this attempt: {preset}, {stroke.speed:.2f} m/s")
         self._solve()
 
     def action_pin(self) -> None:
@@ -420,6 +425,20 @@ class PracticeScreen(Screen[None]):
         self._refresh()
         what = self._pinned_text() or "this zone for 10 setups"
         self.say(f"pinned: {what} (p again to unpin)")
+
+    def action_table_check(self) -> None:
+        try:
+            from tablecoach.core.calibrate import table_check_setups  # noqa: PLC0415
+
+            shots_ = table_check_setups(self.session.table)
+        except ValueError as exc:
+            self.say(f"no table check here: {exc}", True)
+            return
+        with self.session.lock:
+            self.session.dealer.queue_check(shots_)
+        self._forget_ahead()
+        self.say(f"table check: {len(shots_)} reference shots come next; log each as usual")
+        self._deal()
 
     def action_history(self) -> None:
         if not history_available():

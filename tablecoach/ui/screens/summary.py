@@ -30,7 +30,8 @@ def summary_lines(stats: Stats, player: str, table: str, drill: str) -> list[tup
 def summary_text(stats: Stats) -> str:
     """The summary in one line, printed when the app closes."""
     return (
-        f"session: {stats.shots} attempts, {stats.hits} hits, "
+        f"session: {stats.shots} attempt{'' if stats.shots == 1 else 's'}, "
+        f"{stats.hits} hit{'' if stats.hits == 1 else 's'}, "
         f"current streak {stats.streak}, best streak {stats.best}"
     )
 

@@ -109,11 +109,12 @@ def session_line(stats: Stats, earlier: Stats, table_name: str, player: str) -> 
     t = Text()
     t.append(f"{player} on {table_name}  ", style="bold")
     rate = f" ({100 * stats.hits / stats.shots:.0f}%)" if stats.shots else ""
-    t.append(f"this session: {stats.shots} shots, {stats.hits} hits{rate}, ")
+    t.append(f"this session: {w.count(stats.shots, 'shot')}, {w.count(stats.hits, 'hit')}{rate}, ")
     t.append(f"streak {stats.streak}", style="bold")
     t.append(f" (best {stats.best})")
     if earlier.shots:
-        t.append(f"   before: {earlier.shots} shots, {earlier.hits} hits", style="dim")
+        before = f"{w.count(earlier.shots, 'shot')}, {w.count(earlier.hits, 'hit')}"
+        t.append(f"   before: {before}", style="dim")
     return t
 
 

@@ -108,12 +108,29 @@ class Dealer:
             self.scheduler = Scheduler(table, drill, list(attempts), rng, model=DEAL_MODEL)
         self._queue: list[Any] = []
         self._size = 0
+        self._check: list[Any] = []
+        self._check_size = 0
 
     @property
     def coached(self) -> bool:
         return self.scheduler is not None
 
+    def queue_check(self, dealt: list[Any]) -> None:
+        """Deal these reference shots (the table check) before anything else."""
+        self._check = list(dealt)
+        self._check_size = len(self._check)
+
+    @property
+    def checking(self) -> int:
+        """Reference shots of the table check still to deal."""
+        return len(self._check)
+
     def next(self) -> Pick:
+        if self._check:
+            d = self._check.pop(0)
+            n = self._check_size - len(self._check)
+            why = f"table check, reference shot {n} of {self._check_size}: it calibrates the table"
+            return Pick(d.setup, d.stroke, d.label, "", why)
         if self.scheduler is not None:
             choice = self.scheduler.next()
             d = choice.dealt
@@ -169,8 +186,11 @@ class Session:
         player: str,
         rng: np.random.Generator,
         model: str,
+        calibration: Any = None,
     ) -> None:
         self.store = store
+        self.calibration = calibration
+        self.preset = "medium"
         self.table = table
         self.drill = drill
         self.player = player
@@ -197,6 +217,7 @@ class Session:
         self.pick = pick
         if pick is not None:
             self.stroke = pick.stroke
+            self.preset = shots.speed_name(pick.stroke.speed)
 
     def deal(self) -> Pick:
         """Draw and show the next setup at once."""
@@ -211,15 +232,21 @@ class Session:
         zone = self.pick.zone if self.pick is not None and not attempt.zone else attempt.zone
         self.pick = Pick(setup, stroke, attempt.shot.family, zone, "shown again after undo")
         self.stroke = stroke
+        self.preset = shots.speed_name(stroke.speed)
         return self.pick
 
-    def next_speed(self) -> Stroke:
-        """The next speed preset after the current one, for this attempt only."""
-        name = shots.speed_name(self.stroke.speed)
-        i = SPEED_CYCLE.index(name) if name in SPEED_CYCLE else -1
-        nxt = SPEED_CYCLE[(i + 1) % len(SPEED_CYCLE)]
-        self.stroke = replace(self.stroke, speed=shots.SPEED_PRESETS[nxt])
-        return self.stroke
+    def next_speed(self) -> tuple[str, Stroke]:
+        """The next speed preset after the current one, for this attempt only: the player's
+        calibrated m/s for it when the table is calibrated, else the published preset."""
+        i = SPEED_CYCLE.index(self.preset) if self.preset in SPEED_CYCLE else -1
+        self.preset = SPEED_CYCLE[(i + 1) % len(SPEED_CYCLE)]
+        speed = shots.SPEED_PRESETS[self.preset]
+        if self.calibration is not None:
+            from tablecoach.core.calibrate import stroke_for  # noqa: PLC0415
+
+            speed = stroke_for(self.calibration, self.preset).speed
+        self.stroke = replace(self.stroke, speed=speed)
+        return self.preset, self.stroke
 
     # ----- attempts ------------------------------------------------------------------------------
     def attempt(self, aim: Aim, result: str, landing_rail: str, landing_at: float) -> Attempt:

@@ -23,6 +23,11 @@ def num(v: float, places: int = 2) -> str:
     return "0" if text in ("-0", "") else text
 
 
+def count(n: int, word: str) -> str:
+    """'1 shot', '2 shots', '0 hits'."""
+    return f"{n} {word}" if n == 1 else f"{n} {word}s"
+
+
 def placement(table: TableSpec, what: str, p: tuple[float, float]) -> str:
     """Where to put a ball, as a player measures it: diamonds from the nearer end rail and the
     nearer long rail (ball centre from the cushion nose), then the x/y diamonds."""
