@@ -29,6 +29,9 @@ DATE_RANGES: tuple[tuple[str, int | None], ...] = (
 """Date filters the d key steps through: a label and how many local days back (today counts)."""
 
 
+SESSION_COLUMNS = ("#", "started", "player", "table", "made", "rate", "best", "families")
+
+
 class SessionsListed(Message):
     """The store's session list arrived (a fast first look, before the full history)."""
 
@@ -134,9 +137,16 @@ class HistoryScreen(Screen[None]):
         yield Footer()
 
     def on_mount(self) -> None:
-        table = self.query_one("#history-sessions", DataTable)
-        table.add_columns("#", "started", "player", "table", "made", "rate", "best", "families")
+        self._reset_sessions()
         self.reload()
+
+    def _reset_sessions(self) -> DataTable[Any]:
+        """Empty the session table, columns too, so their widths fit only the new rows."""
+        table = self.query_one("#history-sessions", DataTable)
+        table.clear(columns=True)
+        table.add_columns(*SESSION_COLUMNS)
+        self.session_rows = []
+        return table
 
     # ----- loading ----------------------------------------------------------------------
     def local_today(self) -> date:
@@ -181,9 +191,7 @@ class HistoryScreen(Screen[None]):
     def on_sessions_listed(self, message: SessionsListed) -> None:
         if message.token != self.token or self.loaded_token == message.token:
             return
-        table = self.query_one("#history-sessions", DataTable)
-        table.clear()
-        self.session_rows = []
+        table = self._reset_sessions()
         for s in reversed(message.sessions):  # start times follow with the attempts
             rate = f"{100 * s.hits / s.attempts:.0f}%" if s.attempts else "-"
             table.add_row(
@@ -239,9 +247,7 @@ class HistoryScreen(Screen[None]):
             Text("make rate by where the travelling ball started\n" + legend_text())
         )
         self.query_one("#history-trends", Static).update(self._trends(h))
-        table = self.query_one("#history-sessions", DataTable)
-        table.clear()
-        self.session_rows = []
+        table = self._reset_sessions()
         for s in reversed(h.sessions):
             start = s.start.astimezone(self.tz) if self.tz is not None else s.start.astimezone()
             table.add_row(
