@@ -187,6 +187,7 @@ class TableCoachApp(App[int]):
         save_settings(choice)
         self._end_session()
         self.practice = fresh
+        fresh.opening = f"new session: {r.table.name} table, {choice.drill} pack, {r.player}"
         self.switch_screen(fresh)
 
     def action_summary(self) -> None:

@@ -319,6 +319,7 @@ async def test_setup_screen_changes_table(make_app):
         await settle(pilot)
         s = app.screen.session
         assert s.table.name == "8ft" and s.id != old
+        assert "new session: 8ft table" in text_of(app, "#message")
         ended = {i.id: i.ended for i in app.store.sessions()}
         assert ended[old] is not None
 
@@ -417,3 +418,25 @@ async def test_table_check_from_the_palette(make_app):
             await pilot.press("h")
             await settle(pilot)
         assert [a.result for a in stored(app)] == ["hit", "hit"]
+
+
+async def test_store_error_while_logging_is_one_line_and_keeps_the_setup(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        pick = app.screen.session.pick
+        real_log = app.store.log
+
+        def broken(attempt):
+            raise StoreError("the database is damaged (disk I/O error); restore it from a backup")
+
+        app.store.log = broken
+        await pilot.press("h")
+        await settle(pilot)
+        message = text_of(app, "#message")
+        assert message.startswith("not saved: the database is damaged")
+        assert app.screen.session.pick is pick  # the setup stays to be logged again
+        app.store.log = real_log
+        await pilot.press("h")
+        await settle(pilot)
+        assert [a.result for a in stored(app)] == ["hit"]

@@ -85,6 +85,7 @@ class PracticeScreen(Screen[None]):
         self.model_note = ""
         self.drawn: tuple[Any, Any] | None = None
         self.refresh_dealer = False
+        self.opening = "h hit, m miss, ? help: each attempt is saved the moment you log it"
 
     # ----- layout ----------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
@@ -99,7 +100,7 @@ class PracticeScreen(Screen[None]):
         yield Footer(compact=True)
 
     def on_mount(self) -> None:
-        self.say("h hit, m miss, ? help: each attempt is saved the moment you log it")
+        self.say(self.opening)
         self._deal(first=True)
 
     # ----- showing ---------------------------------------------------------------------------

@@ -61,6 +61,7 @@ class SetupScreen(ModalScreen[Choice | None]):
                     )
             yield Label("Player (known: " + (", ".join(self.players) or "none yet") + ")")
             yield Input(value=self.current.player, id="player", max_length=40)
+            yield Static("", id="setup-picks")
             yield Static("", id="setup-message")
         yield Footer()
 
@@ -76,6 +77,22 @@ class SetupScreen(ModalScreen[Choice | None]):
             elif names:
                 ol.highlighted = 0
         self.query_one("#tables", OptionList).focus()
+        self._show_picks()
+
+    def _show_picks(self) -> None:
+        table = self._picked("#tables") or "?"
+        drill = self._picked("#drills") or "?"
+        player = self.query_one("#player", Input).value.strip() or "?"
+        self.query_one("#setup-picks", Static).update(
+            f"Start: {table} table, {drill} pack, player {player} (Enter on the name or ctrl+s)"
+        )
+
+    def on_option_list_option_highlighted(self, event: OptionList.OptionHighlighted) -> None:
+        self._show_picks()
+
+    def on_input_changed(self, event: Input.Changed) -> None:
+        if self.is_mounted:
+            self._show_picks()
 
     def on_option_list_option_selected(self, event: OptionList.OptionSelected) -> None:
         self.focus_next()
