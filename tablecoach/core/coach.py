@@ -320,8 +320,8 @@ class Scheduler:
         sampler: Sampler | None = None,
         pool_size: int = 96,
         explore: float = 0.05,
-        run: int = 3,
-        sharpen: float = 2.0,
+        run: int = 4,
+        sharpen: float = 3.0,
     ) -> None:
         lo, hi = target_band
         if not (0.0 < lo < hi < 1.0):
