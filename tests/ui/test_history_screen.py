@@ -87,6 +87,18 @@ async def test_open_filter_and_go_back(club_store):
         expected = club_store.count_attempts(player="Nadia", family=fam, since=since)
         assert shown(app) == expected
 
+        await pilot.press("left_square_bracket")  # the 7 days before those
+        await settle(pilot)
+        until = since
+        since = until - timedelta(days=7)
+        earlier = club_store.count_attempts(player="Nadia", family=fam, since=since, until=until)
+        assert shown(app) == earlier
+        assert f"{since:%Y-%m-%d} to" in text_of(app, "#history-filters")
+        await pilot.press("right_square_bracket")
+        await settle(pilot)
+        since = until
+        assert shown(app) == expected
+
         players = sorted(club_store.players())
         after = players[players.index("Nadia") + 1 :]
         seen = []

@@ -95,6 +95,8 @@ class HistoryScreen(Screen[None]):
         Binding("t", "next_table", "Table"),
         Binding("f", "next_family", "Family"),
         Binding("d", "next_dates", "Dates"),
+        Binding("left_square_bracket", "dates_back", "Earlier", show=False),
+        Binding("right_square_bracket", "dates_forward", "Later", show=False),
         Binding("s", "clear_session", "All sessions", show=False),
         Binding("a", "toggle_ascii", "ASCII map"),
         Binding("r", "reset", "Reset"),
@@ -115,6 +117,7 @@ class HistoryScreen(Screen[None]):
         self.ascii_only = ascii_only
         self.filters = Filters(player=player)
         self.date_index = 0
+        self.date_back = 0  # how many whole windows back from today the date filter is
         self.token = 0
         self.loaded: Loaded | None = None
         self.loaded_token = 0
@@ -161,8 +164,17 @@ class HistoryScreen(Screen[None]):
         days = DATE_RANGES[self.date_index][1]
         if days is None:
             return replace(self.filters, since=None, until=None)
-        today = self.local_today()
-        return replace(self.filters, since=today - timedelta(days=days - 1), until=today)
+        until = self.local_today() - timedelta(days=days * self.date_back)
+        return replace(self.filters, since=until - timedelta(days=days - 1), until=until)
+
+    def dates_label(self) -> str:
+        """The date filter in words: the preset, or the window it was stepped back to."""
+        label, days = DATE_RANGES[self.date_index]
+        if days is None or self.date_back == 0:
+            return label
+        f = self.current_filters()
+        assert f.since is not None and f.until is not None
+        return f"{f.since:%Y-%m-%d} to {f.until:%Y-%m-%d}"
 
     def reload(self) -> None:
         """Query and summarise in a worker thread; the screen stays live meanwhile."""
@@ -229,11 +241,11 @@ class HistoryScreen(Screen[None]):
             f"[p] player: {f.player or 'everyone'}",
             f"[t] table: {f.table or 'all'}",
             f"[f] family: {f.family or 'all'}",
-            f"[d] dates: {DATE_RANGES[self.date_index][0]}",
+            f"[d] dates: {self.dates_label()}",
         ]
         if f.session is not None:
             parts.append(f"[s] session {f.session} only")
-        line2 = "Enter on a session shows it alone; Escape goes back"
+        line2 = "[ and ] step the dates back and forward; Enter on a session shows it alone"
         self.query_one("#history-filters", Static).update(Text("   ".join(parts) + "\n" + line2))
 
     def _show(self, h: history.History) -> None:
@@ -321,7 +333,20 @@ class HistoryScreen(Screen[None]):
 
     def action_next_dates(self) -> None:
         self.date_index = (self.date_index + 1) % len(DATE_RANGES)
+        self.date_back = 0
         self.reload()
+
+    def action_dates_back(self) -> None:
+        if DATE_RANGES[self.date_index][1] is None:
+            self.date_index = 1  # stepping needs a window: start from the first one
+        else:
+            self.date_back += 1
+        self.reload()
+
+    def action_dates_forward(self) -> None:
+        if DATE_RANGES[self.date_index][1] is not None and self.date_back > 0:
+            self.date_back -= 1
+            self.reload()
 
     def action_clear_session(self) -> None:
         if self.filters.session is not None:
@@ -336,6 +361,7 @@ class HistoryScreen(Screen[None]):
     def action_reset(self) -> None:
         self.filters = Filters()
         self.date_index = 0
+        self.date_back = 0
         self.reload()
 
     def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
