@@ -60,6 +60,7 @@ async def test_hit_logs_the_shown_aim(make_app):
         screen = app.screen
         aim = screen.aim
         table = screen.session.table
+        screen_zone = screen.session.pick.zone
         await pilot.press("h")
         await settle(pilot)
         [a] = stored(app)
@@ -73,6 +74,12 @@ async def test_hit_logs_the_shown_aim(make_app):
         assert a.landing_rail == aim.landing.rail
         assert abs(a.landing_at - table.along_to_diamonds(aim.landing.rail, aim.landing.at)) < 0.006
         assert a.model == "ideal" and a.player == "tester" and a.table == "9ft"
+        assert a.drill == "one-rail-kicks"
+        # the zone is the coach's own label for this shot at this speed
+        from tablecoach.core import coach
+
+        assert a.zone == coach.zone_of(a.shot, a.speed).label
+        assert a.zone == screen_zone.label
         assert a.session == screen.session.id
         assert "1 shot, 1 hit" in text_of(app, "#session")
         assert "streak 1" in text_of(app, "#session")

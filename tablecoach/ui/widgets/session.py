@@ -10,7 +10,7 @@ from typing import Any
 import numpy as np
 
 from tablecoach.core import shots
-from tablecoach.core.records import Attempt, utc_now
+from tablecoach.core.records import Attempt, rail_length_diamonds, utc_now
 from tablecoach.core.shots import Aim, Setup, Stroke
 from tablecoach.core.store import Store
 from tablecoach.core.table import TableSpec
@@ -253,11 +253,19 @@ class Session:
         """The record of one shot at the shown setup with the shown aim."""
         assert self.pick is not None
         reading = shown_reading(self.table, aim)
+        top = rail_length_diamonds(aim.rail)
+        note = ""
+        if not 0.0 <= reading <= top:
+            # a stick line may cross the line of sights beyond the last sight; the record
+            # keeps readings on the rail (0 to 4 or 8), so the nearest end is logged
+            note = f"aim reading {reading:g} lies beyond the sights; logged at the rail's end"
+            reading = min(max(reading, 0.0), top)
+        shot = shots.record_of(self.table, aim.setup)
         return Attempt(
             when=utc_now(),
             player=self.player,
             table=self.table.name,
-            shot=shots.record_of(self.table, aim.setup),
+            shot=shot,
             speed=aim.stroke.speed,
             english=aim.stroke.english,
             follow=aim.stroke.follow,
@@ -269,9 +277,18 @@ class Session:
             landing_at=landing_at,
             model=aim.model,
             drill=drill_name(self.drill),
-            zone=zone_label(self.pick.zone),
+            note=note,
+            zone=self._zone_of(shot, aim.stroke.speed),
             session=self.id,
         )
+
+    def _zone_of(self, shot: Any, speed: float) -> str:
+        """The coach's zone of the shot as played (a speed change moves it to another zone)."""
+        try:
+            from tablecoach.core.coach import zone_of  # noqa: PLC0415
+        except ImportError:
+            return zone_label(self.pick.zone if self.pick else None)
+        return zone_label(zone_of(shot, speed))
 
     def log_hit(self, aim: Aim) -> Attempt:
         at = landing_diamonds(self.table, aim.landing)

@@ -1,0 +1,84 @@
+"""Plain tests of the practice session and its words (no screen), against the real store."""
+
+from __future__ import annotations
+
+from dataclasses import replace
+
+import numpy as np
+import pytest
+
+from tablecoach.core import drills, shots
+from tablecoach.core.records import RecordError
+from tablecoach.core.store import Store
+from tablecoach.core.table import BUILTIN_TABLES
+from tablecoach.ui.widgets import wording as w
+from tablecoach.ui.widgets.landing import parse_landing, ruler
+from tablecoach.ui.widgets.session import Session, stats_of
+
+T9 = BUILTIN_TABLES["9ft"]
+
+
+@pytest.fixture
+def session(tmp_path):
+    store = Store.open(tmp_path / "t.sqlite3")
+    pack = drills.find_drill("one-rail-kicks", None)
+    s = Session(store, T9, pack, "tester", np.random.default_rng(3), "ideal")
+    yield s
+    store.close()
+
+
+def test_placement_measures_from_the_nearer_rails():
+    # A ball 1.5 diamonds up from the head rail and 1 out from the left rail, and its mirror
+    # image near the foot-right corner (positions by hand; measuring from the nearer rail is
+    # common practice, no source).
+    assert w.placement(T9, "cue ball", T9.to_metres(1.5, 1.0)) == (
+        "cue ball: 1.5 from the head rail, 1 from the left rail"
+    )
+    assert w.placement(T9, "object ball", T9.to_metres(6.75, 3.5)) == (
+        "object ball: 1.25 from the foot rail, 0.5 from the right rail"
+    )
+
+
+def test_landing_input_is_checked_against_the_rail_length():
+    # long rails run 0 to 8 diamonds, short rails 0 to 4 (WPA: sights mark eighths of the
+    # length and quarters of the width)
+    assert parse_landing("left", "7.75") == 7.75
+    assert parse_landing("foot", "4") == 4.0
+    for rail, typed in (("foot", "4.25"), ("right", "8.5"), ("head", "-1")):
+        with pytest.raises(RecordError, match="off the"):
+            parse_landing(rail, typed)
+    with pytest.raises(RecordError, match="not a number"):
+        parse_landing("left", "2..5")
+
+
+def test_ruler_marks_quarter_diamonds():
+    lines = ruler("foot", 2.5, ascii_only=True).plain.splitlines()
+    assert lines[1].strip() == "+---+---+---+---+"  # 4 diamonds, 4 characters a diamond
+    assert lines[2].index("^") - lines[1].index("+") == 10  # 2.5 diamonds = 10 quarters
+
+
+def test_streaks_count_runs_of_hits():
+    class A:
+        def __init__(self, hit: bool) -> None:
+            self.hit = hit
+
+    st = stats_of([A(x) for x in (True, True, False, True, True, True, False, True)])
+    assert (st.shots, st.hits, st.streak, st.best, st.misses) == (8, 6, 1, 3, 2)
+
+
+def test_a_reading_beyond_the_sights_is_logged_at_the_rail_end(session):
+    pick = session.deal()
+    aim = shots.solve_aim(T9, pick.setup, pick.stroke, "ideal")
+    top = 8.0 if aim.rail in ("left", "right") else 4.0
+    beyond = replace(aim, reading=(top + 0.2) * T9.rail_unit(aim.rail))
+    a = session.log_hit(beyond)
+    assert a.aim_given == a.aim_used == top
+    assert "beyond the sights" in a.note
+    assert session.store.attempts(session=session.id)[0].aim_given == top
+
+
+def test_next_speed_cycles_the_presets(session):
+    session.deal()
+    seen = [session.next_speed()[0] for _ in range(4)]
+    assert sorted(seen) == sorted(shots.SPEED_PRESETS)
+    assert session.stroke.speed == shots.SPEED_PRESETS[seen[-1]]
