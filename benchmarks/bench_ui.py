@@ -45,6 +45,35 @@ asyncio.run(main())
 """
 
 
+BARE = r"""
+import asyncio, json, time
+t0 = time.perf_counter()
+from textual.app import App
+from textual.widgets import Footer, Static
+
+class Bare(App):
+    def compose(self):
+        yield Static("hello")
+        yield Footer()
+
+async def main():
+    app = Bare()
+    async with app.run_test(size=(100, 30)) as pilot:
+        await pilot.pause()
+        t1 = time.perf_counter()
+    print(json.dumps({"ready": t1 - t0}))
+
+asyncio.run(main())
+"""
+
+
+def bare_startup() -> float:
+    """Wall time for a bare Textual app (a Static and a Footer): what this machine allows."""
+    t0 = time.perf_counter()
+    subprocess.run([sys.executable, "-c", BARE], capture_output=True, text=True, check=True)
+    return time.perf_counter() - t0
+
+
 def startup(model: str) -> dict[str, float]:
     """One start-up in a fresh process; wall time from spawn to the first usable screen."""
     with tempfile.TemporaryDirectory() as tmp:
@@ -156,6 +185,12 @@ def main() -> None:
         f"median {statistics.median(walls):.3f} s, worst {max(walls):.3f} s (goal < 1.0 s)"
     )
     print(f"  of which imports + store + first session: median {statistics.median(built):.3f} s")
+    bare = [bare_startup() for _ in range(a.repeat)]
+    print(
+        f"  for scale, a bare Textual app (Static + Footer) on this machine: "
+        f"median {statistics.median(bare):.3f} s; load average {os.getloadavg()[0]:.2f} "
+        f"on {os.cpu_count()} CPUs"
+    )
     times = asyncio.run(keys(a.model, a.repeat))
     for key, xs in times.items():
         print(f"key {key!r} to updated screen: {ms(xs)} (goal < 50 ms)")
