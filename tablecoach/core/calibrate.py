@@ -556,13 +556,13 @@ class _Batch:
             if pr.bank:
                 # the line-of-centres reading whose thrown launch line has the logged reading
                 for _ in range(6):
-                    ln = pa._launch(m, table, pr, pi, sv, stroke)
+                    ln = pa._launch(m, table, pr, pi, sv, stroke)  # type: ignore[arg-type]
                     good = ln.ok & np.isfinite(ln.reading)
                     step = np.where(good, reading - ln.reading, 0.0)
                     sv = sv + step
                     if float(np.max(np.abs(step))) < 1e-9:
                         break
-            res, ln = pa._run(m, table, pr, pi, sv, stroke)
+            res, ln = pa._run(m, table, pr, pi, sv, stroke)  # type: ignore[arg-type]
             nf = len(ds[0].setup.family.rails)
             for k, i in enumerate(idx):
                 code = int(res.landing_rail[k])
@@ -570,7 +570,7 @@ class _Batch:
                 if not bool(ln.ok[k]):
                     continue
                 if code >= 0:
-                    found[i] = RailPoint(RAILS[code], float(res.landing_at[k]))  # type: ignore[arg-type]
+                    found[i] = RailPoint(RAILS[code], float(res.landing_at[k]))
                 elif res.walls[k] >= nf and res.pocket[k] < 0:
                     # as predict_physical: a ball at rest (or on a ball) after the family's
                     # rails has its last line of travel carried on to a wall
