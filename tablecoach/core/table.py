@@ -63,14 +63,14 @@ class Cushion:
     """Ball-cushion parameters.
 
     ``restitution`` is the energetic coefficient of the Mathavan, Jackson and Parkin (2010)
-    impact model (their snooker value is 0.98; pool rails are livelier in friction and softer, so
-    the default here is picked to give a centre-speed ratio near Alciatore's typical 0.75 for a
-    perpendicular rolling hit; the physics module documents the check). ``friction`` is the
+    impact model (their snooker value is 0.98). The default 0.75 gives a centre-speed ratio of
+    0.75 for a perpendicular rolling hit in both cushion models (docs/model.md), Alciatore's
+    typical ball-rail restitution (range 0.6-0.9). ``friction`` is the
     ball-cushion sliding friction (Mathavan et al.: 0.14). ``ball_ball_restitution`` and
     ``ball_ball_friction`` are Alciatore's typical 0.95 and 0.06.
     """
 
-    restitution: float = 0.85
+    restitution: float = 0.75
     friction: float = 0.14
     ball_ball_restitution: float = 0.95
     ball_ball_friction: float = 0.06
