@@ -66,6 +66,19 @@ def test_history_family_filter_and_text(demo_dir, capsys):
     assert "streak:" in text and "days in a row" in text
 
 
+def test_history_map_is_plain_ascii(demo_dir, capsys):
+    assert cli.main(["history", "--player", "Ama", "--map"]) == 0
+    text = capsys.readouterr().out
+    assert "make rate by where the travelling ball started" in text
+    assert text.isascii()  # the shading reads without colour or Unicode
+    assert "%" in text.split("started:")[1]
+
+
+def test_unknown_player_matches_nothing(demo_dir, capsys):
+    assert cli.main(["history", "--player", "Nobody"]) == 0
+    assert "No attempts match these filters" in capsys.readouterr().out
+
+
 def test_demo_refuses_a_folder_with_attempts(demo_dir, capsys):
     before = len(stored(demo_dir))
     assert cli.main(["demo"]) == 2

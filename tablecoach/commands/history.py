@@ -153,6 +153,9 @@ def register(sub: Any) -> None:
     )
     add_common(p)
     add_filter_options(p)
+    p.add_argument(
+        "--map", action="store_true", help="also draw make rates by zone on the table (ASCII)"
+    )
     p.add_argument("--json", action="store_true", help="print JSON instead of text")
     p.set_defaults(func=run)
 
@@ -183,7 +186,10 @@ def text_report(h: Any, f: Filters, tz: tzinfo | None, tz_name: str) -> str:
     """The history as plain text."""
     lines = [f"History: {f.describe()} (days and weeks in {tz_name})"]
     if h.rate.attempts == 0:
-        lines.append("No attempts yet. Practise a few shots, or try 'tablecoach demo'.")
+        if f.describe() == "everything":
+            lines.append("No attempts yet. Practise a few shots, or try 'tablecoach demo'.")
+        else:
+            lines.append("No attempts match these filters.")
         return "\n".join(lines)
     lines.append(
         f"{h.rate.hits} of {h.rate.attempts} made: {pct(h.rate)}; "
@@ -264,4 +270,11 @@ def run(args: argparse.Namespace) -> int:
         print(json.dumps(out, indent=2))
         return 0
     print(text_report(h, f, tz, args.tz or "local time"))
+    if args.map and h.rate.attempts:
+        from ..render.heatmap import HeatMap, legend_text  # noqa: PLC0415
+
+        print()
+        print("make rate by where the travelling ball started:")
+        print(HeatMap(history.grid_from_zones(h.zones, f.family), ascii_only=True).plain(100))
+        print(legend_text())
     return 0
