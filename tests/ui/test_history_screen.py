@@ -147,6 +147,14 @@ async def test_ascii_toggle_redraws_the_map(club_store):
         assert "◆" not in text and "=" in text
 
 
+async def test_a_player_without_attempts_sees_everyone(club_store):
+    app = HistoryApp(club_store, "newcomer")
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        assert app.screen.filters.player is None
+        assert shown(app) == club_store.count_attempts()
+
+
 async def test_reachable_from_the_practice_screen_and_back(make_app):
     from tablecoach.ui.screens.practice import PracticeScreen
 

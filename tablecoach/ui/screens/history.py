@@ -141,6 +141,15 @@ class HistoryScreen(Screen[None]):
 
     def on_mount(self) -> None:
         self._reset_sessions()
+        player = self.filters.player
+        if player is not None:
+            try:
+                if not self.store.count_attempts(player=player) and self.store.count_attempts():
+                    # a new player (or the demo club): show everyone rather than an empty page
+                    self.filters = replace(self.filters, player=None)
+                    self.notify(f"no attempts by {player} yet: showing everyone (p to pick)")
+            except ValueError:
+                pass
         self.reload()
 
     def _reset_sessions(self) -> DataTable[Any]:
