@@ -29,7 +29,7 @@ BASE = builtin_table("9ft")
 TRUE_PARAMS = {
     "cloth.mu_slide": 0.25,
     "cloth.mu_roll": 0.012,
-    "cushion.restitution": 0.92,
+    "cushion.restitution": 0.85,
     "cushion.friction": 0.20,
 }
 TRUE_SPEED = {"slow": 0.80, "medium": 1.65, "fast": 2.80, "power": 3.9}

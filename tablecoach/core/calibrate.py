@@ -1114,3 +1114,58 @@ def calibrate_from_store(
     if save:
         store.save_calibration(table_name, who, cal.as_dict(), cal.attempts)
     return cal
+
+
+def landing_errors(
+    table: TableSpec,
+    attempts: Sequence[Attempt],
+    model: str = "physical",
+    calibration: Calibration | None = None,
+) -> list[float | None]:
+    """landing_error for many attempts at once (the physical model runs them in batches).
+
+    With a calibration, each logged speed is taken as the player's calibrated speed of its
+    preset (Calibration.actual_speed); ``table`` should then be the calibrated table.
+    """
+    out: list[float | None] = [None] * len(attempts)
+    keep: list[int] = []
+    data: list[_Shot] = []
+    for k, a in enumerate(attempts):
+        got = _prepare(table, [a])
+        if got:
+            keep.append(k)
+            data.append(got[0])
+    if not data:
+        return out
+    scale = {p: 1.0 for p in shots.SPEED_PRESETS}
+    if calibration is not None:
+        scale = {p: calibration.speed(p) / shots.SPEED_PRESETS[p] for p in shots.SPEED_PRESETS}
+    lands: list[RailPoint | None] | None = None
+    if model == "physical":
+        groups: dict[tuple[str, tuple[str, ...]], list[int]] = {}
+        for i, d in enumerate(data):
+            groups.setdefault((d.setup.family.travel, d.setup.family.rails), []).append(i)
+        batch = _Batch(data, [np.array(v, dtype=int) for v in groups.values()])
+        try:
+            lands = batch.landings(table, list(range(len(data))), scale)
+        except (ImportError, AttributeError, TypeError, IndexError):
+            lands = None
+    if lands is None:
+        lands = []
+        for d in data:
+            st = shots.Stroke(d.logged * scale[d.preset], d.english, d.follow)
+            try:
+                lands.append(shots.predict(table, d.setup, d.reading, st, model).landing)
+            except ValueError:
+                lands.append(None)
+    for k, d, land in zip(keep, data, lands, strict=True):
+        if land is None:
+            continue
+        e = shots.landing_distance(table, d.observed, land)
+        rail = d.setup.family.rails[0]
+        ideal = shots.trace_ideal(
+            table, d.setup, shots.direction_of(table, d.setup.start, rail, d.reading)
+        )
+        s = travel_sign(table, ideal, d.setup.start)
+        out[k] = e if s == 0.0 else e * s
+    return out

@@ -206,25 +206,28 @@ def zone_stats(
     table: TableSpec | None = None,
     model: str = "ideal",
     landing_error: LandingError | None = None,
+    calibration: Any = None,
 ) -> dict[Zone, ZoneStats]:
     """Made, tried, the shrunk posterior and the landing bias of every zone with attempts.
 
-    The landing bias is the mean of ``landing_error(attempt)`` over the zone (default: the
-    signed long/short error of the observed landing against the landing the model predicts
-    for the aim used, on ``table`` or else the attempt's built-in table by name; see
-    calibrate.landing_error).
+    The landing bias is the mean signed long/short error (diamonds) of the observed landing
+    against the landing the model predicts for the aim used (calibrate.landing_errors), on
+    ``table`` (with ``calibration``'s speeds if given), or else on each attempt's built-in
+    table by name; attempts on a table it cannot find get no bias. ``landing_error`` replaces
+    that with a function of one attempt.
     """
     rates = family_rates(attempts)
-    if landing_error is None:
-        landing_error = _default_landing_error(table, model)
+    if landing_error is not None:
+        errors = [landing_error(a) for a in attempts]
+    else:
+        errors = _batch_errors(attempts, table, model, calibration)
     made: dict[Zone, int] = {}
     tried: dict[Zone, int] = {}
     errs: dict[Zone, list[float]] = {}
-    for a in attempts:
+    for a, e in zip(attempts, errors, strict=True):
         z = zone_of_attempt(a)
         tried[z] = tried.get(z, 0) + 1
         made[z] = made.get(z, 0) + int(a.hit)
-        e = landing_error(a)
         if e is not None and math.isfinite(e):
             errs.setdefault(z, []).append(e)
     out: dict[Zone, ZoneStats] = {}
@@ -235,19 +238,26 @@ def zone_stats(
     return out
 
 
-def _default_landing_error(table: TableSpec | None, model: str) -> LandingError:
-    def err(a: Attempt) -> float | None:
-        t = table if table is not None else BUILTIN_TABLES.get(a.table)
+def _batch_errors(
+    attempts: Sequence[Attempt], table: TableSpec | None, model: str, calibration: Any
+) -> list[float | None]:
+    from .calibrate import landing_errors  # noqa: PLC0415  (calibrate imports this module)
+
+    out: list[float | None] = [None] * len(attempts)
+    by_table: dict[str, list[int]] = {}
+    for k, a in enumerate(attempts):
+        by_table.setdefault(a.table, []).append(k)
+    for name, idx in by_table.items():
+        t = table if table is not None else BUILTIN_TABLES.get(name)
         if t is None:
-            return None
-        from .calibrate import landing_error  # noqa: PLC0415  (calibrate imports this module)
-
+            continue
         try:
-            return landing_error(t, a, model=model)
+            errs = landing_errors(t, [attempts[k] for k in idx], model, calibration)
         except ValueError:
-            return None
-
-    return err
+            continue
+        for k, e in zip(idx, errs, strict=True):
+            out[k] = e
+    return out
 
 
 # ----- the scheduler ----------------------------------------------------------------------------

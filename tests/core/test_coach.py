@@ -252,3 +252,25 @@ def test_scheduler_with_a_builtin_drill() -> None:
     fams = {sch.next().zone.family for _ in range(12)}
     assert len(fams) >= 2
     assert fams <= {item.family.name for item in pack.items}
+
+
+def test_zone_stats_default_bias_is_long_or_short_on_the_ideal_model() -> None:
+    # A one-rail kick logged 0.25 diamond past the mirror landing (law of reflection) is long.
+    from dataclasses import replace
+
+    s = shots.make_setup(T9, KICK, T9.to_metres(1, 1), None, None, T9.to_metres(3, 1))
+    aim = shots.solve_ideal(T9, s)
+    at = T9.along_to_diamonds(aim.landing.rail, aim.landing.at)
+    reading = T9.along_to_diamonds("right", aim.reading)
+    base = _attempt("one-rail-kick", (1.0, 1.0), True)
+    a = replace(
+        base,
+        shot=shots.record_of(T9, s),
+        aim_given=reading,
+        aim_used=reading,
+        landing_rail=aim.landing.rail,
+        landing_at=at + 0.25,
+    )
+    st = coach.zone_stats([a, a])
+    (z,) = st
+    assert st[z].bias == pytest.approx(0.25, abs=1e-4) and st[z].bias_n == 2
