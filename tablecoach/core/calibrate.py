@@ -487,6 +487,8 @@ class _Batch:
         self.groups = groups
         self.where = {int(i): (g, k) for g, rows in enumerate(groups) for k, i in enumerate(rows)}
         self._pr: dict[tuple[Any, ...], Any] = {}
+        self.stops: dict[int, tuple[float, float]] = {}
+        """Where the ball came to rest, for shots of the last run that stopped short."""
 
     @classmethod
     def make(cls, table: TableSpec, data: list[_Shot]) -> _Batch | None:
@@ -567,8 +569,11 @@ class _Batch:
             for k, i in enumerate(idx):
                 code = int(res.landing_rail[k])
                 found[i] = None
+                self.stops.pop(i, None)
                 if not bool(ln.ok[k]):
                     continue
+                if code < 0 and res.pocket[k] < 0 and np.all(np.isfinite(res.stop_pos[k])):
+                    self.stops[i] = (float(res.stop_pos[k, 0]), float(res.stop_pos[k, 1]))
                 if code >= 0:
                     found[i] = RailPoint(RAILS[code], float(res.landing_at[k]))
                 elif res.walls[k] >= nf and res.pocket[k] < 0:
@@ -596,6 +601,7 @@ class _Problem:
         self.data = data
         self.predictor = predictor
         self.batch = batch
+        self.signs: dict[int, float] = {}
         self.presets = sorted({d.preset for d in data}, key=list(shots.SPEED_PRESETS).index)
         self.names = [*TABLE_PARAMS, *(f"speed.{p}" for p in self.presets)]
         self.centre = np.array(
@@ -655,11 +661,33 @@ class _Problem:
         lands = self.landings(u, rows)
         r = np.empty(len(rows))
         for k, (i, land) in enumerate(zip(rows, lands, strict=True)):
-            if land is None:
-                r[k] = NO_LANDING
-            else:
+            stop = self.batch.stops.get(i) if self.batch is not None else None
+            if land is not None:
                 r[k] = shots.landing_distance(self.table, self.data[i].observed, land)
+            elif stop is not None:
+                r[k] = self._short_by(i, stop)
+            else:
+                r[k] = NO_LANDING
         return r
+
+    def _short_by(self, i: int, stop: tuple[float, float]) -> float:
+        """The residual of a shot whose modelled ball stops before the landing rail: how far
+        (diamonds) its rest point lies from the logged landing, counted the way the ball was
+        going. It meets the landing residual where the ball just reaches the rail, so a speed
+        that is too low still has a slope pointing up (a flat penalty would have none)."""
+        d = self.data[i]
+        obs = _contact_xy(self.table, d.observed)
+        gap = math.hypot(
+            (obs[0] - stop[0]) / self.table.diamond, (obs[1] - stop[1]) / self.table.diamond_across
+        )
+        sign = self.signs.get(i)
+        if sign is None:
+            rail = d.setup.family.rails[0]
+            ideal = shots.trace_ideal(
+                self.table, d.setup, shots.direction_of(self.table, d.setup.start, rail, d.reading)
+            )
+            sign = self.signs[i] = travel_sign(self.table, ideal, d.setup.start) or 1.0
+        return min(gap, NO_LANDING) * sign
 
     def jacobian(self, u: np.ndarray, r: np.ndarray, step: float = 0.05) -> np.ndarray:
         """Forward differences in u (steps of 0.05 prior sd); a speed only moves its own shots.
