@@ -60,11 +60,11 @@ def bench_solve(reps: int) -> None:
         "one rail": [
             (_setup("one-rail-kick", (2, 1), None, (5, 1.5)), 2.55),
             (_setup("one-rail-kick", (1.5, 2), None, (5.5, 1)), 1.4),
-            (_setup("cross-side-bank", (2, 1.5), (3, 2.5)), 2.55),
+            (_setup("cross-side-bank", (2, 1.5), (3, 2.5)), 3.2),
         ],
         "three rails": [
-            (_setup("three-rail-kick", (3, 3), None, (3, 1)), 2.55),
-            (_setup("three-rail-kick", (2, 3), None, (2.5, 1.5)), 2.55),
+            (_setup("three-rail-kick", (3, 3), None, (3, 1)), 3.2),
+            (_setup("three-rail-kick", (2, 3), None, (2.5, 1.5)), 3.2),
             (_setup("three-rail-kick", (3, 3), None, (3, 1)), 3.85),
         ],
     }

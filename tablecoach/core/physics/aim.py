@@ -687,9 +687,20 @@ def solve_physical(
             f"on the mirror line the ball {why}{hint}"
         )
     fast = _read_off(m, table, pr, sol)
+    edge_readings: np.ndarray | None = None
     if fast is not None:
         tr, landing_fast = fast
-        ln = _launch(m, table, pr, pi1, np.array([sol.reading]), stroke)
+        # the root and the two window ends in one launch (rows are independent)
+        assert sol.lo is not None and sol.hi is not None
+        ln = _launch(
+            m,
+            table,
+            pr,
+            np.zeros(3, dtype=np.int64),
+            np.array([sol.reading, sol.lo, sol.hi]),
+            stroke,
+        )
+        edge_readings = ln.reading[1:]
     else:
         res, ln = _run(m, table, pr, pi1, np.array([sol.reading]), stroke, record=True)
         tr, why = _trace_of(m, table, pr, res, ln)
@@ -707,8 +718,10 @@ def solve_physical(
             raise ShotError(f"no clean path under the physical model: the best line {why}")
     reading = float(ln.reading[0])
     assert sol.lo is not None and sol.hi is not None
-    edge = _launch(m, table, pr, np.zeros(2, dtype=np.int64), np.array([sol.lo, sol.hi]), stroke)
-    lo_r, hi_r = (float(x) for x in edge.reading) if pr.bank else (sol.lo, sol.hi)
+    if pr.bank and edge_readings is None:
+        lohi = np.array([sol.lo, sol.hi])
+        edge_readings = _launch(m, table, pr, np.zeros(2, dtype=np.int64), lohi, stroke).reading
+    lo_r, hi_r = (float(x) for x in edge_readings) if pr.bank else (sol.lo, sol.hi)
     unit = table.rail_unit(rail)
     minus = min(max(reading - lo_r, 0.0), MARGIN_CAP * unit)
     plus = min(max(hi_r - reading, 0.0), MARGIN_CAP * unit)

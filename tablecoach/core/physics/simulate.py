@@ -97,6 +97,22 @@ def _segment_table(table: TableSpec) -> tuple[np.ndarray, np.ndarray]:
     return lo, hi
 
 
+_CACHE: list[tuple[TableSpec, tuple]] = []
+"""Per-table constants of the last few tables, keyed by identity (hashing a spec is slow)."""
+_CACHE_SIZE = 8
+
+
+def _table_arrays(table: TableSpec) -> tuple:
+    """Pocket arrays and cushion stretches of a table, computed once per table object."""
+    for t, val in _CACHE:
+        if t is table:
+            return val
+    val = (_pocket_arrays(table), _segment_table(table))
+    _CACHE.insert(0, (table, val))
+    del _CACHE[_CACHE_SIZE:]
+    return val
+
+
 def _on_cushion(
     seg: tuple[np.ndarray, np.ndarray], rail: np.ndarray, along: np.ndarray
 ) -> np.ndarray:
@@ -138,8 +154,7 @@ def simulate(
     R = m.radius
     lo = np.array([R, R])
     hi = np.array([table.length - R, table.width - R])
-    ja, jb, paim, member = _pocket_arrays(table)
-    seg_tab = _segment_table(table)
+    (ja, jb, paim, member), seg_tab = _table_arrays(table)
     r = np.array(r0, dtype=float)
     v = np.array(v0, dtype=float)
     w = np.array(w0, dtype=float)
@@ -471,26 +486,33 @@ def sample_path(
 
     With ``until_ball`` the path stops where the row met its first ball (as the ideal trace).
     """
-    pts: list[tuple[float, float]] = []
     last = int(res.ball_event[row]) if until_ball and res.ball[row] >= 0 else len(res.segments)
+    rs, vs, ws, phs, tss = [], [], [], [], []
     for seg in res.segments[: last + 1]:
         hit = np.flatnonzero(seg.live == row)
         if hit.size == 0:
             continue
         j = int(hit[0])
         T = float(seg.dt[j])
-        sl = slice(j, j + 1)
         ts = np.linspace(0.0, T, per_segment + 1) if T > 0 else np.zeros(1)
-        nseg = ts.size
+        rs.append(seg.r[j])
+        vs.append(seg.v[j])
+        ws.append(seg.w[j])
+        phs.append(seg.phase[j])
+        tss.append(ts)
+    pts: list[tuple[float, float]] = []
+    if tss:
+        # every stretch of the row in one call (evolve works row by row)
+        counts = [t.size for t in tss]
         rr, _, _ = evolve(
             m,
-            np.repeat(seg.r[sl], nseg, axis=0),
-            np.repeat(seg.v[sl], nseg, axis=0),
-            np.repeat(seg.w[sl], nseg, axis=0),
-            np.repeat(seg.phase[sl], nseg),
-            ts,
+            np.repeat(np.array(rs), counts, axis=0),
+            np.repeat(np.array(vs), counts, axis=0),
+            np.repeat(np.array(ws), counts, axis=0),
+            np.repeat(np.array(phs), counts),
+            np.concatenate(tss),
         )
-        pts.extend((float(x), float(y)) for x, y in rr)
+        pts = [(x, y) for x, y in rr.tolist()]
     # drop repeats
     out: list[tuple[float, float]] = []
     for p in pts:
