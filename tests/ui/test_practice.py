@@ -462,7 +462,7 @@ async def test_physical_model_by_default(make_app):
         aim = screen.aim
         assert aim is not None
         if aim.model != screen.session.model:
-            assert "found no path" in text_of(app, "#notes")
+            assert "finds no path" in text_of(app, "#notes")
         await pilot.press("h")
         await settle(pilot)
         [a] = stored(app)

@@ -9,7 +9,7 @@ from typing import Any
 from textual import work
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.containers import Horizontal, Vertical
 from textual.screen import Screen
 from textual.widgets import Footer
 
@@ -93,7 +93,7 @@ class PracticeScreen(Screen[None]):
             with Vertical(id="left"):
                 yield TablePanel(self.ascii_only, id="table-panel")
                 yield NotesPanel(id="notes")
-            with VerticalScroll(id="side"):
+            with Vertical(id="side"):
                 yield InfoCard(id="card")
         yield SessionBar(id="session")
         yield MessageLine(id="message")
@@ -116,12 +116,13 @@ class PracticeScreen(Screen[None]):
                 s.table, pick.setup if pick else None, self.aim, self.conv, self._table_note()
             )
         self.drawn = None
+        # fixed-size panels: their text changes without a new layout of the screen
         self.query_one(InfoCard).update(
-            card(s.table, pick, s.stroke, self.aim, self.conv, self.error)
+            card(s.table, pick, s.stroke, self.aim, self.conv, self.error), layout=False
         )
         pinned = self._pinned_text()
         self.query_one(NotesPanel).update(
-            notes(s.table, pick, self.aim, self.status, pinned, self.model_note)
+            notes(s.table, pick, self.aim, self.status, pinned, self.model_note), layout=False
         )
         self.query_one(SessionBar).update(
             session_line(s.stats(), s.earlier_stats(), s.table.name, s.player), layout=False
@@ -264,8 +265,8 @@ class PracticeScreen(Screen[None]):
                 aim = shots.solve_aim(table, setup, stroke, "ideal")
             except ValueError:
                 return None, f"no aim: {exc}"
-            reason = str(exc).split(":")[0]
-            return aim, f"the {model} model found no path here ({reason}); showing the ideal aim"
+            reason = str(exc).split(":")[0].replace(f" under the {model} model", "")
+            return aim, f"the {model} model finds no path here ({reason}): ideal aim shown"
 
     def _conv_now(self, token: int, setup: shots.Setup, stroke: Stroke, model: str) -> None:
         try:
