@@ -340,7 +340,10 @@ class Calibration:
         out: list[str] = []
         head = f"Calibrated from {self.attempts} attempts"
         if self.outliers:
-            head += f" ({self.outliers} set aside as likely mislogged)"
+            head += (
+                f" ({self.outliers} far from the model, mislogged or near a pocket, "
+                "count for little)"
+            )
         if math.isfinite(self.rms_after) and math.isfinite(self.rms_before):
             head += (
                 f": landings predicted to {self.rms_after_inliers:.2f} diamond RMS, "
