@@ -24,6 +24,10 @@ from ..widgets.landing import LandingPrompt
 from ..widgets.session import REDRAWS, Session
 from ..widgets.table_panel import TablePanel, draw, picture_of
 
+SOLVED_KEPT = 16
+"""How many solved aims the screen keeps, so an undone setup or a speed cycled back to is shown
+without solving it again."""
+
 SOLVING_SHOWN_AFTER = 0.08
 """Seconds an aim solve may take before the screen says it is working on it."""
 
@@ -85,6 +89,7 @@ class PracticeScreen(Screen[None]):
         self.model_note = ""
         self.drawn: tuple[Any, Any] | None = None
         self.refresh_dealer = False
+        self.solved: dict[tuple[Any, Stroke], tuple[Aim, Convergence | None, str]] = {}
         self.opening = "h hit, m miss, ? help: each attempt is saved the moment you log it"
 
     # ----- layout ----------------------------------------------------------------------------
@@ -198,6 +203,7 @@ class PracticeScreen(Screen[None]):
         if msg.aim is None:
             self.say(msg.note + "; n deals another setup, s tries another speed", True)
         self.model_note = msg.note if msg.aim is not None else ""
+        self._remember()
         self._refresh()
         # background work starts once the new setup is on the screen, so it never delays it
         self.call_after_refresh(self._after_shown, self.token, msg.aim)
@@ -215,9 +221,30 @@ class PracticeScreen(Screen[None]):
         self.error = ""
         pick = self.session.pick
         assert pick is not None
+        known = self.solved.get(self._key())
+        if known is not None:  # shown before in this session (undo, or speeds cycled round)
+            self.aim, self.conv, self.model_note = known
+            self._refresh()
+            self.call_after_refresh(self._after_solved, self.token, self.aim, self.conv is None)
+            return
         self._solve_worker(self.token, pick.setup, self.session.stroke, self.session.model)
         # a quick solve is shown in one frame; a slow one shows "working out the aim" meanwhile
         self.set_timer(SOLVING_SHOWN_AFTER, partial(self._still_solving, self.token))
+
+    def _key(self) -> tuple[Any, Stroke] | None:
+        """The shown setup and stroke, as the key of the solved-aim memory."""
+        pick = self.session.pick
+        if pick is None:
+            return None
+        return (shots.record_of(self.session.table, pick.setup), self.session.stroke)
+
+    def _remember(self) -> None:
+        key = self._key()
+        if key is None or self.aim is None:
+            return
+        self.solved[key] = (self.aim, self.conv, self.model_note)
+        while len(self.solved) > SOLVED_KEPT:
+            self.solved.pop(next(iter(self.solved)))
 
     def _still_solving(self, token: int) -> None:
         if token == self.token and self.aim is None:
@@ -292,11 +319,12 @@ class PracticeScreen(Screen[None]):
             self.say(message.error + "; n deals another setup, s tries another speed", True)
         self.model_note = message.note if message.aim is not None else ""
         if message.aim is not None:
+            self._remember()
             self.call_after_refresh(self._after_solved, message.token, message.aim)
         self._refresh()
 
-    def _after_solved(self, token: int, aim: Aim) -> None:
-        if token == self.token:
+    def _after_solved(self, token: int, aim: Aim, need_conv: bool = True) -> None:
+        if token == self.token and need_conv:
             self._conv_worker(token, aim.setup, aim.stroke, aim.model)
         if self.refresh_dealer:
             self.refresh_dealer = False
@@ -306,6 +334,7 @@ class PracticeScreen(Screen[None]):
         if message.token != self.token:
             return
         self.conv = message.convergence
+        self._remember()
         self._refresh()
 
     # ----- keys --------------------------------------------------------------------------------
