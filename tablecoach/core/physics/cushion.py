@@ -42,7 +42,6 @@ from __future__ import annotations
 
 import numpy as np
 
-from .motion import dot2
 from .params import BallModel
 
 
@@ -138,10 +137,21 @@ def impulse_impact(m: BallModel, v: np.ndarray, w: np.ndarray) -> tuple[np.ndarr
     n = v.shape[0]
     if n == 0:
         return v.copy(), w.copy()
+    out = _impulse_columns(m, v[:, 0], v[:, 1], w[:, 0], w[:, 1], w[:, 2])
+    return np.stack(out[:2], axis=1), np.stack(out[2:], axis=1)
+
+
+def _impulse_columns(
+    m: BallModel,
+    vx: np.ndarray,
+    vy: np.ndarray,
+    wx: np.ndarray,
+    wy: np.ndarray,
+    wz: np.ndarray,
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """impulse_impact on the state's columns (vx, vy, wx, wy, wz), cushion frame."""
     R = m.radius
     s, c = np.sin(m.theta), np.cos(m.theta)
-    vx, vy = v[:, 0], v[:, 1]
-    wx, wy, wz = w[:, 0], w[:, 1], w[:, 2]
     sx = vx + wy * R * s - wz * R * c
     sy = -vy * s + wx * R
     cx = vx - wy * R
@@ -150,35 +160,40 @@ def impulse_impact(m: BallModel, v: np.ndarray, w: np.ndarray) -> tuple[np.ndarr
     c_mag = np.sqrt(cx * cx + cy * cy)
     has_s = s_mag > 1e-12
     has_c = c_mag > 1e-12
-    cp = np.where(has_s, sx / np.where(has_s, s_mag, 1.0), 1.0)
-    sp = np.where(has_s, sy / np.where(has_s, s_mag, 1.0), 0.0)
-    cpt = np.where(has_c, cx / np.where(has_c, c_mag, 1.0), 1.0)
-    spt = np.where(has_c, cy / np.where(has_c, c_mag, 1.0), 0.0)
+    s_div = np.where(has_s, s_mag, 1.0)
+    c_div = np.where(has_c, c_mag, 1.0)
+    cp = np.where(has_s, sx / s_div, 1.0)
+    sp = np.where(has_s, sy / s_div, 0.0)
+    cpt = np.where(has_c, cx / c_div, 1.0)
+    spt = np.where(has_c, cy / c_div, 0.0)
     mw = np.where(has_s, m.mu_w, 0.0)
     ms = np.where(has_c, m.mu_s, 0.0)
     inv_m = 1.0 / m.mass
     kw = 2.5 / (m.mass * R)
+    e1 = 1.0 + m.e_cushion
 
     def rates(mw: np.ndarray, ms: np.ndarray) -> tuple[np.ndarray, ...]:
         k = s + mw * sp * c
-        dvx = -inv_m * (mw * cp + ms * cpt * k)
-        dvy = -inv_m * (c - mw * s * sp + ms * spt * k)
-        dwx = -kw * (mw * sp + ms * spt * k)
-        dwy = -kw * (mw * cp * s - ms * cpt * k)
+        mscpt = ms * cpt * k
+        msspt = ms * spt * k
+        dvx = -inv_m * (mw * cp + mscpt)
+        dvy = -inv_m * (c - mw * s * sp + msspt)
+        dwx = -kw * (mw * sp + msspt)
+        dwy = -kw * (mw * cp * s - mscpt)
         dwz = kw * mw * cp * c
         return dvx, dvy, dwx, dwy, dwz
 
     def total(dvy: np.ndarray) -> np.ndarray:
         neg = dvy < 0
-        return np.where(neg, (1.0 + m.e_cushion) * vy / -np.where(neg, dvy, -1.0), 0.0)
+        return np.where(neg, e1 * vy / -np.where(neg, dvy, -1.0), 0.0)
 
-    for _ in range(2):
-        dvx, dvy, dwx, dwy, dwz = rates(mw, ms)
-        p_tot = total(dvy)
-        # rate of each slip along its own (frozen) direction
-        ds_w = (dvx + dwy * R * s - dwz * R * c) * cp + (-dvy * s + dwx * R) * sp
-        ds_t = (dvx - dwy * R) * cpt + (dvy + dwx * R) * spt
-        with np.errstate(divide="ignore", invalid="ignore"):
+    with np.errstate(divide="ignore", invalid="ignore"):
+        for _ in range(2):
+            dvx, dvy, dwx, dwy, dwz = rates(mw, ms)
+            p_tot = total(dvy)
+            # rate of each slip along its own (frozen) direction
+            ds_w = (dvx + dwy * R * s - dwz * R * c) * cp + (-dvy * s + dwx * R) * sp
+            ds_t = (dvx - dwy * R) * cpt + (dvy + dwx * R) * spt
             pw = np.where(ds_w < 0, s_mag / -ds_w, np.inf)
             pt = np.where(ds_t < 0, c_mag / -ds_t, np.inf)
             safe = np.maximum(p_tot, 1e-300)
@@ -186,9 +201,7 @@ def impulse_impact(m: BallModel, v: np.ndarray, w: np.ndarray) -> tuple[np.ndarr
             ms = np.where(pt < p_tot, ms * pt / safe, ms)
     dvx, dvy, dwx, dwy, dwz = rates(mw, ms)
     p = total(dvy)
-    v2 = np.stack((vx + dvx * p, vy + dvy * p), axis=1)
-    w2 = np.stack((wx + dwx * p, wy + dwy * p, wz + dwz * p), axis=1)
-    return v2, w2
+    return vx + dvx * p, vy + dvy * p, wx + dwx * p, wy + dwy * p, wz + dwz * p
 
 
 def cushion_impact(m: BallModel, v: np.ndarray, w: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -207,12 +220,23 @@ def rail_impact(
     (a rotation about z), wz is unchanged.
     """
     nx, ny = normal[:, 0], normal[:, 1]
-    ex = np.stack((ny, -nx), axis=1)
-    vc = np.stack((dot2(v, ex), dot2(v, normal)), axis=1)
-    wc = np.stack((dot2(w[:, :2], ex), dot2(w[:, :2], normal), w[:, 2]), axis=1)
-    vo, wo = cushion_impact(m, vc, wc)
-    v2 = ex * vo[:, :1] + normal * vo[:, 1:2]
+    v0, v1, w0, w1 = v[:, 0], v[:, 1], w[:, 0], w[:, 1]
+    # components along ex = (ny, -nx) and along the normal
+    cvx, cvy = v0 * ny + v1 * -nx, v0 * nx + v1 * ny
+    cwx, cwy = w0 * ny + w1 * -nx, w0 * nx + w1 * ny
+    if m.cushion == "mathavan" or v.shape[0] == 0:
+        vo, wo = cushion_impact(
+            m, np.stack((cvx, cvy), axis=1), np.stack((cwx, cwy, w[:, 2]), axis=1)
+        )
+        ovx, ovy, owx, owy, owz = vo[:, 0], vo[:, 1], wo[:, 0], wo[:, 1], wo[:, 2]
+    else:
+        ovx, ovy, owx, owy, owz = _impulse_columns(m, cvx, cvy, cwx, cwy, w[:, 2])
+    v2 = np.empty_like(v)
     w2 = np.empty_like(w)
-    w2[:, :2] = ex * wo[:, :1] + normal * wo[:, 1:2]
-    w2[:, 2] = wo[:, 2]
+    mnx = -nx
+    v2[:, 0] = ny * ovx + nx * ovy
+    v2[:, 1] = mnx * ovx + ny * ovy
+    w2[:, 0] = ny * owx + nx * owy
+    w2[:, 1] = mnx * owx + ny * owy
+    w2[:, 2] = owz
     return v2, w2

@@ -184,6 +184,7 @@ def simulate(
     sgn = np.array([1.0, -1.0, 1.0, -1.0])
     ax4 = np.array([0, 0, 1, 1])
     wall4 = np.array([lo[0], hi[0], lo[1], hi[1]])
+    bvalid = ~np.isnan(balls[:, :, 0])
     events = 0
     sp0 = np.hypot(v[:, 0], v[:, 1])
     last_dir[sp0 > 0] = v[sp0 > 0] / sp0[sp0 > 0, None]
@@ -212,13 +213,10 @@ def simulate(
         # still balls: one quartic per ball
         t_b = np.full(idx.size, np.inf)
         b_id = np.full(idx.size, -1, dtype=np.int64)
-        if k:
+        wl = walls[idx]
+        act = bvalid[idx] & (wl[:, None] >= ball_from[idx]) & (ball[idx, None] < 0) if k else None
+        if act is not None and act.any():
             bb = balls[idx]
-            act = (
-                ~np.isnan(bb[:, :, 0])
-                & (walls[idx, None] >= ball_from[idx])
-                & (ball[idx, None] < 0)
-            )
             # prefilter: a ball farther from the line of travel than the path can bend, or
             # beyond the distance the row can cover before its next wall or phase end, is
             # never met in this stretch
@@ -259,7 +257,7 @@ def simulate(
         is_wall = ~is_ball & np.isfinite(t_w) & (t_w <= dt)
         is_end = ~is_ball & ~is_wall
         # closest approach of the target point while after the family's rails
-        after = (walls[idx] == nf) & (pocket[idx] < 0)
+        after = wl == nf  # live rows have not entered a pocket
         if after.any():
             if any_lean:  # a lean row stops at the ball: measure on to its next event
                 lb = is_ball & lean_rows[idx]
