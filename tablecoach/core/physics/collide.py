@@ -44,18 +44,31 @@ def strike(
     R = m.radius
     vn = np.sum(v * n, axis=1)
     jn = 0.5 * (1.0 + m.e_ball) * np.maximum(vn, 0.0)  # per unit mass
-    n3 = np.concatenate((n, np.zeros((n.shape[0], 1))), axis=1)
-    v3 = np.concatenate((v, np.zeros((v.shape[0], 1))), axis=1)
-    u = v3 + np.cross(w, R * n3)
-    ut = u - np.sum(u * n3, axis=1)[:, None] * n3
-    us = np.linalg.norm(ut, axis=1)
+    nx, ny = n[:, 0], n[:, 1]
+    w0, w1, w2 = w[:, 0], w[:, 1], w[:, 2]
+    # u = v + w x (R n), written out (n and v lie in the cloth's plane)
+    rnx, rny = R * nx, R * ny
+    u0 = v[:, 0] + -(w2 * rny)
+    u1 = v[:, 1] + w2 * rnx
+    u2 = w0 * rny - w1 * rnx
+    un = u0 * nx + u1 * ny
+    ut0, ut1, ut2 = u0 - un * nx, u1 - un * ny, u2
+    us = np.sqrt(ut0 * ut0 + ut1 * ut1 + ut2 * ut2)
     jt = np.minimum(ball_friction(m, us) * jn, us / 7.0)
+    big = us > 1e-12
     with np.errstate(divide="ignore", invalid="ignore"):
-        that = np.where(us[:, None] > 1e-12, ut / us[:, None], 0.0)
-    jt3 = that * jt[:, None]
-    v_obj = jn[:, None] * n + jt3[:, :2]
+        j0 = np.where(big, ut0 / us, 0.0) * jt
+        j1 = np.where(big, ut1 / us, 0.0) * jt
+        j2 = np.where(big, ut2 / us, 0.0) * jt
+    v_obj = np.empty_like(v)
+    v_obj[:, 0] = jn * nx + j0
+    v_obj[:, 1] = jn * ny + j1
     # object spin from the friction impulse at its contact point -R n: (-R n) x Jt / I
-    w_obj = np.cross(-R * n3, jt3) * (m.mass / m.inertia)
+    k = m.mass / m.inertia
+    w_obj = np.empty((v.shape[0], 3))
+    w_obj[:, 0] = (-rny * j2) * k
+    w_obj[:, 1] = -(-rnx * j2) * k
+    w_obj[:, 2] = (-rnx * j1 - -rny * j0) * k
     return v_obj, w_obj
 
 
