@@ -114,7 +114,8 @@ def main() -> None:
         print(
             f"{name:>15}: weak share mean {sh.mean():.1%} (min {sh.min():.1%}, "
             f"seeds >= 35 %: {np.sum(sh >= 0.35)}/{len(sh)}); both weak in 3 weakest: "
-            f"{np.sum(fd == 2)}/{len(fd)}; {np.mean(times) * 1e3:.1f} ms per choice"
+            f"{np.sum(fd == 2)}/{len(fd)}; both goals: {np.sum((sh >= 0.35) & (fd == 2))}/"
+            f"{len(sh)}; {np.mean(times) * 1e3:.1f} ms per choice"
         )
 
 
