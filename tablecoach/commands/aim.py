@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 import json
 import sys
+from dataclasses import replace
 from typing import Any
 
 from ..cli import add_common
@@ -201,9 +202,11 @@ def run(args: argparse.Namespace) -> int:
 
     table, setup, stroke, status = setup_from_args(args)
     model = available_model(args.model)
-    aim = shots.solve_aim(table, setup, stroke, model)
+    aim, note = shots.solve_playable(table, setup, stroke, model)
+    if note:
+        aim = replace(aim, notes=(note, *aim.notes))
     try:
-        conv = shots.convergence(table, setup, None, stroke, model)
+        conv = shots.convergence(table, setup, None, aim.stroke, model)
     except shots.ShotError:
         conv = None
     data = aim_to_json(table, aim, conv, status)

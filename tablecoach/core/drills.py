@@ -470,6 +470,11 @@ def _where(drill: Drill) -> str:
     return str(drill.source) if drill.source is not None else f"drill {drill.name!r}"
 
 
+MAX_BANK_CUT = math.radians(40.0)
+"""Banks are dealt with at most a 40-degree cut on the object ball: a thinner cut loses most of
+the cue ball's speed and turns the drill into a cut-shot drill (common practice, no source)."""
+
+
 def _draw(
     table: TableSpec, drill: Drill, k: int, rng: np.random.Generator, tries: int = MAX_TRIES
 ) -> Dealt:
@@ -497,6 +502,8 @@ def _draw(
             )
             aim = solve_aim(table, setup, stroke, "ideal")
         except (ShotError, TableError):
+            continue
+        if aim.cut_angle is not None and aim.cut_angle > MAX_BANK_CUT:
             continue
         return Dealt(setup, stroke, k, label_of(item, si), aim)
     raise DrillError(

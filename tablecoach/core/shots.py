@@ -737,6 +737,46 @@ def solve_aim(
     raise ShotError(f"unknown model {model!r}: use one of {', '.join(MODELS)}")
 
 
+class StopsShort(ShotError):
+    """At this speed the travelling ball stops before it reaches the target."""
+
+
+def _stops_short(exc: ShotError) -> bool:
+    return isinstance(exc, StopsShort) or "try a firmer stroke" in str(exc)
+
+
+def solve_playable(
+    table: TableSpec, setup: Setup, stroke: Stroke | None = None, model: str = "ideal"
+) -> tuple[Aim, str]:
+    """Solve at the asked speed; if the ball would stop short, at the next firmer preset.
+
+    Returns the aim (its ``stroke`` is the speed to play) and a note for the player, empty when
+    the asked speed works. Raises the first error when no firmer preset reaches either, or when
+    the failure is not one of pace.
+    """
+    stroke = stroke or Stroke()
+    try:
+        return solve_aim(table, setup, stroke, model), ""
+    except ShotError as exc:
+        if not _stops_short(exc):
+            raise
+        first = exc
+    for name, v in SPEED_PRESETS.items():
+        if v <= stroke.speed:
+            continue
+        try:
+            aim = solve_aim(table, setup, Stroke(v, stroke.english, stroke.follow), model)
+        except ShotError as exc:
+            if _stops_short(exc):
+                continue
+            raise first from None
+        note = f"at {speed_name(stroke.speed)} pace the ball stops short: play it {name}"
+        if name == "power":
+            note += " (keep the line of the shot clear of people)"
+        return aim, note
+    raise first
+
+
 def predict(
     table: TableSpec,
     setup: Setup,

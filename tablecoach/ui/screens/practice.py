@@ -284,7 +284,7 @@ class PracticeScreen(Screen[None]):
         """The aim under the session's model, else the ideal aim with a note (worker thread)."""
         table = self.session.table
         try:
-            return shots.solve_aim(table, setup, stroke, model), ""
+            return shots.solve_playable(table, setup, stroke, model)
         except ValueError as exc:
             if model == "ideal":
                 return None, f"no aim: {exc}"
