@@ -53,7 +53,7 @@ UNICODE = Glyphs(
     obj="●",
     target="◉",
     convergence="✚",
-    arrows={"up": "▲", "down": "▼", "left": "◀", "right": "▶"},
+    arrows={"up": "↑", "down": "↓", "left": "←", "right": "→"},
     aim={"left": "▼", "right": "▲", "head": "▶", "foot": "◀"},
 )
 
@@ -70,7 +70,7 @@ ASCII = Glyphs(
     obj="O",
     target="T",
     convergence="X",
-    arrows={"up": "^", "down": "v", "left": "<", "right": ">"},
+    arrows={"up": "X", "down": "X", "left": "X", "right": "X"},  # at the edge toward it
     aim={"left": "v", "right": "^", "head": ">", "foot": "<"},
 )
 
@@ -270,6 +270,10 @@ class TableView:
                 put(c, r, g.convergence, "convergence")
             else:
                 cc, rr = min(max(c, 0), W - 1), min(max(r, 0), H - 1)
+                for dc in (0, 1, -1, 2, -2):  # beside a number or marker, not over it
+                    if 0 <= cc + dc < W and grid[rr][cc + dc][0] == " ":
+                        cc += dc
+                        break
                 if r >= H:
                     arrow = g.arrows["down"]
                 elif r < 0:
@@ -330,7 +334,7 @@ def legend(ascii_only: bool = False) -> Iterable[tuple[str, str, str]]:
         (g.target, "target", "target"),
         (g.contact, "contact", "contact"),
         (g.convergence, "convergence", "convergence"),
-        (g.aim["left"], "aim", "aim"),
+        (g.aim["left"] + g.aim["right"], "aim", "aim"),
     )
 
 

@@ -55,6 +55,8 @@ def card(
             return Text(error, style="bold red")
         return Text("Dealing the next setup...", style="italic")
     setup = pick.setup
+    if aim is not None:
+        stroke = aim.stroke  # the solver may have asked for a firmer stroke
     title = Text(setup.family.title or setup.family.name, style="bold")
     title.append(f": {w.target_text(setup)}", style="")
     grid = Rows()
