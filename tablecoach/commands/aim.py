@@ -62,44 +62,33 @@ def parse_point(text: str | None, what: str) -> tuple[float, float] | None:
         raise ValueError(f"{what} {text!r} must be X,Y in diamonds, e.g. 2,1.5") from None
 
 
-def resolve_table(name: str | None, player: str | None = None) -> tuple[Any, str]:
-    """The table spec to use (built-in, stored custom, calibrated) and a status line."""
-    from ..core.table import BUILTIN_TABLES, DEFAULT_TABLE
+def resolve_table(name: str | None, player: str | None = None) -> tuple[Any, Any, str]:
+    """(table spec, calibration or None, status line) for a table name and player.
+
+    A stored custom table or a calibration needs the practice database; with none yet, the
+    built-in table, uncalibrated. With one player in the store, that player is the default.
+    """
+    from ..core import calibrate
+    from ..core.store import Store
+    from ..core.table import DEFAULT_TABLE, builtin_table
+    from ..paths import db_path
 
     name = name or DEFAULT_TABLE
-    try:
-        from ..core import calibrate  # noqa: F401
-        from ..core.store import Store
-        from ..paths import db_path
-    except ImportError:
-        if name in BUILTIN_TABLES:
-            return BUILTIN_TABLES[name], "not calibrated"
-        from ..core.table import builtin_table
-
-        return builtin_table(name), "not calibrated"
     path = db_path()
     if not path.exists():
-        from ..core.table import builtin_table
-
-        return builtin_table(name), "not calibrated yet"
+        return builtin_table(name), None, calibrate.NOT_CALIBRATED
     with Store.open(path) as store:
-        resolve = getattr(calibrate, "calibrated_table", None)
-        if resolve is None:
-            return store.get_table(name), "not calibrated"
-        if player is None:
-            players = store.players()
-            player = players[0] if len(players) == 1 else None
-        if player is None:
-            return store.get_table(name), "not calibrated (no player named)"
-        return resolve(store, name, player)
+        r = calibrate.resolve(store, name, player)
+    return r.table, r.calibration, r.status
 
 
 def setup_from_args(args: argparse.Namespace) -> tuple[Any, Any, Any, str]:
     """(table, setup, stroke, status) from the shared shot options."""
     from ..core import shots
+    from ..core.calibrate import speed_for
     from ..core.shots import ShotError
 
-    table, status = resolve_table(args.table, getattr(args, "player", None))
+    table, calibration, status = resolve_table(args.table, getattr(args, "player", None))
     if args.family:
         fam = shots.preset(args.family)
         if args.travel or args.rails:
@@ -127,7 +116,8 @@ def setup_from_args(args: argparse.Namespace) -> tuple[Any, Any, Any, str]:
         v = getattr(args, name)
         if abs(v) > 1.0:
             raise ShotError(f"--{name} {v:g} tips is more than a tip: it would miscue")
-    stroke = shots.Stroke(shots.parse_speed(args.speed), args.english, args.follow)
+    # a preset name means this player's own "medium" etc. once the table is calibrated
+    stroke = shots.Stroke(speed_for(calibration, args.speed), args.english, args.follow)
     return table, setup, stroke, status
 
 

@@ -742,7 +742,8 @@ class StopsShort(ShotError):
 
 
 def _stops_short(exc: ShotError) -> bool:
-    return isinstance(exc, StopsShort) or "try a firmer stroke" in str(exc)
+    msg = str(exc)
+    return isinstance(exc, StopsShort) or ("stops" in msg and "short of the target" in msg)
 
 
 def solve_playable(
