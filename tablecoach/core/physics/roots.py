@@ -25,11 +25,12 @@ def first_quadratic_root(
         r1 = np.where(lin, -c0 / c1, q / c2)
         r2 = np.where(lin, np.inf, c0 / q)
         ok_disc = lin | (disc >= 0)
-        best = np.full(np.broadcast(c0, t_max).shape, np.inf)
-        for root in (r1, r2):
-            good = ok_disc & (root > T_MIN) & (root <= t_max) & ((2.0 * c2 * root + c1) < 0)
-            best = np.where(good & (root < best), root, best)
-    return best
+        d2 = 2.0 * c2
+        g1 = ok_disc & (r1 > T_MIN) & (r1 <= t_max) & ((d2 * r1 + c1) < 0)
+        g2 = ok_disc & (r2 > T_MIN) & (r2 <= t_max) & ((d2 * r2 + c1) < 0)
+        # the smaller of the good roots (the same as taking them in turn)
+        best = np.minimum(np.where(g1, r1, np.inf), np.where(g2, r2, np.inf))
+    return np.asarray(best)
 
 
 def first_quartic_root(coef: np.ndarray, t_max: np.ndarray) -> np.ndarray:

@@ -213,6 +213,7 @@ def simulate(
         # still balls: one quartic per ball
         t_b = np.full(idx.size, np.inf)
         b_id = np.full(idx.size, -1, dtype=np.int64)
+        tw_end = np.minimum(t_end, t_w)
         wl = walls[idx]
         act = bvalid[idx] & (wl[:, None] >= ball_from[idx]) & (ball[idx, None] < 0) if k else None
         if act is not None and act.any():
@@ -220,32 +221,36 @@ def simulate(
             # prefilter: a ball farther from the line of travel than the path can bend, or
             # beyond the distance the row can cover before its next wall or phase end, is
             # never met in this stretch
-            T = np.minimum(t_end, t_w)
-            T = np.where(np.isfinite(T), T, 1e3)
+            T = np.where(np.isfinite(tw_end), tw_end, 1e3)
             spd = np.hypot(vi[:, 0], vi[:, 1])
             amag = np.hypot(a[:, 0], a[:, 1])
-            reach = spd * T + 0.5 * amag * T * T
+            bend = 0.5 * amag * T * T
+            reach = spd * T + bend
             dx = bb[:, :, 0] - ri[:, None, 0]
             dy = bb[:, :, 1] - ri[:, None, 1]
             gap = np.hypot(dx, dy)
-            with np.errstate(invalid="ignore", divide="ignore"):
-                ux = vi[:, 0] / np.maximum(spd, 1e-300)
-                uy = vi[:, 1] / np.maximum(spd, 1e-300)
+            spd_div = np.maximum(spd, 1e-300)
+            ux = vi[:, 0] / spd_div
+            uy = vi[:, 1] / spd_div
             perp = np.abs(ux[:, None] * dy - uy[:, None] * dx)
-            bend = (0.5 * amag * T * T)[:, None]
-            act &= (gap - 2.0 * R <= reach[:, None] + 1e-9) & (perp - 2.0 * R <= bend + 1e-9)
+            act &= (gap - 2.0 * R <= reach[:, None] + 1e-9) & (
+                perp - 2.0 * R <= bend[:, None] + 1e-9
+            )
             rows, cols = np.nonzero(act)
             if rows.size:
                 p = ri[rows] - bb[rows, cols]
                 vv, aa = vi[rows], a[rows]
-                tmax = np.minimum(t_end, t_w)[rows]
-                tb = _ball_times(p, vv, aa, tmax, 2.0 * R)
-                tbm = np.full((idx.size, k), np.inf)
-                tbm[rows, cols] = tb
-                b_id = np.argmin(tbm, axis=1)
-                t_b = tbm[np.arange(idx.size), b_id]
-                b_id = np.where(np.isfinite(t_b), b_id, -1)
-        dt = np.minimum(np.minimum(t_end, t_w), t_b)
+                tb = _ball_times(p, vv, aa, tw_end[rows], 2.0 * R)
+                if k == 1:  # one ball: no choice to make between balls
+                    t_b[rows] = tb
+                    b_id = np.where(np.isfinite(t_b), 0, -1)
+                else:
+                    tbm = np.full((idx.size, k), np.inf)
+                    tbm[rows, cols] = tb
+                    b_id = np.argmin(tbm, axis=1)
+                    t_b = tbm[np.arange(idx.size), b_id]
+                    b_id = np.where(np.isfinite(t_b), b_id, -1)
+        dt = np.minimum(tw_end, t_b)
         dt = np.where(np.isfinite(dt), dt, 0.0)
         if record:
             segments.append(Segment(ri.copy(), vi.copy(), wi.copy(), ph.copy(), dt.copy(), idx))
@@ -449,26 +454,34 @@ def _closest(
     Minimises |r(t) - c|^2 by Newton steps on (r(t) - c) . v(t) from the straight-line
     estimate, clipped to the interval; the signed distance is positive with c left of travel.
     """
-    p = r[sel] - c[sel]
-    vv, aa, T = v[sel], a[sel], dt[sel]
-    v2 = dot2(vv, vv)
-    t = np.clip(-dot2(p, vv) / np.maximum(v2, 1e-300), 0.0, T)
+    # on columns (x and y apart): the same arithmetic as row-wise dot products, fewer calls
+    if sel.all():
+        rs, cs, vs, as_, T = r, c, v, a, dt
+    else:
+        rs, cs, vs, as_, T = r[sel], c[sel], v[sel], a[sel], dt[sel]
+    px, py = rs[:, 0] - cs[:, 0], rs[:, 1] - cs[:, 1]
+    vx, vy, ax, ay = vs[:, 0], vs[:, 1], as_[:, 0], as_[:, 1]
+    hx, hy = 0.5 * ax, 0.5 * ay
+    v2 = vx * vx + vy * vy
+    t = np.clip(-(px * vx + py * vy) / np.maximum(v2, 1e-300), 0.0, T)
     for _ in range(3):
-        q = p + vv * t[:, None] + 0.5 * aa * (t * t)[:, None]
-        u = vv + aa * t[:, None]
-        g = dot2(q, u)
-        dg = dot2(u, u) + dot2(q, aa)
+        tt = t * t
+        qx, qy = px + vx * t + hx * tt, py + vy * t + hy * tt
+        ux, uy = vx + ax * t, vy + ay * t
+        g = qx * ux + qy * uy
+        dg = (ux * ux + uy * uy) + (qx * ax + qy * ay)
         t = np.clip(t - g / np.where(np.abs(dg) > 1e-300, dg, 1.0), 0.0, T)
-    q = p + vv * t[:, None] + 0.5 * aa * (t * t)[:, None]
-    u = vv + aa * t[:, None]
-    dist = np.hypot(q[:, 0], q[:, 1])
-    us = np.hypot(u[:, 0], u[:, 1])
-    cross = u[:, 0] * (-q[:, 1]) - u[:, 1] * (-q[:, 0])
+    tt = t * t
+    qx, qy = px + vx * t + hx * tt, py + vy * t + hy * tt
+    ux, uy = vx + ax * t, vy + ay * t
+    dist = np.hypot(qx, qy)
+    us = np.hypot(ux, uy)
+    cross = ux * -qy - uy * -qx
     side = np.sign(cross)
     side = np.where((us > 1e-12) & (side != 0), side, 1.0)
     # a stretch that ends on a wall with the point still ahead (a pocket mouth beyond the
     # box): measure on the line of travel carried on past the wall
-    ahead = to_wall[sel] & (t >= T * (1.0 - 1e-12)) & (dot2(-q, u) > 0)
+    ahead = to_wall[sel] & (t >= T * (1.0 - 1e-12)) & ((-qx * ux + -qy * uy) > 0)
     dist = np.where(ahead, np.abs(cross) / np.maximum(us, 1e-300), dist)
     rows = idx[sel]
     better = dist < best[rows]
