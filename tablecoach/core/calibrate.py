@@ -31,16 +31,19 @@ def _contact_xy(table: TableSpec, p: RailPoint) -> tuple[float, float]:
     return (table.length - r, p.at)
 
 
-def travel_sign(table: TableSpec, trace: Trace, start: tuple[float, float]) -> float:
+def travel_sign(table: TableSpec, trace: Trace, start: tuple[float, float], n_rails: int) -> float:
     """+1 or -1: which way round the table (perimeter_position) the ball runs as it lands.
 
-    Taken from the along-rail direction of the last straight run before the landing rail (from
-    the last cushion contact, or the start if there was none). 0 for a perpendicular arrival.
+    Taken from the along-rail direction of the straight run onto the landing rail: from the
+    family's last cushion contact (contact ``n_rails``; a trace that carries on past the
+    landing has later contacts too), or the start if there was none. 0 for a perpendicular
+    arrival.
     """
     land = trace.landing
     if land is None:
         return 0.0
-    prev = _contact_xy(table, trace.contacts[-1]) if trace.contacts else start
+    k = min(n_rails, len(trace.contacts))
+    prev = _contact_xy(table, trace.contacts[k - 1]) if k > 0 else start
     axis = 0 if land.rail in ("left", "right") else 1
     along = land.at - prev[axis]
     if abs(along) < 1e-9:
@@ -96,7 +99,7 @@ def landing_error(
         return None
     d = shots.landing_distance(table, observed_landing(table, attempt), land)
     ideal = shots.trace_ideal(table, setup, shots.direction_of(table, setup.start, rail, reading))
-    s = travel_sign(table, ideal, setup.start)
+    s = travel_sign(table, ideal, setup.start, len(setup.family.rails))
     return d if s == 0.0 else d * s
 
 
@@ -689,7 +692,9 @@ class _Problem:
             ideal = shots.trace_ideal(
                 self.table, d.setup, shots.direction_of(self.table, d.setup.start, rail, d.reading)
             )
-            sign = self.signs[i] = travel_sign(self.table, ideal, d.setup.start) or 1.0
+            sign = self.signs[i] = (
+                travel_sign(self.table, ideal, d.setup.start, len(d.setup.family.rails)) or 1.0
+            )
         return min(gap, NO_LANDING) * sign
 
     def jacobian(self, u: np.ndarray, r: np.ndarray, step: float = 0.05) -> np.ndarray:
@@ -959,7 +964,7 @@ def _shifts(prob: _Problem, u: np.ndarray) -> tuple[Shift, ...]:
         if b is None or c is None:
             continue
         ideal = shots.predict(prob.table, d.setup, d.reading, None, "ideal")
-        s = travel_sign(prob.table, ideal, d.setup.start) or 1.0
+        s = travel_sign(prob.table, ideal, d.setup.start, len(d.setup.family.rails)) or 1.0
         groups.setdefault((d.family, d.preset), []).append(
             s * shots.landing_distance(prob.table, c, b)
         )
@@ -1197,6 +1202,6 @@ def landing_errors(
         ideal = shots.trace_ideal(
             table, d.setup, shots.direction_of(table, d.setup.start, rail, d.reading)
         )
-        s = travel_sign(table, ideal, d.setup.start)
+        s = travel_sign(table, ideal, d.setup.start, len(d.setup.family.rails))
         out[k] = e if s == 0.0 else e * s
     return out

@@ -386,3 +386,24 @@ def test_landing_errors_in_batch_match_one_by_one(synthetic) -> None:  # type: i
             assert e == pytest.approx(one, abs=1e-9)
     ideal = calibrate.landing_errors(T9, some, "ideal")
     assert ideal == [calibrate.landing_error(T9, a, "ideal") for a in some]
+
+
+def test_travel_sign_uses_the_run_onto_the_landing_rail():
+    # A one-rail kick aimed long misses the ball and carries on past the landing rail; the
+    # sign must come from the run from the right rail onto the left rail (toward the foot:
+    # +1 round the table), not from a later contact. Independent check: the x direction of
+    # that run, read off the ideal path (law of reflection, geometry.py).
+    from tablecoach.core import shots
+    from tablecoach.core.calibrate import travel_sign
+    from tablecoach.core.table import builtin_table
+
+    t = builtin_table("9ft")
+    s = shots.make_setup(
+        t, shots.preset("one-rail-kick"), t.to_metres(1, 1), target_ball=t.to_metres(5, 1)
+    )
+    aim = shots.solve_ideal(t, s)
+    tr = shots.predict(t, s, aim.reading + 0.3 * t.diamond)
+    assert not tr.scores and tr.landing is not None and tr.landing.rail == "left"
+    assert len(tr.contacts) > 1  # the trace went on past the landing rail
+    run_dx = tr.path[2][0] - tr.path[1][0]
+    assert travel_sign(t, tr, s.start, 1) == (1.0 if run_dx > 0 else -1.0)
