@@ -332,7 +332,7 @@ def legend(ascii_only: bool = False) -> Iterable[tuple[str, str, str]]:
         (g.cue, "cue", "cue"),
         (g.obj, "obj", "object"),
         (g.target, "target", "target"),
-        (g.contact, "contact", "contact"),
+        (g.contact, "contact", "rail"),
         (g.convergence, "convergence", "convergence"),
         (g.aim["left"] + g.aim["right"], "aim", "aim"),
     )
