@@ -291,9 +291,8 @@ def simulate(
             wi_rows = np.flatnonzero(is_wall)
             rows = idx[wi_rows]
             code = wall_code[wi_rows]
-            ax = np.where(code < 2, 0, 1)
-            wallv = np.where(code % 2 == 0, lo[ax], hi[ax])
-            r2[wi_rows, ax] = wallv  # exactly on the wall
+            ax = code >> 1  # 0 for head and foot (x), 1 for left and right (y)
+            r2[wi_rows, ax] = wall4[code]  # exactly on the wall
             along = r2[wi_rows, 1 - ax]
             cnt = walls[rows]
             slot = np.minimum(cnt, maxw - 1)

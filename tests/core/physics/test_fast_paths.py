@@ -1,0 +1,144 @@
+"""The physics code's fast paths against the plain formulas they replace."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from tablecoach.core import shots
+from tablecoach.core.physics import aim
+from tablecoach.core.physics.collide import strike
+from tablecoach.core.physics.cushion import impulse_impact, rail_impact
+from tablecoach.core.physics.motion import evolve
+from tablecoach.core.physics.params import BallModel
+from tablecoach.core.physics.roots import T_MIN, first_quadratic_root
+from tablecoach.core.physics.simulate import (
+    _pocket_arrays,
+    _segment_table,
+    _table_arrays,
+    sample_path,
+)
+from tablecoach.core.table import TableSpec, builtin_table
+
+
+def test_table_constants_are_cached_per_table_object() -> None:
+    # The cache is keyed by identity: each table gets its own pockets and cushion stretches,
+    # the same as computing them afresh, whatever order the tables come in.
+    tables = [builtin_table("9ft"), builtin_table("7ft"), builtin_table("9ft")]
+    tables.append(tables[0].with_params(nose_height_ratio=0.6))
+    for t in tables * 2:
+        (ja, jb, paim, member), (lo, hi) = _table_arrays(t)
+        ja0, jb0, paim0, member0 = _pocket_arrays(t)
+        lo0, hi0 = _segment_table(t)
+        for got, want in ((ja, ja0), (jb, jb0), (paim, paim0), (member, member0)):
+            np.testing.assert_array_equal(got, want)
+        np.testing.assert_array_equal(lo, lo0)
+        np.testing.assert_array_equal(hi, hi0)
+    # and two sizes of table really do get different pocket positions
+    assert not np.array_equal(_table_arrays(tables[0])[0][2], _table_arrays(tables[1])[0][2])
+
+
+def test_strike_matches_the_cross_product_form(model: BallModel) -> None:
+    # The contact written out component by component against numpy.cross (reference library):
+    # slip u = v + w x (R n), object spin (-R n) x Jt / I.
+    rng = np.random.default_rng(7)
+    k = 200
+    v = rng.normal(size=(k, 2))
+    w = rng.normal(size=(k, 3)) * 40.0
+    ang = rng.uniform(0.0, 2 * math.pi, k)
+    n = np.stack((np.cos(ang), np.sin(ang)), axis=1)
+    R = model.radius
+    n3 = np.concatenate((n, np.zeros((k, 1))), axis=1)
+    v3 = np.concatenate((v, np.zeros((k, 1))), axis=1)
+    u = v3 + np.cross(w, R * n3)
+    ut = u - np.sum(u * n3, axis=1)[:, None] * n3
+    us = np.linalg.norm(ut, axis=1)
+    jn = 0.5 * (1.0 + model.e_ball) * np.maximum(np.sum(v * n, axis=1), 0.0)
+    mu = (model.mu_ball / 0.06) * (9.951e-3 + 0.108 * np.exp(-1.088 * us))
+    jt = np.minimum(mu * jn, us / 7.0)
+    jt3 = ut / us[:, None] * jt[:, None]
+    want_v = jn[:, None] * n + jt3[:, :2]
+    want_w = np.cross(-R * n3, jt3) * (model.mass / model.inertia)
+    got_v, got_w = strike(model, v, w, n)
+    np.testing.assert_allclose(got_v, want_v, rtol=1e-12, atol=1e-12)
+    np.testing.assert_allclose(got_w, want_w, rtol=1e-12, atol=1e-9)
+
+
+def test_rail_impact_turns_into_the_cushion_frame_and_back(model: BallModel) -> None:
+    # The frame change written out against the dot products with x = normal x z, y = normal.
+    rng = np.random.default_rng(11)
+    normals = np.array([[-1.0, 0.0], [1.0, 0.0], [0.0, -1.0], [0.0, 1.0]])
+    k = 40
+    nrm = normals[rng.integers(0, 4, k)]
+    v = rng.normal(size=(k, 2)) + 2.0 * nrm  # heading into the rail
+    w = rng.normal(size=(k, 3)) * 30.0
+    ex = np.stack((nrm[:, 1], -nrm[:, 0]), axis=1)
+    vc = np.stack((np.sum(v * ex, axis=1), np.sum(v * nrm, axis=1)), axis=1)
+    wc = np.stack((np.sum(w[:, :2] * ex, axis=1), np.sum(w[:, :2] * nrm, axis=1), w[:, 2]), axis=1)
+    vo, wo = impulse_impact(model, vc, wc)
+    want_v = ex * vo[:, :1] + nrm * vo[:, 1:2]
+    want_w = np.concatenate((ex * wo[:, :1] + nrm * wo[:, 1:2], wo[:, 2:]), axis=1)
+    got_v, got_w = rail_impact(model, nrm, v, w)
+    np.testing.assert_allclose(got_v, want_v, rtol=1e-12, atol=1e-12)
+    np.testing.assert_allclose(got_w, want_w, rtol=1e-12, atol=1e-9)
+
+
+def test_first_quadratic_root_agrees_with_numpy_roots() -> None:
+    # numpy.roots (reference library): the smallest root in (T_MIN, t_max] where the value
+    # falls through zero (2 c2 t + c1 < 0).
+    rng = np.random.default_rng(5)
+    c = rng.normal(size=(500, 3))
+    c[:50, 0] = 0.0  # linear rows
+    t_max = rng.uniform(0.5, 3.0, 500)
+    got = first_quadratic_root(c[:, 0], c[:, 1], c[:, 2], t_max)
+    for i in range(500):
+        want = math.inf
+        for t in np.roots(c[i]):
+            if abs(t.imag) > 1e-12:
+                continue
+            t = float(t.real)
+            if T_MIN < t <= t_max[i] and 2 * c[i, 0] * t + c[i, 1] < 0:
+                want = min(want, t)
+        if math.isinf(want):
+            assert math.isinf(got[i]), i
+        else:
+            assert abs(got[i] - want) < 1e-9 * max(1.0, want), i
+
+
+def _setup(t: TableSpec) -> shots.Setup:
+    return shots.make_setup(
+        t, shots.preset("three-rail-kick"), t.to_metres(3, 3), None, None, t.to_metres(3, 1)
+    )
+
+
+def test_sampled_path_is_each_stretch_evolved_in_turn(table: TableSpec, model: BallModel) -> None:
+    # The batched path against evolving every recorded stretch on its own (motion.evolve).
+    s = _setup(table)
+    pr = aim._problems(table, [s])
+    res, _ = aim._run(
+        model, table, pr, np.zeros(1, dtype=np.int64), pr.centre[:1], shots.Stroke(3.2), True
+    )
+    want: list[tuple[float, float]] = []
+    for seg in res.segments:
+        hit = np.flatnonzero(seg.live == 0)
+        if hit.size == 0:
+            continue
+        j = int(hit[0])
+        T = float(seg.dt[j])
+        ts = np.linspace(0.0, T, 13) if T > 0 else np.zeros(1)
+        for tt in ts:
+            rr, _, _ = evolve(
+                model,
+                seg.r[j : j + 1],
+                seg.v[j : j + 1],
+                seg.w[j : j + 1],
+                seg.phase[j : j + 1],
+                np.array([tt]),
+            )
+            p = (float(rr[0, 0]), float(rr[0, 1]))
+            if not want or max(abs(want[-1][0] - p[0]), abs(want[-1][1] - p[1])) > 1e-12:
+                want.append(p)
+    got = sample_path(model, res, 0, until_ball=False)
+    assert len(got) == len(want) > 20
+    np.testing.assert_allclose(np.array(got), np.array(want), atol=1e-12)
