@@ -1,5 +1,8 @@
 """Benchmark: history over 100,000 attempts (goal < 0.5 s) and the history screen (goal < 1 s).
 
+The screen and ``tablecoach history`` read the store's columns (``Store.columns``) and
+summarise them directly; the Attempt-list figures are kept for comparison.
+
 Run: python benchmarks/bench_history.py [--attempts N] [--repeat R]. Prints figures; asserts
 nothing (the machines are shared and noisy, so goals are read, not enforced).
 """
@@ -121,7 +124,44 @@ def main() -> None:
             t0 = time.perf_counter()
             added, _ = store.import_attempts(items)
             print(f"stored {added} attempts in {time.perf_counter() - t0:.1f} s (set-up)")
-            show("store.attempts() of all (the store's part)", timed(store.attempts, 3))
+            show("store.attempts() of all (Attempt objects)", timed(store.attempts, 3))
+            fields = history.HISTORY_FIELDS
+            show("store.columns() of all, every field", timed(store.columns, r))
+            show(
+                "store.columns() of all, the history's fields",
+                timed(lambda: store.columns(fields=fields), r),
+            )
+            ac = store.columns(fields=fields)
+            show("  columns_of (store columns -> engine)", timed(lambda: history.columns_of(ac), r))
+            show(
+                "summarize(store columns), landing bias too",
+                timed(lambda: history.summarize(ac, tz=UTC, today=NOW.date(), table_of=tables), r),
+                0.5,
+            )
+            show(
+                "store.columns + summarize (the command's path)",
+                timed(
+                    lambda: history.summarize(
+                        store.columns(fields=fields), tz=UTC, today=NOW.date(), table_of=tables
+                    ),
+                    r,
+                ),
+                0.5,
+            )
+            player = items[0].player
+            show(
+                f"  the same for one player ({store.count_attempts(player=player)})",
+                timed(
+                    lambda: history.summarize(
+                        store.columns(player=player, fields=fields),
+                        tz=UTC,
+                        today=NOW.date(),
+                        table_of=tables,
+                    ),
+                    r,
+                ),
+                0.5,
+            )
             runs = [asyncio.run(open_screen(store)) for _ in range(3)]
             show("history screen: first look (sessions)", [r[0] for r in runs], 1.0)
             show("history screen: full, all attempts shown", [r[1] for r in runs], 1.0)

@@ -69,22 +69,32 @@ def local_midnight(d: date, tz: tzinfo | None) -> datetime:
     return naive.replace(tzinfo=tz) if tz is not None else naive.astimezone()
 
 
-def query(store: Any, f: Filters, tz: tzinfo | None) -> list[Any]:
-    """The attempts matching the filters; dates are whole local days (``until`` included)."""
+def store_filters(f: Filters, tz: tzinfo | None) -> dict[str, Any]:
+    """The filters as the store's keyword arguments; dates are whole local days (``until``
+    included)."""
     if f.since and f.until and f.until < f.since:
         raise HistoryError(f"--until {f.until} is before --since {f.since}")
-    since = local_midnight(f.since, tz) if f.since else None
-    until = local_midnight(f.until + timedelta(days=1), tz) if f.until else None
-    return list(
-        store.attempts(
-            player=f.player,
-            table=f.table,
-            family=f.family,
-            since=since,
-            until=until,
-            session=f.session,
-        )
-    )
+    return {
+        "player": f.player,
+        "table": f.table,
+        "family": f.family,
+        "since": local_midnight(f.since, tz) if f.since else None,
+        "until": local_midnight(f.until + timedelta(days=1), tz) if f.until else None,
+        "session": f.session,
+    }
+
+
+def query(store: Any, f: Filters, tz: tzinfo | None) -> list[Any]:
+    """The attempts matching the filters; dates are whole local days (``until`` included)."""
+    return list(store.attempts(**store_filters(f, tz)))
+
+
+def query_columns(store: Any, f: Filters, tz: tzinfo | None) -> Any:
+    """The same attempts as ``query``, as the store's columns of the fields the history reads
+    (no Attempt objects: the fast path for big histories)."""
+    from ..core.history import HISTORY_FIELDS  # noqa: PLC0415
+
+    return store.columns(**store_filters(f, tz), fields=HISTORY_FIELDS)
 
 
 def table_resolver(store: Any) -> Any:
@@ -245,8 +255,7 @@ def compute(args: argparse.Namespace) -> tuple[Any, Filters, Any]:
     if store is None:
         return history.summarize([], tz=tz), f, tz
     try:
-        items = query(store, f, tz)
-        h = history.summarize(items, tz=tz, table_of=table_resolver(store))
+        h = history.summarize(query_columns(store, f, tz), tz=tz, table_of=table_resolver(store))
     finally:
         store.close()
     return h, f, tz

@@ -297,10 +297,9 @@ def write_club(store: Store, club: Club) -> int:
         store.save_table(spec)
     written = 0
     for s in club.sessions:
-        sid = store.start_session(s.player, s.table, s.drill)
-        for a in s.attempts:
-            store.log(replace(a, session=sid))
-            written += 1
+        sid = store.start_session(s.player, s.table, s.drill, started=s.attempts[0].when)
+        # one transaction per session rather than one commit per attempt
+        written += len(store.log_many([replace(a, session=sid) for a in s.attempts]))
         store.end_session(sid)
     return written
 

@@ -13,15 +13,16 @@ import operator
 from collections.abc import Callable, Hashable, Iterable, Iterator, Mapping, Sequence
 from contextlib import contextmanager
 from dataclasses import dataclass, field
-from datetime import date, datetime, timedelta, tzinfo
+from datetime import UTC, date, datetime, timedelta, tzinfo
 from itertools import chain, repeat
 from statistics import NormalDist
 from typing import Any
 
 import numpy as np
 
-from .records import Attempt
+from .records import FLAT_FIELDS, Attempt
 from .shots import SPEED_BANDS
+from .store import AttemptColumns
 from .table import BUILTIN_TABLES, TableSpec
 
 # ----- streaks -------------------------------------------------------------------------------
@@ -380,8 +381,10 @@ def _codes(values: Sequence[Hashable]) -> tuple[np.ndarray, tuple[Any, ...]]:
 @dataclass(frozen=True, slots=True)
 class Columns:
     """Attempts as numpy columns, in time order (``attempts`` in that order; ``order[i]`` is
-    the position of ``attempts[i]`` in the input). ``*_code`` arrays index the tuple beside
-    them; ``start`` is the travelling ball's start in diamonds (object ball for banks)."""
+    the position of ``attempts[i]`` in the input). Integer code arrays (``family``, ``session``,
+    ``shape``, ``player``, ``table``) index the tuple beside them; ``start`` is the travelling
+    ball's start in diamonds (object ball for banks). Built from the store's columns
+    (``columns_of``), ``attempts`` is empty and ``us`` holds each time in microseconds."""
 
     attempts: tuple[Attempt, ...]
     order: np.ndarray
@@ -398,6 +401,30 @@ class Columns:
     aim_used: np.ndarray
     landing_rail: np.ndarray
     landing_at: np.ndarray
+    player: np.ndarray
+    players: tuple[str, ...]
+    table: np.ndarray
+    tables: tuple[str, ...]
+    us: np.ndarray | None = None
+
+    def __len__(self) -> int:
+        return len(self.ts)
+
+    def when(self, i: int) -> datetime:
+        """The time of attempt i (the Attempt's own ``when`` where there are Attempts)."""
+        if self.attempts:
+            return self.attempts[i].when
+        assert self.us is not None
+        return _UNIX_EPOCH + timedelta(microseconds=int(self.us[i]))
+
+
+_UNIX_EPOCH = datetime(1970, 1, 1, tzinfo=UTC)
+
+HISTORY_FIELDS: tuple[str, ...] = (
+    "when", "player", "table", "travel", "rails", "family", "cue_x", "cue_y", "object_x",
+    "object_y", "speed", "aim_rail", "aim_used", "result", "landing_rail", "landing_at",
+)  # fmt: skip
+"""The records.FLAT_FIELDS ``summarize`` reads from the store (``Store.columns(fields=...)``)."""
 
 
 _GET = operator.attrgetter(
@@ -432,7 +459,7 @@ def _columns(items: list[Attempt]) -> Columns:
         e = np.zeros(0)
         ei = np.zeros(0, np.int64)
         return Columns((), ei, e, np.zeros(0, bool), ei, (), ei, (), e, np.zeros((0, 2)),
-                       ei, (), e, ei, e)  # fmt: skip
+                       ei, (), e, ei, e, ei, (), ei, (), np.zeros(0, np.int64))  # fmt: skip
     rows = list(map(_GET, items))
     (whens, results, shots_, sessions, speeds, tables, aim_rails, aim_used, lrails, lat,
      players, ids) = zip(*rows, strict=True)  # fmt: skip
@@ -456,10 +483,7 @@ def _columns(items: list[Attempt]) -> Columns:
         )
     fams, travels, rails, cues, objects = zip(*map(_GET_SHOT, shots_), strict=True)
     hit = np.fromiter(map("hit".__eq__, results), np.bool_, n)
-    fam, fam_names = _codes(fams)
-    fam_names = tuple(f or "custom" for f in fam_names)
-    if len(set(fam_names)) != len(fam_names):  # "" and "custom" both present: merge them
-        fam, fam_names = _codes([f or "custom" for f in fams])
+    fam, fam_names = _family_codes(fams)
     ses, sess = _codes(
         [
             s if s is not None else ("unsaved", p, t)
@@ -476,6 +500,8 @@ def _columns(items: list[Attempt]) -> Columns:
     if banks:
         start[banks] = np.array([objects[i] for i in banks], dtype=np.float64)
     land_code = np.fromiter(map(_RAIL_CODE.get, lrails, repeat(0, n)), np.int64, n)
+    player, player_names = _codes(players)
+    table, table_names = _codes(tables)
     return Columns(
         attempts=tuple(items),
         order=order,
@@ -492,6 +518,124 @@ def _columns(items: list[Attempt]) -> Columns:
         aim_used=np.fromiter(aim_used, np.float64, n),
         landing_rail=land_code,
         landing_at=np.fromiter(lat, np.float64, n),
+        player=player,
+        players=player_names,
+        table=table,
+        tables=table_names,
+    )
+
+
+def _family_codes(fams: Sequence[str]) -> tuple[np.ndarray, tuple[str, ...]]:
+    """Family codes, an empty family name counting as "custom"."""
+    fam, fam_names = _codes(fams)
+    fam_names = tuple(f or "custom" for f in fam_names)
+    if len(set(fam_names)) != len(fam_names):  # "" and "custom" both present: merge them
+        fam, fam_names = _codes([f or "custom" for f in fams])
+    return fam, fam_names
+
+
+def _coded(
+    ac: AttemptColumns,
+    name: str,
+    codes: Callable[[Sequence[Any]], tuple[np.ndarray, tuple[Any, ...]]] = _codes,
+) -> tuple[np.ndarray, tuple[Any, ...]]:
+    """``codes`` of one text field of the store's columns, from its distinct key combinations
+    when the store kept them (``AttemptColumns.key``: numbered by first appearance, so the codes
+    come out as ``codes`` over the rows gives them), else from the field's tuple."""
+    if ac.key is not None and name in ac.key_fields:
+        j = ac.key_fields.index(name)
+        per_combo, distinct = codes([c[j] for c in ac.key_values])
+        return per_combo[ac.key], distinct
+    values = getattr(ac, name)
+    if len(values) == 0:
+        return np.zeros(0, np.int64), ()
+    return codes(values)
+
+
+def _firsts(codes: np.ndarray) -> np.ndarray:
+    """The row where each code 0.. first appears."""
+    return np.unique(codes, return_index=True)[1]
+
+
+def _first_codes(keys: np.ndarray) -> np.ndarray:
+    """Integer keys recoded 0.. in order of first appearance (``_codes`` for int arrays)."""
+    _, first, inv = np.unique(keys, return_index=True, return_inverse=True)
+    rank = np.empty(len(first), np.int64)
+    rank[np.argsort(first, kind="stable")] = np.arange(len(first))
+    return rank[inv.reshape(-1)]
+
+
+def columns_of(ac: AttemptColumns) -> Columns:
+    """The store's columns (``Store.columns``, at least HISTORY_FIELDS read) laid out as the
+    engine's Columns, equal to ``columns`` of the same attempts, without any Attempt."""
+    missing = [f for f in HISTORY_FIELDS if getattr(ac, f) is None]
+    if missing:
+        raise ValueError(f"the history needs the attempt field {missing[0]!r} read too")
+    with _quiet_gc():
+        return _columns_of(ac)
+
+
+def _columns_of(ac: AttemptColumns) -> Columns:
+    n = len(ac)
+    if n == 0:
+        return _columns([])
+    assert ac.when is not None and ac.result is not None and ac.speed is not None
+    us = ac.when.astype(np.int64)
+    if n > 1 and not bool(np.all(np.diff(us) >= 0)):
+        ac = ac.take(np.lexsort((ac.id, us)))
+        assert ac.when is not None and ac.result is not None and ac.speed is not None
+        us = ac.when.astype(np.int64)
+    result_code, results = _coded(ac, "result")
+    hit = np.array([r == "hit" for r in results], bool)[result_code]
+    fam, fam_names = _coded(ac, "family", _family_codes)
+    player, player_names = _coded(ac, "player")
+    table, table_names = _coded(ac, "table")
+    # sessions keyed as in ``columns``: the store's id, or ("unsaved", player, table)
+    ses_key = np.where(ac.session >= 0, ac.session, -1 - (player * len(table_names) + table))
+    ses = _first_codes(ses_key)
+    sess = tuple(
+        s if s >= 0 else ("unsaved", player_names[player[i]], table_names[table[i]])
+        for s, i in zip(ses_key[_firsts(ses)].tolist(), _firsts(ses).tolist(), strict=True)
+    )
+    rail_code, rail_seqs = _coded(ac, "rails")
+    aim_code, aim_rails = _coded(ac, "aim_rail")
+    nr, na = len(rail_seqs), len(aim_rails)
+    shape = _first_codes((table * nr + rail_code) * na + aim_code)
+    first = np.unique(shape, return_index=True)[1]
+    shapes = tuple(
+        (table_names[table[i]], rail_seqs[rail_code[i]], aim_rails[aim_code[i]])
+        for i in first.tolist()
+    )
+    start = np.column_stack((ac.cue_x, ac.cue_y)).astype(np.float64)
+    travel_code, travels = _coded(ac, "travel")
+    travel = np.array([t == "object" for t in travels], bool)[travel_code]
+    assert ac.object_x is not None and ac.object_y is not None
+    banks = travel & ~np.isnan(ac.object_x) & ~np.isnan(ac.object_y)
+    start[banks, 0] = ac.object_x[banks]
+    start[banks, 1] = ac.object_y[banks]
+    lcode, lrails = _coded(ac, "landing_rail")
+    land_code = np.array([_RAIL_CODE.get(r, 0) for r in lrails], np.int64)[lcode]
+    return Columns(
+        attempts=(),
+        order=np.arange(n),
+        ts=us / 1e6,
+        hit=hit,
+        family=fam,
+        families=fam_names,
+        session=ses,
+        sessions=sess,
+        speed=np.asarray(ac.speed, np.float64),
+        start=start,
+        shape=shape,
+        shapes=shapes,
+        aim_used=np.asarray(ac.aim_used, np.float64),
+        landing_rail=land_code,
+        landing_at=np.asarray(ac.landing_at, np.float64),
+        player=player,
+        players=player_names,
+        table=table,
+        tables=table_names,
+        us=us,
     )
 
 
@@ -500,7 +644,7 @@ def offsets_of(
 ) -> np.ndarray:
     """``landing_offsets`` over columns, in the columns' (time) order."""
     look = table_of or BUILTIN_TABLES.get
-    out = np.full(len(cols.attempts), np.nan)
+    out = np.full(len(cols), np.nan)
     specs: dict[str, TableSpec | None] = {}
     for g, (table, rails, aim_rail) in enumerate(cols.shapes):
         if not rails or aim_rail != rails[0]:
@@ -527,14 +671,14 @@ def landing_offsets(
     the family's first. The quantity of calibrate.landing_error under the ideal model,
     vectorised per rail sequence (``ideal_landings``)."""
     cols = columns(attempts)
-    out = np.full(len(cols.attempts), np.nan)
+    out = np.full(len(cols), np.nan)
     out[cols.order] = offsets_of(cols, table_of)
     return out
 
 
 def bias_of(cols: Columns, offsets: np.ndarray) -> list[LandingBias]:
     """``landing_bias`` over columns and their offsets."""
-    if len(cols.attempts) == 0:
+    if len(cols) == 0:
         return []
     band, bands = _codes(_speed_bands(cols.speed).tolist())
     key = cols.family * len(bands) + band
@@ -572,7 +716,7 @@ def zone_codes_of(cols: Columns) -> tuple[np.ndarray, tuple[Any, ...]]:
     the coach's own grid constants and ``cell_of`` rule, and the Zone of each code."""
     from . import coach  # noqa: PLC0415  (the coach owns the zone grid)
 
-    n = len(cols.attempts)
+    n = len(cols)
     if n == 0:
         return np.zeros(0, np.int64), ()
     col = np.clip(np.floor(cols.start[:, 0] / coach.COL_WIDTH), 0, coach.ZONE_COLS - 1)
@@ -773,7 +917,7 @@ def default_zone_fn() -> ZoneFn | None:
 
 
 def _summarize(
-    attempts: Iterable[Attempt],
+    attempts: Iterable[Attempt] | AttemptColumns,
     tz: tzinfo | None = None,
     today: date | None = None,
     zone_fn: ZoneFn | None = None,
@@ -782,8 +926,13 @@ def _summarize(
     with_bias: bool = True,
 ) -> History:
     """The body of ``summarize`` (which runs it with the garbage collector paused)."""
-    cols = columns(attempts)
-    items = cols.attempts
+    if isinstance(attempts, AttemptColumns) and zone_fn is None:
+        cols = _columns_of(attempts)
+    elif isinstance(attempts, AttemptColumns):  # a custom zone key needs Attempts: build them
+        cols = _columns(attempts.to_attempts())
+    else:
+        cols = _columns(list(attempts))
+    n = len(cols)
     hit = cols.hit
     if today is None:
         today = datetime.now(tz).date() if tz is not None else datetime.now().astimezone().date()
@@ -801,7 +950,7 @@ def _summarize(
     zones: dict[Any, Rate] = {}
     zone_streaks: dict[Any, Streak] = {}
     if zone_fn is not None:
-        zcode, zkeys = _codes([zone_fn(a) for a in items])
+        zcode, zkeys = _codes([zone_fn(a) for a in cols.attempts])
     else:
         try:
             zcode, zkeys = zone_codes_of(cols)
@@ -814,7 +963,7 @@ def _summarize(
         zones = {z: zr[i] for i, z in enumerate(zkeys)}
         zone_streaks = {z: Streak(int(zc[i]), int(zb[i])) for i, z in enumerate(zkeys)}
     sessions = []
-    if len(items):
+    if n:
         order = np.argsort(cols.session, kind="stable")
         sc = cols.session[order]
         firsts = order[np.flatnonzero(np.r_[True, sc[1:] != sc[:-1]])]
@@ -825,14 +974,14 @@ def _summarize(
         for i in np.sort(first_of_pair).tolist():
             fams_of.setdefault(int(cols.session[i]), []).append(cols.families[int(cols.family[i])])
         for i0, i1 in zip(firsts.tolist(), lasts.tolist(), strict=True):
-            a0 = items[i0]
+            key = cols.sessions[int(cols.session[i0])]
             sessions.append(
                 SessionSummary(
-                    a0.session,
-                    a0.player,
-                    a0.table,
-                    a0.when,
-                    items[i1].when,
+                    None if isinstance(key, tuple) else key,
+                    cols.players[int(cols.player[i0])],
+                    cols.tables[int(cols.table[i0])],
+                    cols.when(i0),
+                    cols.when(i1),
                     ses_rates[int(cols.session[i0])],
                     Streak(
                         int(ses_cur[int(cols.session[i0])]), int(ses_best[int(cols.session[i0])])
@@ -860,15 +1009,15 @@ def _summarize(
         family_weeks=family_weeks,
         sessions=tuple(sessions),
         bias=bias,
-        first=items[0].when if items else None,
-        last=items[-1].when if items else None,
-        players=tuple(sorted({a.player for a in items})),
-        tables=tuple(sorted({a.table for a in items})),
+        first=cols.when(0) if n else None,
+        last=cols.when(n - 1) if n else None,
+        players=tuple(sorted(cols.players)),
+        tables=tuple(sorted(cols.tables)),
     )
 
 
 def summarize(
-    attempts: Iterable[Attempt],
+    attempts: Iterable[Attempt] | AttemptColumns,
     tz: tzinfo | None = None,
     today: date | None = None,
     zone_fn: ZoneFn | None = None,
@@ -883,8 +1032,16 @@ def summarize(
     ``zone_fn`` keys each attempt to its zone (None: the coach's zones, core/coach.py);
     ``table_of`` resolves table names for the landing bias (None: built-in tables only).
     Works on numpy columns: the same numbers as the one-concept functions above (the tests
-    hold them to each other), fast enough for a hundred thousand attempts.
+    hold them to each other), fast enough for a hundred thousand attempts. ``attempts`` may be
+    the store's columns (``Store.columns``, at least HISTORY_FIELDS read): the same History as
+    for the Attempts they hold, without building any.
     """
+    if isinstance(attempts, AttemptColumns):
+        missing = [f for f in HISTORY_FIELDS if getattr(attempts, f) is None]
+        if zone_fn is not None:
+            missing = [f for f in FLAT_FIELDS if getattr(attempts, f) is None]
+        if missing:
+            raise ValueError(f"the history needs the attempt field {missing[0]!r} read too")
     with _quiet_gc():
         return _summarize(attempts, tz, today, zone_fn, table_of, confidence, with_bias)
 
@@ -978,6 +1135,7 @@ def history_dict(h: History) -> dict[str, Any]:
 
 
 __all__ = [
+    "HISTORY_FIELDS",
     "History",
     "LandingBias",
     "Rate",

@@ -8,19 +8,23 @@ never written to: opening it raises a StoreError naming the file and what to do.
 
 from __future__ import annotations
 
+import gc
 import hashlib
 import json
+import math
 import sqlite3
 import threading
 from collections.abc import Iterator, Sequence
 from contextlib import contextmanager
 from dataclasses import dataclass, replace
-from datetime import UTC, datetime
+from datetime import UTC, datetime, timedelta
 from pathlib import Path
 from types import TracebackType
 from typing import Any
 
-from .records import Attempt, ShotRecord, flatten, utc_now, validate_attempt
+import numpy as np
+
+from .records import FLAT_FIELDS, Attempt, ShotRecord, flatten, utc_now, validate_attempt
 from .table import BUILTIN_TABLES, TableError, TableSpec, table_from_mapping, table_to_mapping
 
 SCHEMA_VERSION = 2
@@ -247,6 +251,216 @@ def _from_row(r: Sequence[Any], id_: int | None = None) -> Attempt:
 
 
 _fromiso = datetime.fromisoformat
+
+
+# ----- attempts as columns ----------------------------------------------------------------------
+
+_TEXT_FIELDS = frozenset(
+    {"player", "table", "travel", "family", "pocket", "aim_rail", "result", "landing_rail",
+     "note", "model", "drill", "zone"}
+)  # fmt: skip
+_FIELD_COLUMN = dict(zip(FLAT_FIELDS, _COL_NAMES, strict=False))
+"""records.FLAT_FIELDS name -> attempts column (the two share one order)."""
+
+KEY_FIELDS: tuple[str, ...] = (
+    "player", "table", "travel", "rails", "family", "aim_rail", "result", "landing_rail",
+    "model", "drill", "zone",
+)  # fmt: skip
+"""Text fields with few distinct values (all NOT NULL): ``Store.columns`` reads those asked for
+as one joined text per row and keeps each distinct combination once (``AttemptColumns.key``)."""
+
+_KEY_SEP = "\x1f"
+"""Joins the key fields in SQL (ASCII unit separator, char(31)); when a value holds it, the
+fields are read one by one instead."""
+
+_EPOCH_DAY = datetime(1970, 1, 1).toordinal()
+_ISO_LEN = 32
+"""Characters in a stored time, e.g. 2026-11-30T21:00:00.000000+00:00 (``iso_utc``)."""
+
+
+@dataclass(frozen=True, slots=True)
+class AttemptColumns:
+    """Attempts as columns, entry i of every field being attempt i, in the store's order (time,
+    then id). Fields are records.FLAT_FIELDS plus ``id`` and ``session``.
+
+    ``when`` is numpy datetime64[us] (UTC); text fields are tuples of str (``pocket`` None where
+    the target is a ball); ``rails`` a tuple of rail-name tuples; numbers float64 arrays, NaN
+    where a position is absent; ``id`` int64; ``session`` int64 with -1 for no session. A field
+    not asked for (``Store.columns(fields=...)``) is None.
+
+    When ``key`` is not None, ``key[i]`` indexes ``key_values``: the distinct combinations of
+    the ``key_fields`` (values in that order, rails as tuples), numbered in order of first
+    appearance. They hold the same values as the per-field tuples, once per combination, so
+    that grouping needs no pass over the rows.
+    """
+
+    when: np.ndarray | None
+    player: tuple[str, ...] | None
+    table: tuple[str, ...] | None
+    travel: tuple[str, ...] | None
+    rails: tuple[tuple[str, ...], ...] | None
+    family: tuple[str, ...] | None
+    pocket: tuple[str | None, ...] | None
+    target_x: np.ndarray | None
+    target_y: np.ndarray | None
+    cue_x: np.ndarray | None
+    cue_y: np.ndarray | None
+    object_x: np.ndarray | None
+    object_y: np.ndarray | None
+    speed: np.ndarray | None
+    english: np.ndarray | None
+    follow: np.ndarray | None
+    aim_rail: tuple[str, ...] | None
+    aim_given: np.ndarray | None
+    aim_used: np.ndarray | None
+    result: tuple[str, ...] | None
+    landing_rail: tuple[str, ...] | None
+    landing_at: np.ndarray | None
+    note: tuple[str, ...] | None
+    model: tuple[str, ...] | None
+    drill: tuple[str, ...] | None
+    zone: tuple[str, ...] | None
+    id: np.ndarray
+    session: np.ndarray
+    key: np.ndarray | None = None
+    key_values: tuple[tuple[Any, ...], ...] = ()
+    key_fields: tuple[str, ...] = ()
+
+    def __len__(self) -> int:
+        return len(self.id)
+
+    def take(self, index: np.ndarray) -> AttemptColumns:
+        """The attempts at ``index`` (an integer array), in that order."""
+        idx = np.asarray(index, np.int64)
+        picked: dict[str, Any] = {}
+        for name in (*FLAT_FIELDS, "id", "session"):  # the key is dropped: its order changes
+            col = getattr(self, name)
+            if col is None or isinstance(col, np.ndarray):
+                picked[name] = None if col is None else col[idx]
+            else:
+                picked[name] = tuple(col[i] for i in idx.tolist())
+        return AttemptColumns(**picked)
+
+    def flat(self, i: int) -> tuple[Any, ...]:
+        """Attempt i as ``records.flatten`` gives it (every field must have been read)."""
+        out: list[Any] = []
+        for name in FLAT_FIELDS:
+            col = getattr(self, name)
+            if col is None:
+                raise StoreError(f"the field {name!r} was not read into these columns")
+            v = col[i]
+            if name == "when":
+                v = _when_of(int(v.astype(np.int64)))
+            elif isinstance(v, np.floating):
+                v = None if math.isnan(v) else float(v)
+            out.append(v)
+        return tuple(out)
+
+    def to_attempts(self) -> list[Attempt]:
+        """The columns back as Attempt objects (the slow way; every field must be read)."""
+        out = []
+        for i in range(len(self)):
+            f = self.flat(i)
+            row = (iso_utc(f[0]), *f[1:4], ",".join(f[4]), *f[5:])
+            sid = int(self.session[i])
+            out.append(_from_row((*row, None if sid < 0 else sid), int(self.id[i])))
+        return out
+
+
+def _when_of(us: int) -> datetime:
+    """Microseconds since 1970-01-01 UTC as an aware datetime (what ``_fromiso`` gives)."""
+    return datetime(1970, 1, 1, tzinfo=UTC) + timedelta(microseconds=us)
+
+
+def _parse_times(texts: Sequence[str]) -> np.ndarray:
+    """Stored times (``iso_utc`` text) as datetime64[us], without a datetime per row.
+
+    The fixed-width text is read as bytes and its digits combined with numpy; each distinct
+    calendar day is turned into a day number once (``date.toordinal``). Any text not in the
+    exact ``iso_utc`` form is parsed the slow way (``datetime.fromisoformat``) instead.
+    """
+    n = len(texts)
+    if n == 0:
+        return np.zeros(0, "datetime64[us]")
+    joined = "".join(texts)
+    raw = None
+    if len(joined) == _ISO_LEN * n and joined.isascii():
+        raw = np.frombuffer(joined.encode("ascii"), np.uint8).reshape(n, _ISO_LEN)
+    if raw is not None and _iso_form_ok(raw):
+        d = raw.astype(np.int64) - ord("0")
+
+        def num(a: int, b: int) -> np.ndarray:
+            v = np.zeros(n, np.int64)
+            for k in range(a, b):
+                v = v * 10 + d[:, k]
+            return v
+
+        ymd = num(0, 4) * 10000 + num(5, 7) * 100 + num(8, 10)
+        days, inv = np.unique(ymd, return_inverse=True)
+        try:
+            ordinals = np.array(
+                [datetime(y // 10000, y // 100 % 100, y % 100).toordinal() for y in days.tolist()],
+                np.int64,
+            )
+        except ValueError:
+            ordinals = None
+        hh, mm, ss = num(11, 13), num(14, 16), num(17, 19)
+        if ordinals is not None and (hh < 24).all() and (mm < 60).all() and (ss < 60).all():
+            secs = (ordinals[inv.reshape(-1)] - _EPOCH_DAY) * 86400 + hh * 3600 + mm * 60 + ss
+            return (secs * 1_000_000 + num(20, 26)).astype("datetime64[us]")
+    one = timedelta(microseconds=1)
+    epoch = datetime(1970, 1, 1, tzinfo=UTC)
+    us = [(_fromiso(t).astimezone(UTC) - epoch) // one for t in texts]
+    return np.array(us, np.int64).astype("datetime64[us]")
+
+
+def _iso_form_ok(raw: np.ndarray) -> bool:
+    """Every row is ``DDDD-DD-DDTDD:DD:DD.DDDDDD+00:00`` (D a digit)."""
+    pattern = b"0000-00-00T00:00:00.000000+00:00"
+    digit = np.frombuffer(pattern, np.uint8) == ord("0")
+    digit[-5:] = False  # the +00:00 suffix is matched exactly below
+    fixed = np.frombuffer(pattern, np.uint8)
+    cells = raw[:, digit]
+    if not ((cells >= ord("0")) & (cells <= ord("9"))).all():
+        return False
+    return bool((raw[:, ~digit] == fixed[~digit]).all())
+
+
+def _rails_of(texts: Sequence[str]) -> tuple[tuple[str, ...], ...]:
+    cache: dict[str, tuple[str, ...]] = {}
+    for t in set(texts):
+        cache[t] = tuple(t.split(","))
+    return tuple(map(cache.__getitem__, texts))
+
+
+def _split_keys(
+    texts: Sequence[str], fields: tuple[str, ...]
+) -> tuple[np.ndarray, tuple[tuple[Any, ...], ...]] | None:
+    """Joined key texts as (code per row, distinct combinations in order of first appearance),
+    rails as tuples; None when some value holds the separator (the split would be ambiguous)."""
+    distinct = tuple(dict.fromkeys(texts))
+    index = {t: i for i, t in enumerate(distinct)}
+    combos = []
+    rails_at = fields.index("rails") if "rails" in fields else -1
+    for t in distinct:
+        parts: list[Any] = t.split(_KEY_SEP)
+        if len(parts) != len(fields):
+            return None
+        if rails_at >= 0:
+            parts[rails_at] = tuple(parts[rails_at].split(","))
+        combos.append(tuple(parts))
+    return np.fromiter(map(index.__getitem__, texts), np.int64, len(texts)), tuple(combos)
+
+
+def _column(name: str, values: Sequence[Any]) -> Any:
+    """One selected column as AttemptColumns holds it."""
+    if name == "when":
+        return _parse_times(values)
+    if name == "rails":
+        return _rails_of(values)
+    if name in _TEXT_FIELDS:
+        return tuple(values)
+    return np.array(values, np.float64).reshape(-1)  # None (absent position) becomes NaN
 
 
 def attempt_identity(a: Attempt) -> str:
@@ -507,16 +721,21 @@ class Store:
             )
 
     # ----- sessions ---------------------------------------------------------------------------
-    def start_session(self, player: str, table: str, drill: str) -> int:
-        """Open a session (adding the player if new); returns its id."""
+    def start_session(
+        self, player: str, table: str, drill: str, started: datetime | None = None
+    ) -> int:
+        """Open a session (adding the player if new); returns its id.
+
+        ``started`` is when it began (aware; None: now), for sessions written after the fact.
+        """
         player = self._check_name("player", player)
         table = self._check_name("table", table)
+        when = iso_utc(started if started is not None else utc_now())
         with self._write() as c:
-            now = iso_utc(utc_now())
-            c.execute("INSERT OR IGNORE INTO players (name, created) VALUES (?, ?)", (player, now))
+            c.execute("INSERT OR IGNORE INTO players (name, created) VALUES (?, ?)", (player, when))
             cur = c.execute(
                 "INSERT INTO sessions (player, table_name, drill, started) VALUES (?, ?, ?, ?)",
-                (player, table, drill or "", now),
+                (player, table, drill or "", when),
             )
             return int(cur.lastrowid or 0)
 
@@ -653,11 +872,84 @@ class Store:
         ``since`` is inclusive, ``until`` exclusive; naive times are taken as UTC.
         """
         where, args = self._filters(player, table, family, since, until, session)
+        was = gc.isenabled()
+        gc.disable()  # many small objects at once: no use rescanning them while they come
+        try:
+            with self._read() as c:
+                rows = c.execute(
+                    f"SELECT {_COLS}, id FROM attempts{where} ORDER BY at, id", args
+                ).fetchall()
+            return [_from_row(r, r[-1]) for r in rows]
+        finally:
+            if was:
+                gc.enable()
+
+    def columns(
+        self,
+        player: str | None = None,
+        table: str | None = None,
+        family: str | None = None,
+        since: datetime | None = None,
+        until: datetime | None = None,
+        session: int | None = None,
+        fields: Sequence[str] | None = None,
+    ) -> AttemptColumns:
+        """The attempts ``attempts`` would return (same filters, same order), as columns.
+
+        One SELECT of only the columns asked for; no Attempt is built. ``fields`` names the
+        records.FLAT_FIELDS to read (None: all of them); the others are None. ``id`` and
+        ``session`` are always read.
+        """
+        names = tuple(FLAT_FIELDS) if fields is None else tuple(dict.fromkeys(fields))
+        unknown = [f for f in names if f not in _FIELD_COLUMN]
+        if unknown:
+            raise StoreError(
+                f"unknown attempt field {unknown[0]!r}: fields are {', '.join(FLAT_FIELDS)}"
+            )
+        where, args = self._filters(player, table, family, since, until, session)
+        keyed = tuple(f for f in names if f in KEY_FIELDS)
+        was = gc.isenabled()
+        gc.disable()  # the rows are many small tuples: no use rescanning them while they come
+        try:
+            return self._read_columns(where, args, names, keyed if len(keyed) > 1 else ())
+        finally:
+            if was:
+                gc.enable()
+
+    def _read_columns(
+        self, where: str, args: list[Any], names: tuple[str, ...], keyed: tuple[str, ...]
+    ) -> AttemptColumns:
+        """One SELECT of ``names`` (the ``keyed`` ones joined into one text) into columns."""
+        plain = tuple(f for f in names if f not in keyed)
+        exprs = [_FIELD_COLUMN[f] for f in plain]
+        if keyed:
+            exprs.append(" || char(31) || ".join(_FIELD_COLUMN[f] for f in keyed))
+        select = ", ".join([*exprs, "id", "session_id"])
         with self._read() as c:
             rows = c.execute(
-                f"SELECT {_COLS}, id FROM attempts{where} ORDER BY at, id", args
+                f"SELECT {select} FROM attempts{where} ORDER BY at, id", args
             ).fetchall()
-        return [_from_row(r, r[-1]) for r in rows]
+        n = len(rows)
+        cols: list[Any] = list(zip(*rows, strict=True)) if n else [()] * (len(exprs) + 2)
+        del rows
+        key, combos = None, ()
+        if keyed:
+            split = _split_keys(cols[-3], keyed)
+            if split is None:  # a value holds the separator: read the fields one by one
+                return self._read_columns(where, args, names, ())
+            key, combos = split
+        values: dict[str, Any] = dict.fromkeys(FLAT_FIELDS)
+        for name, col in zip(plain, cols, strict=False):
+            values[name] = _column(name, col)
+        codes = key.tolist() if key is not None else []
+        for j, f in enumerate(keyed):
+            per = tuple(c[j] for c in combos)
+            values[f] = tuple(map(per.__getitem__, codes))
+        ids = np.fromiter(cols[-2], np.int64, n)
+        sessions = np.fromiter((-1 if s is None else s for s in cols[-1]), np.int64, n)
+        return AttemptColumns(
+            **values, id=ids, session=sessions, key=key, key_values=combos, key_fields=keyed
+        )
 
     def count_attempts(
         self,
@@ -803,6 +1095,8 @@ class Store:
 
 __all__ = [
     "SCHEMA_VERSION",
+    "AttemptColumns",
+    "KEY_FIELDS",
     "SessionInfo",
     "Store",
     "StoreError",

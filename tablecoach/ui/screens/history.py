@@ -16,7 +16,7 @@ from textual.message import Message
 from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Static
 
-from tablecoach.commands.history import Filters, pct, query, spark, table_resolver
+from tablecoach.commands.history import Filters, pct, query_columns, spark, table_resolver
 from tablecoach.core import history
 from tablecoach.render.heatmap import HeatMap, legend_text
 
@@ -198,9 +198,9 @@ class HistoryScreen(Screen[None]):
             if f.family is None and f.since is None and f.session is None:
                 # the store counts sessions in SQL: show them while the full history is built
                 self.post_message(SessionsListed(token, self.store.sessions(f.player, f.table)))
-            items = query(self.store, f, self.tz)
+            cols = query_columns(self.store, f, self.tz)  # columns, not Attempt objects
             h = history.summarize(
-                items, tz=self.tz, today=self.local_today(), table_of=table_resolver(self.store)
+                cols, tz=self.tz, today=self.local_today(), table_of=table_resolver(self.store)
             )
             players = tuple(self.store.players())
             result = Loaded(h, players, h.tables, tuple(sorted(h.families)))

@@ -1,0 +1,281 @@
+"""Tests for the store's columnar read (Store.columns) against the slow way (attempts + flatten)."""
+
+from __future__ import annotations
+
+import math
+import sqlite3
+from datetime import UTC, datetime, timedelta
+from pathlib import Path
+from zoneinfo import ZoneInfo
+
+import numpy as np
+import pytest
+
+from tablecoach.core import demo, history
+from tablecoach.core.records import FLAT_FIELDS, Attempt, ShotRecord, flatten, validate_attempt
+from tablecoach.core.store import AttemptColumns, Store, StoreError, _parse_times
+from tablecoach.core.table import POCKETS, RAILS
+
+T0 = datetime(2024, 2, 27, 22, 59, 58, 999999, tzinfo=UTC)  # spans a leap day and midnights
+PLAYERS = ("ann", "bo", "cy")
+TABLES = ("9ft", "8ft", "7ft")
+FAMILIES = ("one-rail-kick", "cross-corner-bank", "custom", "")
+
+
+def _pos(rng: np.random.Generator) -> tuple[float, float]:
+    return (float(rng.uniform(0.0, 8.0)), float(rng.uniform(0.0, 4.0)))
+
+
+def random_attempt(rng: np.random.Generator) -> Attempt:
+    """Invented test data: every field drawn at random, positions absent where allowed."""
+    travel = "object" if rng.random() < 0.4 else "cue"
+    obj = _pos(rng) if travel == "object" or rng.random() < 0.3 else None
+    k = int(rng.integers(1, 4))
+    rails = tuple(str(r) for r in rng.choice(RAILS, size=k))
+    by_pocket = rng.random() < 0.5
+    aim_rail = str(rng.choice(RAILS))
+    top = 8.0 if aim_rail in ("left", "right") else 4.0
+    land_rail = str(rng.choice(RAILS))
+    land_top = 8.0 if land_rail in ("left", "right") else 4.0
+    when = T0 + timedelta(microseconds=int(rng.integers(0, 40 * 86400 * 10**6)))
+    a = Attempt(
+        when=when,
+        player=str(rng.choice(PLAYERS)),
+        table=str(rng.choice(TABLES)),
+        shot=ShotRecord(
+            travel,  # type: ignore[arg-type]
+            rails,
+            _pos(rng),
+            obj,
+            str(rng.choice(POCKETS)) if by_pocket else None,
+            None if by_pocket else _pos(rng),
+            str(rng.choice(FAMILIES)),
+        ),
+        speed=float(rng.uniform(0.1, 13.0)),
+        english=float(rng.uniform(-1.5, 1.5)),
+        follow=float(rng.uniform(-1.5, 1.5)),
+        aim_rail=aim_rail,
+        aim_given=float(rng.uniform(0.0, top)),
+        aim_used=float(rng.uniform(0.0, top)),
+        result="hit" if rng.random() < 0.45 else "miss",
+        landing_rail=land_rail,
+        landing_at=float(rng.uniform(0.0, land_top)),
+        note=str(rng.choice(["", "kissed", "très près, ça"])),
+        model=str(rng.choice(["ideal", "physical"])),
+        drill=str(rng.choice(["", "pack-a"])),
+        zone=str(rng.choice(["", "z1"])),
+    )
+    return validate_attempt(a)
+
+
+@pytest.fixture(scope="module")
+def filled(tmp_path_factory: pytest.TempPathFactory) -> Store:
+    """A store of random attempts: logged into sessions, and imported (no session)."""
+    rng = np.random.default_rng(20261201)
+    path = Path(tmp_path_factory.mktemp("cols")) / "db.sqlite3"
+    s = Store.open(path)
+    for _ in range(6):
+        sid = s.start_session(str(rng.choice(PLAYERS)), str(rng.choice(TABLES)), "mixed")
+        items = [random_attempt(rng) for _ in range(int(rng.integers(5, 40)))]
+        s.log_many([Attempt(**{**_fields(a), "session": sid}) for a in items])
+    s.import_attempts([random_attempt(rng) for _ in range(300)])
+    # two attempts at the same instant: order then falls to the id
+    twin = random_attempt(rng)
+    s.log(twin)
+    s.log(Attempt(**{**_fields(twin), "note": "twin"}))
+    yield s
+    s.close()
+
+
+def _fields(a: Attempt) -> dict[str, object]:
+    return {f: getattr(a, f) for f in Attempt.__dataclass_fields__ if f != "id"}
+
+
+def _same(x: object, y: object) -> bool:
+    if isinstance(x, float) and isinstance(y, float):
+        return x == y  # exact: the store keeps floats as IEEE doubles
+    return x == y and type(x) is type(y)
+
+
+def assert_columns_equal(cols: AttemptColumns, ref: list[Attempt]) -> None:
+    """The columns hold exactly what flatten() gives for each reference attempt, in order."""
+    assert len(cols) == len(ref)
+    assert cols.id.tolist() == [a.id for a in ref]
+    assert cols.session.tolist() == [-1 if a.session is None else a.session for a in ref]
+    for i, a in enumerate(ref):
+        flat = flatten(a)
+        got = cols.flat(i)
+        assert len(got) == len(FLAT_FIELDS)
+        for name, want, have in zip(FLAT_FIELDS, flat, got, strict=True):
+            assert _same(want, have), (i, name, want, have)
+    # the raw arrays themselves, field by field
+    for k, name in enumerate(FLAT_FIELDS):
+        col = getattr(cols, name)
+        want = [flatten(a)[k] for a in ref]
+        if name == "when":
+            assert col.dtype == np.dtype("datetime64[us]")
+            naive = [w.astimezone(UTC).replace(tzinfo=None) for w in want]
+            assert col.tolist() == naive
+        elif isinstance(col, np.ndarray):
+            assert col.dtype == np.float64
+            assert [None if math.isnan(v) else v for v in col.tolist()] == want
+        else:
+            assert list(col) == want
+
+
+def filter_cases(s: Store) -> list[dict[str, object]]:
+    sid = s.sessions()[2].id
+    mid = T0 + timedelta(days=13, hours=5)
+    return [
+        {},
+        {"player": "bo"},
+        {"table": "8ft"},
+        {"family": "cross-corner-bank"},
+        {"family": ""},
+        {"session": sid},
+        {"since": mid},
+        {"until": mid},
+        {"since": mid, "until": mid + timedelta(days=9)},
+        {"since": mid.replace(tzinfo=None)},  # naive: taken as UTC by both
+        {"player": "ann", "table": "9ft", "family": "one-rail-kick", "since": T0},
+        {"player": "nobody"},
+    ]
+
+
+def test_columns_equal_flattened_attempts_for_every_filter(filled: Store) -> None:
+    # Reference: the slow path, Attempt objects from Store.attempts laid flat by records.flatten.
+    for kw in filter_cases(filled):
+        ref = filled.attempts(**kw)  # type: ignore[arg-type]
+        assert_columns_equal(filled.columns(**kw), ref)  # type: ignore[arg-type]
+    assert len(filled.columns(player="nobody")) == 0
+
+
+def test_random_data_has_absent_positions_and_both_orders(filled: Store) -> None:
+    # The data must exercise what the test claims: absent object balls and target balls.
+    cols = filled.columns()
+    assert np.isnan(cols.object_x).any() and not np.isnan(cols.object_x).all()
+    assert np.isnan(cols.target_x).any() and not np.isnan(cols.target_x).all()
+    assert None in cols.pocket
+    assert (cols.session == -1).any() and (cols.session > 0).any()
+    w = cols.when.astype(np.int64)
+    assert (np.diff(w) == 0).any()  # the twins share a time; ids keep them in order
+    assert (np.diff(w) >= 0).all()
+
+
+def test_columns_back_to_attempts(filled: Store) -> None:
+    assert filled.columns().to_attempts() == filled.attempts()
+
+
+def test_field_subset_reads_only_those(filled: Store) -> None:
+    cols = filled.columns(player="cy", fields=("result", "when"))
+    ref = filled.attempts(player="cy")
+    assert cols.result == tuple(a.result for a in ref)
+    assert cols.player is None and cols.speed is None
+    assert cols.id.tolist() == [a.id for a in ref]
+    with pytest.raises(StoreError, match="not read"):
+        cols.flat(0)
+    with pytest.raises(StoreError, match="unknown attempt field 'colour'"):
+        filled.columns(fields=("colour",))
+
+
+def test_take_reorders_every_field(filled: Store) -> None:
+    cols = filled.columns(table="7ft")
+    idx = np.arange(len(cols))[::-1]
+    back = cols.take(idx)
+    assert [back.flat(i) for i in range(len(back))] == [cols.flat(i) for i in idx.tolist()]
+
+
+def test_time_parser_matches_fromisoformat() -> None:
+    # Reference: datetime.fromisoformat (standard library) for the fixed-width UTC form, over
+    # random instants 1970..2100 including leap days and the last microsecond of a day.
+    rng = np.random.default_rng(7)
+    epoch = datetime(1970, 1, 1, tzinfo=UTC)
+    us = rng.integers(0, 130 * 365 * 86400 * 10**6, 2000).tolist()
+    whens = [epoch + timedelta(microseconds=u) for u in us]
+    whens += [datetime(2024, 2, 29, 23, 59, 59, 999999, tzinfo=UTC), epoch]
+    texts = [w.isoformat(timespec="microseconds") for w in whens]
+    got = _parse_times(texts).tolist()
+    assert got == [datetime.fromisoformat(t).replace(tzinfo=None) for t in texts]
+
+
+def test_time_parser_falls_back_for_other_forms() -> None:
+    # Texts not in the store's own form (an older writer, another offset) are still read right.
+    texts = [
+        "2026-03-14T18:30:00+00:00",
+        "2026-03-14T19:30:00.250000+01:00",
+        "2026-03-14T18:30:00.000001+00:00",
+    ]
+    want = [datetime.fromisoformat(t).astimezone(UTC).replace(tzinfo=None) for t in texts]
+    assert _parse_times(texts).tolist() == want
+
+
+def test_odd_stored_time_is_read_as_attempts_reads_it(tmp_path: Path) -> None:
+    # A row written without microseconds (by hand or another writer) must not break the read.
+    rng = np.random.default_rng(3)
+    path = tmp_path / "odd.sqlite3"
+    with Store.open(path) as s:
+        s.log_many([random_attempt(rng) for _ in range(5)])
+    conn = sqlite3.connect(path)
+    conn.execute("UPDATE attempts SET at = '2024-03-01T00:00:00+00:00' WHERE id = 2")
+    conn.commit()
+    conn.close()
+    with Store.open(path) as s:
+        assert_columns_equal(s.columns(), s.attempts())
+
+
+def test_summarize_columns_equals_summarize_attempts(filled: Store) -> None:
+    # Reference: history.summarize over Attempt objects (itself held to the one-concept
+    # functions in test_history.py); the columnar read must give the identical History.
+    for tz in (UTC, ZoneInfo("Europe/Lisbon")):
+        for kw in filter_cases(filled):
+            slow = history.summarize(
+                filled.attempts(**kw),  # type: ignore[arg-type]
+                tz=tz,
+                today=T0.date() + timedelta(days=30),
+            )
+            fast = history.summarize(
+                filled.columns(**kw, fields=history.HISTORY_FIELDS),  # type: ignore[arg-type]
+                tz=tz,
+                today=T0.date() + timedelta(days=30),
+            )
+            assert fast == slow, kw
+            assert history.history_dict(fast) == history.history_dict(slow)
+
+
+def test_summarize_columns_with_a_custom_zone_key(filled: Store) -> None:
+    def zone(a: Attempt) -> str:
+        return a.table
+
+    slow = history.summarize(filled.attempts(), tz=UTC, zone_fn=zone)
+    fast = history.summarize(filled.columns(), tz=UTC, zone_fn=zone)
+    assert fast == slow and set(fast.zones) == set(TABLES)
+    with pytest.raises(ValueError, match="needs the attempt field"):
+        history.summarize(filled.columns(fields=("when",)), tz=UTC)
+
+
+def test_demo_club_history_same_both_ways(tmp_path: Path) -> None:
+    # The demo club (invented data) through write_club: sessions now start at their first
+    # attempt, and both reads summarise alike, landing bias included.
+    now = datetime(2026, 12, 1, 21, 30, tzinfo=UTC)
+    club = demo.make_club(np.random.default_rng(5), now, weeks=2, tz=UTC)
+    with Store.open(tmp_path / "demo.sqlite3") as s:
+        written = demo.write_club(s, club)
+        assert written == club.attempt_count == s.count_attempts()
+        infos = s.sessions()
+        assert [i.started for i in infos] == [x.attempts[0].when for x in club.sessions]
+        look = {t.name: t for t in club.tables}.get
+        slow = history.summarize(s.attempts(), tz=UTC, today=now.date(), table_of=look)
+        fast = history.summarize(s.columns(), tz=UTC, today=now.date(), table_of=look)
+        assert fast == slow and len(fast.bias) > 0
+
+
+def test_start_session_started_time(tmp_path: Path) -> None:
+    when = datetime(2025, 6, 1, 19, 0, 0, 5, tzinfo=UTC)
+    with Store.open(tmp_path / "s.sqlite3") as s:
+        sid = s.start_session("ann", "9ft", "mixed", started=when)
+        later = s.start_session("ann", "9ft", "mixed")
+        infos = {i.id: i for i in s.sessions()}
+        assert infos[sid].started == when
+        assert infos[later].started > when
+        with pytest.raises(StoreError, match="time zone"):
+            s.start_session("ann", "9ft", "mixed", started=datetime(2025, 6, 1))
