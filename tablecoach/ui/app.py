@@ -236,15 +236,17 @@ def build_app(
     """Open the store (paths / TABLECOACH_DATA_DIR) and build the app.
 
     Names not given come from the last setup-screen picks, then the defaults (9ft table, the
-    default pack, the login name). Raises StoreError for a damaged database and ValueError for
-    an unknown name, before any screen is drawn.
+    default pack; the store's only player, else the login name). Raises StoreError for a
+    damaged database and ValueError for an unknown name, before any screen is drawn.
     """
     saved = load_settings()
     store = Store.open(paths.db_path())
     try:
         t = table or saved.get("table") or DEFAULT_TABLE
         d = drill or saved.get("drill") or drills_mod.DEFAULT_DRILL
-        p = player or saved.get("player") or default_player()
+        known = store.players()
+        only = known[0] if len(known) == 1 else None  # one player in the store: that player
+        p = player or saved.get("player") or only or default_player()
         start = resolve(store, t, d, p)
         return TableCoachApp(
             store, start, d, seed=seed, model=model, ascii_only=ascii_only, theme=theme

@@ -82,3 +82,19 @@ def test_next_speed_cycles_the_presets(session):
     seen = [session.next_speed()[0] for _ in range(4)]
     assert sorted(seen) == sorted(shots.SPEED_PRESETS)
     assert session.stroke.speed == shots.SPEED_PRESETS[seen[-1]]
+
+
+def test_the_stores_only_player_is_the_default(data_env):
+    # With no --player and no remembered pick, the one player already in the store is used,
+    # so reopening tablecoach continues that player's practice.
+    from tablecoach import paths
+    from tablecoach.core.store import Store
+    from tablecoach.ui.app import build_app
+
+    with Store.open(paths.db_path()) as store:
+        store.ensure_player("Mara")
+    app = build_app(seed=1, model="ideal")
+    try:
+        assert app.practice is not None and app.practice.session.player == "Mara"
+    finally:
+        app.store.close()
