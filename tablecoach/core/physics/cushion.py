@@ -173,13 +173,15 @@ def _impulse_columns(
     e1 = 1.0 + m.e_cushion
 
     def rates(mw: np.ndarray, ms: np.ndarray) -> tuple[np.ndarray, ...]:
-        k = s + mw * sp * c
+        msp = mw * sp
+        mcp = mw * cp
+        k = s + msp * c
         mscpt = ms * cpt * k
         msspt = ms * spt * k
-        dvx = -inv_m * (mw * cp + mscpt)
+        dvx = -inv_m * (mcp + mscpt)
         dvy = -inv_m * (c - mw * s * sp + msspt)
-        dwx = -kw * (mw * sp + msspt)
-        dwy = -kw * (mw * cp * s - mscpt)
+        dwx = -kw * (msp + msspt)
+        dwy = -kw * (mcp * s - mscpt)
         dwz = kw * mw * cp * c
         return dvx, dvy, dwx, dwy, dwz
 
@@ -187,6 +189,7 @@ def _impulse_columns(
         neg = dvy < 0
         return np.where(neg, e1 * vy / -np.where(neg, dvy, -1.0), 0.0)
 
+    settled = False
     with np.errstate(divide="ignore", invalid="ignore"):
         for _ in range(2):
             dvx, dvy, dwx, dwy, dwz = rates(mw, ms)
@@ -196,11 +199,21 @@ def _impulse_columns(
             ds_t = (dvx - dwy * R) * cpt + (dvy + dwx * R) * spt
             pw = np.where(ds_w < 0, s_mag / -ds_w, np.inf)
             pt = np.where(ds_t < 0, c_mag / -ds_t, np.inf)
+            stick_w = pw < p_tot
+            stick_t = pt < p_tot
+            if not (stick_w.any() or stick_t.any()):
+                # no contact sticks: the frictions stay as they are, and so would every
+                # further pass, so these rates are the final ones
+                settled = True
+                break
             safe = np.maximum(p_tot, 1e-300)
-            mw = np.where(pw < p_tot, mw * pw / safe, mw)
-            ms = np.where(pt < p_tot, ms * pt / safe, ms)
-    dvx, dvy, dwx, dwy, dwz = rates(mw, ms)
-    p = total(dvy)
+            mw = np.where(stick_w, mw * pw / safe, mw)
+            ms = np.where(stick_t, ms * pt / safe, ms)
+    if settled:
+        p = p_tot
+    else:
+        dvx, dvy, dwx, dwy, dwz = rates(mw, ms)
+        p = total(dvy)
     return vx + dvx * p, vy + dvy * p, wx + dwx * p, wy + dwy * p, wz + dwz * p
 
 
