@@ -31,7 +31,7 @@ from .shots import (
     make_family,
     make_setup,
     parse_speed,
-    solve_aim,
+    solve_ideal,
 )
 from .table import POCKETS, TableError, TableSpec
 
@@ -500,7 +500,7 @@ def _draw(
             setup = make_setup(
                 table, item.family, pts["cue"], pts.get("object"), pocket, pts.get("target")
             )
-            aim = solve_aim(table, setup, stroke, "ideal")
+            aim = solve_ideal(table, setup, stroke, margin=False)  # a clean path is enough
         except (ShotError, TableError):
             continue
         if aim.cut_angle is not None and aim.cut_angle > MAX_BANK_CUT:

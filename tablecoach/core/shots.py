@@ -600,11 +600,15 @@ def _rail_beyond(rail: str, along: float, lo: float) -> str:
     return "head" if along < lo else "foot"
 
 
-def solve_ideal(table: TableSpec, setup: Setup, stroke: Stroke | None = None) -> Aim:
+def solve_ideal(
+    table: TableSpec, setup: Setup, stroke: Stroke | None = None, margin: bool = True
+) -> Aim:
     """The ideal (mirror) aim for a setup: reading, contacts, landing, margin.
 
     Raises ShotError with a plain reason when there is no clean path (a contact off its rail,
-    in a pocket mouth, another ball in the way, a jaw in the way of the pocket).
+    in a pocket mouth, another ball in the way, a jaw in the way of the pocket). With
+    ``margin=False`` (checking candidate setups) the margin search is skipped and both
+    margins are 0.
     """
     stroke = stroke or Stroke()
     d, contacts = _ideal_direction(table, setup)
@@ -618,7 +622,11 @@ def solve_ideal(table: TableSpec, setup: Setup, stroke: Stroke | None = None) ->
     if not tr.scores:
         raise ShotError(f"no clean path: the ideal line {tr.outcome}")
     assert tr.landing is not None
-    minus, plus = _margin(table, setup, first, reading, lambda dd: trace_ideal(table, setup, dd))
+    minus = plus = 0.0
+    if margin:
+        minus, plus = _margin(
+            table, setup, first, reading, lambda dd: trace_ideal(table, setup, dd)
+        )
     ghost = cut = None
     if setup.family.travel == "object":
         ghost, cut = _ghost(table, setup, d)
