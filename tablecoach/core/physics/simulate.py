@@ -398,24 +398,32 @@ def _ball_times(
     (sliding with the slip across the velocity) is the quartic |p + v t + a t^2/2|^2 = reach^2
     (Leckie and Greenspan 2006), solved in roots.py.
     """
-    spd = np.sqrt(dot2(v, v))
-    amag = np.sqrt(dot2(a, a))
-    cross = np.abs(v[:, 0] * a[:, 1] - v[:, 1] * a[:, 0])
+    vx, vy, ax, ay = v[:, 0], v[:, 1], a[:, 0], a[:, 1]
+    spd = np.sqrt(vx * vx + vy * vy)
+    amag = np.sqrt(ax * ax + ay * ay)
+    cross = np.abs(vx * ay - vy * ax)
     straight = cross <= 1e-12 * np.maximum(spd * amag, 1e-300)
+    every = bool(straight.all())
     out = np.full(p.shape[0], np.inf)
-    if straight.any():
-        ps, vs, as_ = p[straight], v[straight], a[straight]
-        sp = spd[straight]
-        u = vs / np.maximum(sp, 1e-300)[:, None]
-        b = dot2(ps, u)
-        cc = dot2(ps, ps) - reach * reach
+    if every or straight.any():
+        # on columns, the whole batch at once when every path is straight
+        if every:
+            px, py, sx, sy, hx, hy, sp, tm = p[:, 0], p[:, 1], vx, vy, ax, ay, spd, t_max
+        else:
+            ps, vs, as_ = p[straight], v[straight], a[straight]
+            px, py, sx, sy = ps[:, 0], ps[:, 1], vs[:, 0], vs[:, 1]
+            hx, hy, sp, tm = as_[:, 0], as_[:, 1], spd[straight], t_max[straight]
+        sp_div = np.maximum(sp, 1e-300)
+        ux, uy = sx / sp_div, sy / sp_div
+        b = px * ux + py * uy
+        cc = (px * px + py * py) - reach * reach
         disc = b * b - cc
         s_hit = -b - np.sqrt(np.maximum(disc, 0.0))
         ok = (disc >= 0) & (s_hit >= 0) & (sp > 0)
         # distance along the line s(t) = |v| t + (a.u) t^2 / 2 reaching s_hit
-        t = first_quadratic_root(
-            -0.5 * dot2(as_, u), -sp, np.where(ok, s_hit, -1.0), t_max[straight]
-        )
+        t = first_quadratic_root(-0.5 * (hx * ux + hy * uy), -sp, np.where(ok, s_hit, -1.0), tm)
+        if every:
+            return np.where(ok, t, np.inf)
         out[straight] = np.where(ok, t, np.inf)
     curved = ~straight
     if curved.any():
