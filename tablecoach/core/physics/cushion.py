@@ -100,7 +100,7 @@ def mathavan_impact(m: BallModel, v: np.ndarray, w: np.ndarray) -> tuple[np.ndar
     active = np.ones(n, dtype=bool)
     e2 = m.e_cushion**2
     for _ in range(50 * m.cushion_steps):
-        if not active.any():
+        if not np.count_nonzero(active):
             break
         idx = np.flatnonzero(active)
         x = st[idx]
@@ -201,7 +201,7 @@ def _impulse_columns(
             pt = np.where(ds_t < 0, c_mag / -ds_t, np.inf)
             stick_w = pw < p_tot
             stick_t = pt < p_tot
-            if not (stick_w.any() or stick_t.any()):
+            if not (np.count_nonzero(stick_w) or np.count_nonzero(stick_t)):
                 # no contact sticks: the frictions stay as they are, and so would every
                 # further pass, so these rates are the final ones
                 settled = True

@@ -47,12 +47,12 @@ def first_quartic_root(coef: np.ndarray, t_max: np.ndarray) -> np.ndarray:
         return out
     scale = np.max(np.abs(coef[:, 2:]), axis=1) + 1e-300
     small = (np.abs(coef[:, 0]) < 1e-12 * scale) & (np.abs(coef[:, 1]) < 1e-12 * scale)
-    if small.any():
+    if np.count_nonzero(small):
         out[small] = first_quadratic_root(
             coef[small, 2], coef[small, 3], coef[small, 4], t_max[small]
         )
     big = ~small
-    if big.any():
+    if np.count_nonzero(big):
         c = coef[big] / coef[big, :1]
         k = c.shape[0]
         comp = np.zeros((k, 4, 4))

@@ -179,7 +179,7 @@ def simulate(
     at_rest = np.zeros(n, dtype=bool)
     live = np.ones(n, dtype=bool)
     lean_rows = np.broadcast_to(np.asarray(lean, dtype=bool), (n,))
-    any_lean = bool(lean_rows.any())
+    any_lean = bool(np.count_nonzero(lean_rows))
     segments: list[Segment] = []
     sgn = np.array([1.0, -1.0, 1.0, -1.0])
     ax4 = np.array([0, 0, 1, 1])
@@ -188,14 +188,14 @@ def simulate(
     events = 0
     sp0 = np.hypot(v[:, 0], v[:, 1])
     last_dir[sp0 > 0] = v[sp0 > 0] / sp0[sp0 > 0, None]
-    while live.any() and events < max_events:
+    while np.count_nonzero(live) and events < max_events:
         events += 1
         idx = np.flatnonzero(live)
         ri, vi, wi = r[idx], v[idx], w[idx]
         ph, a, t_end = prepare(m, vi, wi)
         # balls at rest (or only spinning in place) leave the simulation
         rest = ph <= SPINNING
-        if rest.any():
+        if np.count_nonzero(rest):
             stop_pos[idx[rest]] = ri[rest]
             live[idx[rest]] = False
             keep = ~rest
@@ -216,7 +216,7 @@ def simulate(
         tw_end = np.minimum(t_end, t_w)
         wl = walls[idx]
         act = bvalid[idx] & (wl[:, None] >= ball_from[idx]) & (ball[idx, None] < 0) if k else None
-        if act is not None and act.any():
+        if act is not None and np.count_nonzero(act):
             bb = balls[idx]
             # prefilter: a ball farther from the line of travel than the path can bend, or
             # beyond the distance the row can cover before its next wall or phase end, is
@@ -263,7 +263,7 @@ def simulate(
         is_end = ~is_ball & ~is_wall
         # closest approach of the target point while after the family's rails
         after = wl == nf  # live rows have not entered a pocket
-        if after.any():
+        if np.count_nonzero(after):
             if any_lean:  # a lean row stops at the ball: measure on to its next event
                 lb = is_ball & lean_rows[idx]
                 tc = np.where(lb, np.minimum(t_end, t_w), dt)
@@ -275,7 +275,7 @@ def simulate(
                 ri, vi, a, tc, target_point[idx], after, to_rest, to_wall, best, miss, at_rest, idx
             )
         # ball contact: note it, and run on through the ball (balls ignored from now)
-        if is_ball.any():
+        if np.count_nonzero(is_ball):
             bi = idx[is_ball]
             ball[bi] = b_id[is_ball]
             ball_walls[bi] = walls[bi]
@@ -284,10 +284,10 @@ def simulate(
             if any_lean:
                 live[bi[lean_rows[bi]]] = False
         # phase ends
-        if is_end.any():
+        if np.count_nonzero(is_end):
             settle(m, v2, w2, is_end, ph)
         # wall crossings
-        if is_wall.any():
+        if np.count_nonzero(is_wall):
             wi_rows = np.flatnonzero(is_wall)
             rows = idx[wi_rows]
             code = wall_code[wi_rows]
@@ -311,7 +311,7 @@ def simulate(
             landing_at[rows[land]] = along[land]
             # pocket entries
             pk = ~cush & keep
-            if pk.any():
+            if np.count_nonzero(pk):
                 pr = rows[pk]
                 pc = code[pk]
                 al = along[pk]
@@ -338,7 +338,7 @@ def simulate(
             # cushion impacts for rows still going (the landing crossing ends a row)
             go = cush & ~land & keep
             live[rows[cush & land]] = False
-            if go.any():
+            if np.count_nonzero(go):
                 gi = wi_rows[go]
                 nv, nw = rail_impact(m, _NORMALS[code[go]], v2[gi], w2[gi])
                 v2[gi], w2[gi] = nv, nw
@@ -405,7 +405,7 @@ def _ball_times(
     straight = cross <= 1e-12 * np.maximum(spd * amag, 1e-300)
     every = bool(straight.all())
     out = np.full(p.shape[0], np.inf)
-    if every or straight.any():
+    if every or np.count_nonzero(straight):
         # on columns, the whole batch at once when every path is straight
         if every:
             px, py, sx, sy, hx, hy, sp, tm = p[:, 0], p[:, 1], vx, vy, ax, ay, spd, t_max
@@ -426,7 +426,7 @@ def _ball_times(
             return np.where(ok, t, np.inf)
         out[straight] = np.where(ok, t, np.inf)
     curved = ~straight
-    if curved.any():
+    if np.count_nonzero(curved):
         pc, vc, ac = p[curved], v[curved], a[curved]
         coef = np.stack(
             (
