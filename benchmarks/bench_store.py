@@ -1,5 +1,8 @@
 """Store speed: time to log one attempt (goal under 5 ms) and to query 100,000 attempts.
 
+``attempts`` builds Attempt objects; ``columns`` reads the same rows as numpy columns (the
+history's path), either every field or only those the history reads.
+
 Run: python benchmarks/bench_store.py [--n 100000]. Prints figures; asserts nothing, since the
 machines are shared and noisy.
 """
@@ -19,6 +22,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
 import numpy as np  # noqa: E402
 
+from tablecoach.core.history import HISTORY_FIELDS  # noqa: E402
 from tablecoach.core.records import Attempt, ShotRecord  # noqa: E402
 from tablecoach.core.store import Store  # noqa: E402
 
@@ -113,7 +117,11 @@ def main() -> None:
                 ("family", lambda: s.attempts(family="cross-corner-bank")),
                 ("player+since", lambda: s.attempts(player="player2", since=since)),
                 ("session", lambda: s.attempts(session=sid)),
+                ("player+session", lambda: s.attempts(player="player0", session=sid)),
                 ("sessions list", lambda: s.sessions()),
+                ("columns all", lambda: s.columns()),
+                ("columns hist.", lambda: s.columns(fields=HISTORY_FIELDS)),
+                ("columns player", lambda: s.columns(player="player1", fields=HISTORY_FIELDS)),
             ]
             for name, fn in cases:
                 t, res = timed(fn)

@@ -841,20 +841,24 @@ class Store:
     ) -> tuple[str, list[Any]]:
         where: list[str] = []
         args: list[Any] = []
+        # A session is a few dozen attempts: with one asked for, the other terms get a unary +
+        # (same values, SQLite's way to keep a term off an index) so that the planner, which
+        # has no statistics, looks the session up rather than scanning a player's whole index.
+        plus = "+" if session is not None else ""
         for col, val in (
-            ("player", player),
-            ("table_name", table),
-            ("family", family),
+            (plus + "player", player),
+            (plus + "table_name", table),
+            (plus + "family", family),
             ("session_id", session),
         ):
             if val is not None:
                 where.append(f"{col} = ?")
                 args.append(val)
         if since is not None:
-            where.append("at >= ?")
+            where.append(f"{plus}at >= ?")
             args.append(iso_utc(since if since.tzinfo else since.replace(tzinfo=UTC)))
         if until is not None:
-            where.append("at < ?")
+            where.append(f"{plus}at < ?")
             args.append(iso_utc(until if until.tzinfo else until.replace(tzinfo=UTC)))
         return (" WHERE " + " AND ".join(where) if where else ""), args
 

@@ -75,9 +75,15 @@ def filled(tmp_path_factory: pytest.TempPathFactory) -> Store:
     path = Path(tmp_path_factory.mktemp("cols")) / "db.sqlite3"
     s = Store.open(path)
     for _ in range(6):
-        sid = s.start_session(str(rng.choice(PLAYERS)), str(rng.choice(TABLES)), "mixed")
+        who, where = str(rng.choice(PLAYERS)), str(rng.choice(TABLES))
+        sid = s.start_session(who, where, "mixed")
         items = [random_attempt(rng) for _ in range(int(rng.integers(5, 40)))]
-        s.log_many([Attempt(**{**_fields(a), "session": sid}) for a in items])
+        s.log_many(
+            [
+                Attempt(**{**_fields(a), "session": sid, "player": who, "table": where})
+                for a in items
+            ]
+        )
     s.import_attempts([random_attempt(rng) for _ in range(300)])
     # two attempts at the same instant: order then falls to the id
     twin = random_attempt(rng)
@@ -279,3 +285,66 @@ def test_start_session_started_time(tmp_path: Path) -> None:
         assert infos[later].started > when
         with pytest.raises(StoreError, match="time zone"):
             s.start_session("ann", "9ft", "mixed", started=datetime(2025, 6, 1))
+
+
+def test_a_value_holding_the_key_separator_is_read_field_by_field(tmp_path: Path) -> None:
+    # The key fields are joined with char(31) in SQL; a name holding it must not be split.
+    rng = np.random.default_rng(11)
+    with Store.open(tmp_path / "sep.sqlite3") as s:
+        odd = Attempt(**{**_fields(random_attempt(rng)), "player": "a\x1fb", "drill": "x\x1f"})
+        s.log_many([random_attempt(rng), odd, random_attempt(rng)])
+        cols = s.columns()
+        assert cols.key is None  # the joined read was refused
+        assert "a\x1fb" in cols.player
+        assert_columns_equal(cols, s.attempts())
+        keyed = s.columns(player="a\x1fb", fields=("player", "table", "result"))
+        assert keyed.player == ("a\x1fb",) and keyed.key is None
+
+
+def test_keyed_columns_group_like_the_tuples(filled: Store) -> None:
+    cols = filled.columns(fields=history.HISTORY_FIELDS)
+    assert cols.key is not None and set(cols.key_fields) <= set(history.HISTORY_FIELDS)
+    for j, name in enumerate(cols.key_fields):
+        assert tuple(cols.key_values[k][j] for k in cols.key.tolist()) == getattr(cols, name)
+    firsts = [cols.key.tolist().index(k) for k in range(len(cols.key_values))]
+    assert firsts == sorted(firsts)  # numbered in order of first appearance
+
+
+def plan(s: Store, **kw: object) -> str:
+    where, args = s._filters(  # noqa: SLF001  (the store's own WHERE clause)
+        kw.get("player"), kw.get("table"), kw.get("family"),  # type: ignore[arg-type]
+        kw.get("since"), kw.get("until"), kw.get("session"),  # type: ignore[arg-type]
+    )  # fmt: skip
+    rows = s._conn.execute(  # noqa: SLF001
+        f"EXPLAIN QUERY PLAN SELECT cue_x FROM attempts{where} ORDER BY at, id", args
+    ).fetchall()
+    return "; ".join(r[3] for r in rows)
+
+
+def test_history_queries_use_an_index(filled: Store) -> None:
+    # SQLite's own EXPLAIN QUERY PLAN (sqlite.org/eqp.html): every filter the history offers is
+    # answered from an index, and the full read needs no sort of its own.
+    t = T0 + timedelta(days=3)
+    first = filled.sessions()[0]
+    sid, who = first.id, first.player
+    assert plan(filled) == "SCAN attempts USING INDEX attempts_at"
+    for kw, index in (
+        ({"player": "ann"}, "attempts_player_at"),
+        ({"table": "9ft"}, "attempts_table_at"),
+        ({"family": "custom"}, "attempts_family_at"),
+        ({"since": t, "until": t + timedelta(days=7)}, "attempts_at"),
+        ({"player": "ann", "table": "9ft", "since": t}, "attempts_player_table_at"),
+        ({"session": sid}, "attempts_session"),
+        ({"player": who, "session": sid}, "attempts_session"),
+        ({"player": who, "since": t, "session": sid}, "attempts_session"),
+    ):
+        p = plan(filled, **kw)
+        assert f"USING INDEX {index}" in p, (kw, p)
+        if "session" not in kw:
+            assert "TEMP B-TREE" not in p, (kw, p)
+    # and the session filter still returns the same attempts with the other terms present
+    ref = filled.attempts(session=sid)
+    assert len(ref) == first.attempts > 0
+    assert filled.attempts(player=who, session=sid) == ref
+    assert filled.attempts(player=who + "x", session=sid) == []
+    assert_columns_equal(filled.columns(player=who, session=sid), ref)
