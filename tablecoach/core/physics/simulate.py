@@ -22,7 +22,7 @@ import numpy as np
 
 from ..table import POCKETS, RAILS, TableSpec
 from .cushion import rail_impact
-from .motion import ROLLING, SPINNING, dot2, evolve, prepare, settle
+from .motion import ROLLING, SLIDING, SPINNING, dot2, evolve, prepare, settle
 from .params import BallModel
 from .roots import first_quadratic_root, first_quartic_root
 
@@ -254,7 +254,7 @@ def simulate(
         dt = np.where(np.isfinite(dt), dt, 0.0)
         if record:
             segments.append(Segment(ri.copy(), vi.copy(), wi.copy(), ph.copy(), dt.copy(), idx))
-        r2, v2, w2 = evolve(m, ri, vi, wi, ph, dt, a)
+        r2, v2, w2 = _evolve_moving(m, ri, vi, wi, ph, dt, a)
         sp = np.hypot(v2[:, 0], v2[:, 1])
         mv = sp > 1e-12
         last_dir[idx[mv]] = v2[mv] / sp[mv, None]
@@ -386,6 +386,30 @@ def simulate(
         ball_event,
         segments,
     )
+
+
+def _evolve_moving(
+    m: BallModel,
+    r: np.ndarray,
+    v: np.ndarray,
+    w: np.ndarray,
+    phase: np.ndarray,
+    t: np.ndarray,
+    a: np.ndarray,
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """motion.evolve for rows that all roll or slide (the loop has dropped the rest): the
+    same arithmetic without the branches for stopped and spinning balls."""
+    tt = t[:, None]
+    r2 = r + (v + 0.5 * a * tt) * tt
+    v2 = v + a * tt
+    k = 2.5 / m.radius
+    w2 = np.empty_like(w)
+    sl = phase == SLIDING
+    w2[:, 0] = np.where(sl, w[:, 0] + k * a[:, 1] * t, -v2[:, 1] / m.radius)
+    w2[:, 1] = np.where(sl, w[:, 1] - k * a[:, 0] * t, v2[:, 0] / m.radius)
+    wz = w[:, 2]
+    w2[:, 2] = np.sign(wz) * np.maximum(np.abs(wz) - m.spin_decel * t, 0.0)
+    return r2, v2, w2
 
 
 def _ball_times(
