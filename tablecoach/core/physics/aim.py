@@ -29,7 +29,7 @@ from .collide import strike
 from .motion import SPINNING, dot2, evolve, prepare, settle
 from .params import BallModel, CushionModel, model_of
 from .roots import first_quadratic_root
-from .simulate import SimResult, sample_path, simulate
+from .simulate import SimResult, _evolve_moving, sample_path, simulate
 from .stick import StrokeError, check_offset, stick_hit
 
 GRID = 40
@@ -140,7 +140,7 @@ def _advance(
     going = sp > 0
     r = np.zeros((n, 2))
     for _ in range(4):
-        if not going.any():
+        if not np.count_nonzero(going):
             break
         ph, a, T = prepare(m, v, w)
         going &= ph > SPINNING
@@ -150,10 +150,14 @@ def _advance(
         hit = going & np.isfinite(t)
         tt = np.where(hit, t, np.where(np.isfinite(T), T, 0.0))
         tt = np.where(going, tt, 0.0)
-        _, v2, w2 = evolve(m, r, v, w, ph, tt, a)
+        if np.count_nonzero(ph <= SPINNING):
+            _, v2, w2 = evolve(m, r, v, w, ph, tt, a)
+        else:  # every ball rolls or slides: the loop's own evolve, same arithmetic
+            _, v2, w2 = _evolve_moving(m, r, v, w, ph, tt, a)
         moved = along_v * tt + 0.5 * along_a * tt * tt
         ended = going & ~hit
-        settle(m, v2, w2, ended, ph)
+        if np.count_nonzero(ended):  # settle changes only the balls whose phase ended
+            settle(m, v2, w2, ended, ph)
         v = np.where(going[:, None], v2, v)
         w = np.where(going[:, None], w2, w)
         left = np.where(going, left - moved, left)
