@@ -1,6 +1,7 @@
 """Practice history: streaks, make rates with Wilson intervals, weekly trends, landing bias.
 
-Pure functions over :class:`~tablecoach.core.records.Attempt` lists. Attempts are taken in time
+Pure functions over :class:`~tablecoach.core.records.Attempt` lists; ``summarize`` also takes
+the store's columns (``Store.columns``) without building Attempts. Attempts are taken in time
 order (``when``, then ``id``); days and ISO weeks are counted in the player's local time zone
 (a ``tz`` argument, default the machine's local zone, daylight saving included).
 """
