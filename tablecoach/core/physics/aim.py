@@ -725,7 +725,11 @@ def solve_physical(
     if pr.bank and edge_readings is None:
         lohi = np.array([sol.lo, sol.hi])
         edge_readings = _launch(m, table, pr, np.zeros(2, dtype=np.int64), lohi, stroke).reading
-    lo_r, hi_r = (float(x) for x in edge_readings) if pr.bank else (sol.lo, sol.hi)
+    if pr.bank:
+        assert edge_readings is not None
+        lo_r, hi_r = float(edge_readings[0]), float(edge_readings[1])
+    else:
+        lo_r, hi_r = sol.lo, sol.hi
     unit = table.rail_unit(rail)
     minus = min(max(reading - lo_r, 0.0), MARGIN_CAP * unit)
     plus = min(max(hi_r - reading, 0.0), MARGIN_CAP * unit)
