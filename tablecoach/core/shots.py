@@ -750,8 +750,7 @@ class StopsShort(ShotError):
 
 
 def _stops_short(exc: ShotError) -> bool:
-    msg = str(exc)
-    return isinstance(exc, StopsShort) or ("stops" in msg and "short of the target" in msg)
+    return isinstance(exc, StopsShort)
 
 
 def solve_playable(

@@ -23,7 +23,7 @@ import numpy as np
 
 from .. import shots
 from ..geometry import Point, axis_of, nearest_point_to_lines, unfold
-from ..shots import Aim, Convergence, RailPoint, Setup, ShotError, Stroke, Trace
+from ..shots import Aim, Convergence, RailPoint, Setup, ShotError, StopsShort, Stroke, Trace
 from ..table import POCKETS, RAILS, RailName, TableSpec
 from .collide import strike
 from .motion import SPINNING, dot2, evolve, prepare, settle
@@ -686,7 +686,8 @@ def solve_physical(
         res, ln = _run(m, table, pr, pi1, pr.centre[:1], stroke, record=False)
         _, why = _trace_of(m, table, pr, res, ln)
         hint = "; try a firmer stroke" if "stops" in why else ""
-        raise ShotError(
+        err = StopsShort if "stops" in why else ShotError
+        raise err(
             f"no reading scores at {stroke.speed:.2f} m/s under the physical model: "
             f"on the mirror line the ball {why}{hint}"
         )
@@ -712,14 +713,16 @@ def solve_physical(
     if not tr.scores:
         win = _window(m, table, pr, stroke, sol, sol.reading)
         if win is None:
-            raise ShotError(f"no clean path under the physical model: the best line {tr.outcome}")
+            err = StopsShort if "stops" in tr.outcome else ShotError
+            raise err(f"no clean path under the physical model: the best line {tr.outcome}")
         mid = 0.5 * (win[0] + win[1])
         sol = _Solved(mid, win[0], win[1], "window")
         res, ln = _run(m, table, pr, pi1, np.array([mid]), stroke, record=True)
         tr, why = _trace_of(m, table, pr, res, ln)
         landing_fast = None
         if not tr.scores:
-            raise ShotError(f"no clean path under the physical model: the best line {why}")
+            err = StopsShort if "stops" in why else ShotError
+            raise err(f"no clean path under the physical model: the best line {why}")
     reading = float(ln.reading[0])
     assert sol.lo is not None and sol.hi is not None
     if pr.bank and edge_readings is None:
