@@ -607,6 +607,7 @@ def _columns_of(ac: AttemptColumns) -> Columns:
         (table_names[table[i]], rail_seqs[rail_code[i]], aim_rails[aim_code[i]])
         for i in first.tolist()
     )
+    assert ac.cue_x is not None and ac.cue_y is not None
     start = np.column_stack((ac.cue_x, ac.cue_y)).astype(np.float64)
     travel_code, travels = _coded(ac, "travel")
     travel = np.array([t == "object" for t in travels], bool)[travel_code]

@@ -936,7 +936,8 @@ class Store:
         n = len(rows)
         cols: list[Any] = list(zip(*rows, strict=True)) if n else [()] * (len(exprs) + 2)
         del rows
-        key, combos = None, ()
+        key: Any = None
+        combos: tuple[tuple[Any, ...], ...] = ()
         if keyed:
             split = _split_keys(cols[-3], keyed)
             if split is None:  # a value holds the separator: read the fields one by one
