@@ -16,7 +16,7 @@ from textual.message import Message
 from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Static
 
-from tablecoach.commands.history import Filters, pct, query_columns, spark, table_resolver
+from tablecoach.commands.history import Filters, query_columns, spark, table_resolver
 from tablecoach.core import history
 from tablecoach.render.heatmap import HeatMap, legend_text
 
@@ -296,8 +296,18 @@ class HistoryScreen(Screen[None]):
         if h.zone_streaks:
             z, s = max(h.zone_streaks.items(), key=lambda kv: (kv[1].best, str(kv[0])))
             grid.add_row("best zone run", "", str(s.best))
-            grid.add_row(Text(f"  {getattr(z, 'label', z)}", style="dim"), "", "")
-        grid.add_row("made", f"{h.rate.hits}/{h.rate.attempts}", pct(h.rate))
+            grid.add_row(Text(f"  {getattr(z, 'family', z)}", style="dim"), "", "")
+            where = f"{z.short}, {z.speed}" if hasattr(z, "short") else ""
+            if where:
+                grid.add_row(Text(f"  {where}", style="dim"), "", "")
+        r = h.rate
+        if r.rate is None:
+            grid.add_row("made", "0/0", "-")
+        else:  # the rate and its Wilson interval on rows of their own, to fit 100 columns
+            grid.add_row("made", f"{r.hits}/{r.attempts}", f"{100 * r.rate:.0f}%")
+            grid.add_row(
+                Text("  likely range", style="dim"), "", f"{100 * r.low:.0f}-{100 * r.high:.0f}%"
+            )
         return grid
 
     def _trends(self, h: history.History) -> RichTable:
