@@ -68,15 +68,16 @@ def resolve_table(name: str | None, player: str | None = None) -> tuple[Any, Any
     A stored custom table or a calibration needs the practice database; with none yet, the
     built-in table, uncalibrated. With one player in the store, that player is the default.
     """
-    from ..core import calibrate
-    from ..core.store import Store
     from ..core.table import DEFAULT_TABLE, builtin_table
     from ..paths import db_path
 
     name = name or DEFAULT_TABLE
     path = db_path()
-    if not path.exists():
-        return builtin_table(name), None, calibrate.NOT_CALIBRATED
+    if not path.exists():  # no practice yet: skip loading the store and calibration code
+        return builtin_table(name), None, "not calibrated yet"
+    from ..core import calibrate
+    from ..core.store import Store
+
     with Store.open(path) as store:
         r = calibrate.resolve(store, name, player)
     return r.table, r.calibration, r.status
@@ -85,7 +86,6 @@ def resolve_table(name: str | None, player: str | None = None) -> tuple[Any, Any
 def setup_from_args(args: argparse.Namespace) -> tuple[Any, Any, Any, str]:
     """(table, setup, stroke, status) from the shared shot options."""
     from ..core import shots
-    from ..core.calibrate import speed_for
     from ..core.shots import ShotError
 
     table, calibration, status = resolve_table(args.table, getattr(args, "player", None))
@@ -117,7 +117,13 @@ def setup_from_args(args: argparse.Namespace) -> tuple[Any, Any, Any, str]:
         if abs(v) > 1.0:
             raise ShotError(f"--{name} {v:g} tips is more than a tip: it would miscue")
     # a preset name means this player's own "medium" etc. once the table is calibrated
-    stroke = shots.Stroke(speed_for(calibration, args.speed), args.english, args.follow)
+    if calibration is None:
+        speed = shots.parse_speed(args.speed)
+    else:
+        from ..core.calibrate import speed_for
+
+        speed = speed_for(calibration, args.speed)
+    stroke = shots.Stroke(speed, args.english, args.follow)
     return table, setup, stroke, status
 
 
