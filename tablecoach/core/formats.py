@@ -14,38 +14,21 @@ from collections.abc import Iterable
 from datetime import UTC, datetime
 from typing import IO, Any
 
-from .records import SCHEMA_VERSION, Attempt, RecordError, ShotRecord, flatten, validate_attempt
+from .records import (
+    FLAT_FIELDS,
+    SCHEMA_VERSION,
+    Attempt,
+    RecordError,
+    ShotRecord,
+    flatten,
+    validate_attempt,
+)
 
 FORMATS = ("jsonl", "csv")
 
 CSV_COLUMNS: tuple[str, ...] = (
     "v",
-    "when",
-    "player",
-    "table",
-    "travel",
-    "rails",
-    "family",
-    "target_pocket",
-    "target_x",
-    "target_y",
-    "cue_x",
-    "cue_y",
-    "object_x",
-    "object_y",
-    "speed",
-    "english",
-    "follow",
-    "aim_rail",
-    "aim_given",
-    "aim_used",
-    "result",
-    "landing_rail",
-    "landing_at",
-    "note",
-    "model",
-    "drill",
-    "zone",
+    *({"pocket": "target_pocket"}.get(f, f) for f in FLAT_FIELDS),
 )
 """CSV header, in order. ``rails`` joins rail names with ';'; empty cells are absent values."""
 

@@ -171,35 +171,9 @@ _MIGRATIONS = {1: _migrate_1_to_2}
 
 # ----- rows <-> attempts ----------------------------------------------------------------------
 
-_COL_NAMES = (
-    "at",
-    "player",
-    "table_name",
-    "travel",
-    "rails",
-    "family",
-    "pocket",
-    "target_x",
-    "target_y",
-    "cue_x",
-    "cue_y",
-    "object_x",
-    "object_y",
-    "speed",
-    "english",
-    "follow",
-    "aim_rail",
-    "aim_given",
-    "aim_used",
-    "result",
-    "landing_rail",
-    "landing_at",
-    "note",
-    "model",
-    "drill",
-    "zone",
-    "session_id",
-)
+_DB_NAMES = {"when": "at", "table": "table_name"}
+"""Database column names that differ from the record field names (SQL keywords avoided)."""
+_COL_NAMES = (*(_DB_NAMES.get(f, f) for f in FLAT_FIELDS), "session_id")
 _COLS = ", ".join(_COL_NAMES)
 
 
