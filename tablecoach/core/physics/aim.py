@@ -655,7 +655,7 @@ def predict_physical(
     setup: Setup,
     stroke: Stroke,
     reading: float,
-    cushion: CushionModel = "impulse",
+    cushion: CushionModel = "stepped",
 ) -> Trace:
     """Where a reading (metres along the first rail's line of sights) takes the travelling ball
     under the physical model: the same meaning as shots.trace_ideal."""
@@ -669,7 +669,7 @@ def predict_physical(
 
 
 def solve_physical(
-    table: TableSpec, setup: Setup, stroke: Stroke, cushion: CushionModel = "impulse"
+    table: TableSpec, setup: Setup, stroke: Stroke, cushion: CushionModel = "stepped"
 ) -> Aim:
     """The reading whose simulated path touches the family's rails in order and reaches the
     target, with the window of readings that still score (margin_minus/plus, metres).
@@ -773,7 +773,7 @@ def convergence_physical(
     setup: Setup,
     starts: list[Point],
     stroke: Stroke,
-    cushion: CushionModel = "impulse",
+    cushion: CushionModel = "stepped",
 ) -> Convergence:
     """The least-squares point nearest the physical aim lines from several start positions.
 
