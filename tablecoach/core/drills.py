@@ -550,6 +550,11 @@ def deal(
     return [_draw(table, drill, k, rng) for k in slots]
 
 
+def deal_item(table: TableSpec, drill: Drill, k: int, rng: np.random.Generator) -> Dealt:
+    """One clean setup of the pack's item ``k`` (as ``deal`` draws them)."""
+    return _draw(table, drill, k, rng)
+
+
 def sample_setups(table: TableSpec, drill: Drill, rng: np.random.Generator, n: int) -> list[Dealt]:
     """``n`` candidate setups for the coach to choose from: items drawn by weight, each clean."""
     w = np.array([i.weight for i in drill.items], dtype=float)

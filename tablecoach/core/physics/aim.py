@@ -32,9 +32,10 @@ from .roots import first_quadratic_root
 from .simulate import SimResult, _evolve_moving, sample_path, simulate
 from .stick import StrokeError, check_offset, stick_hit
 
-GRID = 40
-"""Readings in the first pass, spread over +-HALF_WINDOW rail diamonds around the ideal."""
-HALF_WINDOW = 2.5
+GRID_STEP = 0.125
+"""Spacing (rail diamonds) of the first pass, which covers every reading along the first rail
+(a quarter diamond beyond each end), so a shot whose aim lies far from the mirror line is still
+found; the sign change nearest the ideal reading is taken."""
 REFINE = 15
 """Interior points per bracket in the refining pass."""
 REFINE_EDGE = 47
@@ -316,8 +317,10 @@ def _solve(
     """
     P = pr.start.shape[0]
     unit = table.rail_unit(pr.rail)
-    offs = np.linspace(-HALF_WINDOW, HALF_WINDOW, GRID) * unit
-    grid = pr.centre[:, None] + offs[None, :]
+    span = 8.0 if pr.rail in ("left", "right") else 4.0
+    offs = np.arange(-0.25, span + 0.25 + 1e-9, GRID_STEP) * unit
+    GRID = offs.size
+    grid = np.broadcast_to(offs, (P, GRID)).copy()
     pi = np.repeat(np.arange(P), GRID)
     res, _ = _run(m, table, pr, pi, grid.ravel(), stroke, lean=True)
     mv = res.miss.reshape(P, GRID)

@@ -21,9 +21,9 @@ class BallModel:
     energetic restitution and ``mu_w`` the ball-cushion friction of Mathavan, Jackson and Parkin
     (2010); ``theta`` the cushion contact angle above the equator (TableSpec.contact_angle);
     ``e_ball`` and ``mu_ball`` the ball-ball restitution and friction level (Alciatore 0.95,
-    0.06); ``cushion`` which integration of their impact equations runs: "stepped" (``cushion_segments``
-    held-direction pieces per phase, the default) or "fine" (``fine_steps`` midpoint steps per
-    M vy0 of impulse, the reference); see cushion.py.
+    0.06); ``cushion`` which integration of their impact equations runs: "stepped"
+    (``cushion_segments`` held-direction pieces per phase, the default) or "fine"
+    (``fine_steps`` midpoint steps per M vy0 of impulse, the reference); see cushion.py.
     """
 
     radius: float
