@@ -177,6 +177,13 @@ def stroke_speed(table: TableSpec, lengths: float | str) -> float:
         raise ShotError(str(exc)) from None
 
 
+def book_strokes(table: TableSpec) -> dict[str, float]:
+    """Each named stroke's m/s on this table (the cached ``SPEED_PRESETS`` on the default)."""
+    if table == _default_table():
+        return dict(SPEED_PRESETS)
+    return {n: stroke_speed(table, n) for n in STROKE_LENGTHS}
+
+
 def travel_lengths(table: TableSpec, speed: float) -> float:
     """Lengths of travel, cushions counted, of a centre-ball stroke at ``speed`` m/s on this
     table (physics/travel.py)."""
@@ -208,7 +215,7 @@ def parse_speed(text: str | float, table: TableSpec | None = None) -> float:
     else:
         key = text.strip().lower()
         if key in SPEED_PRESETS:
-            return SPEED_PRESETS[key] if table is None else stroke_speed(table, key)
+            return SPEED_PRESETS[key] if table is None else book_strokes(table)[key]
         lengths = _lengths_text(key)
         if lengths is not None:
             if not (math.isfinite(lengths) and 0.2 <= lengths <= 6.0):
@@ -232,8 +239,12 @@ def _default_table() -> TableSpec:
     return builtin_table(DEFAULT_TABLE)
 
 
-def speed_name(speed: float) -> str:
-    """The named stroke whose band (``SPEED_BANDS``, default table) holds this speed."""
+def speed_name(speed: float, table: TableSpec | None = None) -> str:
+    """The named stroke nearest this speed: by lengths of travel on ``table`` when given, else
+    by the default table's bands (``SPEED_BANDS``)."""
+    if table is not None:
+        lengths = math.log(max(travel_lengths(table, speed), 1e-6))
+        return min(STROKE_LENGTHS, key=lambda n: abs(math.log(STROKE_LENGTHS[n]) - lengths))
     for name, (lo, hi) in SPEED_BANDS.items():
         if lo <= speed < hi:
             return name
@@ -808,40 +819,49 @@ class StopsShort(ShotError):
     """At this speed the travelling ball stops before it reaches the target."""
 
 
-def _stops_short(exc: ShotError) -> bool:
-    return isinstance(exc, StopsShort)
-
-
 def solve_playable(
-    table: TableSpec, setup: Setup, stroke: Stroke | None = None, model: str = "ideal"
+    table: TableSpec,
+    setup: Setup,
+    stroke: Stroke | None = None,
+    model: str = "ideal",
+    strokes: dict[str, float] | None = None,
 ) -> tuple[Aim, str]:
-    """Solve at the asked speed; if the ball would stop short, at the next firmer preset.
+    """Solve at the asked speed; if the ball would stop short, at the softest firmer named
+    stroke that makes it (``strokes``: name -> m/s, default this table's book strokes).
 
     Returns the aim (its ``stroke`` is the speed to play) and a note for the player, empty when
-    the asked speed works. Raises the first error when no firmer preset reaches either, or when
-    the failure is not one of pace.
+    the asked speed works. Raises the first error when the failure is not one of pace, or when
+    no firmer stroke makes the shot either (saying what stops the firmer ones).
     """
     stroke = stroke or Stroke()
     try:
         return solve_aim(table, setup, stroke, model), ""
-    except ShotError as exc:
-        if not _stops_short(exc):
-            raise
-        first = exc
-    for name, v in SPEED_PRESETS.items():
-        if v <= stroke.speed:
+    except StopsShort as exc:
+        first: ShotError = exc
+    if strokes is None:
+        strokes = book_strokes(table)
+    later: ShotError | None = None
+    for name, v in strokes.items():
+        if v <= stroke.speed * 1.001:
             continue
         try:
             aim = solve_aim(table, setup, Stroke(v, stroke.english, stroke.follow), model)
         except ShotError as exc:
-            if _stops_short(exc):
-                continue
-            raise first from None
-        note = f"at {speed_name(stroke.speed)} pace the ball stops short: play it {name}"
-        if name == "power":
+            if not isinstance(exc, StopsShort):
+                later = later or exc
+            continue
+        note = f"at {speed_name(stroke.speed, table)} pace the ball stops short: play it {name}"
+        if v > POWER_CAUTION:
             note += " (keep the line of the shot clear of people)"
         return aim, note
+    if later is not None:
+        raise ShotError(f"{first}; played firmer: {later}") from None
     raise first
+
+
+POWER_CAUTION = 3.2
+"""Cue-ball speed (m/s) from which the card adds a word of caution: the top of Alciatore's
+published fast band ("typical shot speeds"); above it balls can leave the table."""
 
 
 def predict(
