@@ -836,8 +836,11 @@ def solve_physical(
         if cut > math.radians(70):
             notes = (f"thin cut ({math.degrees(cut):.0f} degrees): hard to send the object true",)
     if stroke.speed > RIGID_LIMIT:  # only a stroke this fast can meet a cushion this fast
-        chk, _ = _run(m, table, pr, pi1, np.array([sol.reading]), stroke)
-        vn = float(chk.rail_vn[0])
+        if sol.res is not None and sol.rows is not None and sol.rows.size:
+            vn = float(np.max(sol.res.rail_vn[sol.rows]))  # the rows round the root, recorded
+        else:
+            chk, _ = _run(m, table, pr, pi1, np.array([sol.reading]), stroke)
+            vn = float(chk.rail_vn[0])
         if vn > RIGID_LIMIT:
             notes = (*notes, rigid_note(vn))
     d = (float(ln.direction[0, 0]), float(ln.direction[0, 1]))
