@@ -300,17 +300,22 @@ def _item(ctx: _Ctx, k: int, raw: Any) -> DrillItem:
     speeds, names = [], []
     for s in speeds_raw:
         if isinstance(s, bool) or not isinstance(s, str | int | float):
-            raise ctx.fail([*path, "speeds"], f"has {s!r}: use {', '.join(SPEED_PRESETS)} or m/s")
+            raise ctx.fail(
+                [*path, "speeds"], f"has {s!r}: use {', '.join(SPEED_PRESETS)}, lengths or m/s"
+            )
         try:
             v = parse_speed(s)
         except ShotError as exc:
             raise ctx.fail([*path, "speeds"], f"has a bad speed: {exc}") from None
         speeds.append(v)
-        names.append(
-            s.strip().lower()
-            if isinstance(s, str) and s.strip().lower() in SPEED_PRESETS
-            else f"{v:g} m/s"
-        )
+        key = s.strip().lower() if isinstance(s, str) else ""
+        if key in SPEED_PRESETS:
+            names.append(key)
+        elif isinstance(s, str) and key.replace(" ", "").endswith(("l", "length", "lengths")):
+            names.append(key.replace(" ", "").removesuffix("lengths").removesuffix("length"))
+            names[-1] = names[-1].removesuffix("l") + "L"
+        else:
+            names.append(f"{v:g} m/s")
     weight = _num(ctx, [*path, "weight"], raw.get("weight", 1.0))
     if weight <= 0:
         raise ctx.fail([*path, "weight"], f"= {weight:g} must be above 0")
