@@ -152,7 +152,7 @@ def test_sentences_speak_a_players_words() -> None:
     # physics: more rolling resistance, more sliding friction and a deader cushion than the
     # default table (Alciatore, PHYSICS.md 2; Mathavan et al. 2010) take travel off a stroke
     assert here < shots.travel_lengths(T9, 2.7)
-    # restitution 0.92 against the default 0.98 (more than one sd): deader cushions
+    # restitution 0.92 against the default 0.98, further off than its sd 0.02: deader cushions
     assert any(t.startswith("Cushion restitution 0.92") and "deader" in t for t in text)
     livelier = replace(
         cal,
@@ -263,8 +263,8 @@ Mathavan et al.'s 0.98 (1.2 prior sd below it); cushion friction 0.20 against th
 TRUE_SPEED = {"slow": 1.35, "medium": 2.70, "fast": 3.20}
 """The invented player's strokes in m/s: slow and medium about 13 % harder than the book's
 (1.185, 2.392 m/s: 1.5 and 3 lengths of travel on the default table) and fast 7.5 % softer
-(3.458 m/s, 3.75 lengths); each about one prior sd (calibrate.SPEED_PRIOR_FACTOR) off the
-book's."""
+(3.458 m/s, 3.75 lengths): about one, one and 0.6 prior sd (ln(1.3) / 2 in log speed,
+calibrate.SPEED_PRIOR_FACTOR) off the book's."""
 
 
 def _synthetic(seed: int, per_pack: int = 25) -> list[Attempt]:
