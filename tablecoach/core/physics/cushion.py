@@ -157,82 +157,101 @@ def _stepped_columns(
     wz: np.ndarray,
     segments: int,
 ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-    """stepped_impact on the state's columns (vx, vy, wx, wy, wz), cushion frame."""
+    """stepped_impact on the state's columns (vx, vy, wx, wy, wz), cushion frame.
+
+    The rates of the module's step equations are linear in four friction terms,
+    f = (mu_w cos phi, mu_w sin phi, mu_s cos phi_t k, mu_s sin phi_t k) with
+    k = sin theta + mu_w sin phi cos theta: dX/dP = A f + b, and the two slips are S X, so the
+    integration works on (5, n) and (4, n) arrays with a few matrix products per piece.
+    """
     R = m.radius
     s, c = float(np.sin(m.theta)), float(np.cos(m.theta))
-    Rs, Rc = R * s, R * c
     inv_m = 1.0 / m.mass
     kw = 2.5 / (m.mass * R)
     mu_w, mu_s = m.mu_w, m.mu_s
     e2 = m.e_cushion**2
-    vx, vy, wx, wy, wz = (np.array(a, dtype=float) for a in (vx, vy, wx, wy, wz))
-    work = np.zeros_like(vx)
-    wc = np.zeros_like(vx)
+    # dX/dP = A @ (f1, f2, f3, f4) + b  (the step equations in the module docstring)
+    A = np.array(
+        [
+            [-inv_m, 0.0, -inv_m, 0.0],
+            [0.0, inv_m * s, 0.0, -inv_m],
+            [0.0, -kw, 0.0, -kw],
+            [-kw * s, 0.0, kw, 0.0],
+            [kw * c, 0.0, 0.0, 0.0],
+        ]
+    )
+    b = np.array([0.0, -inv_m * c, 0.0, 0.0, 0.0])[:, None]
+    # slips (cushion x, y; cloth x, y) = S @ X
+    S = np.array(
+        [
+            [1.0, 0.0, 0.0, R * s, -R * c],
+            [0.0, -s, R, 0.0, 0.0],
+            [1.0, 0.0, 0.0, -R, 0.0],
+            [0.0, 1.0, R, 0.0, 0.0],
+        ]
+    )
+    SA, Sb = S @ A, S @ b
+    X = np.array([vx, vy, wx, wy, wz], dtype=float)
+    n = X.shape[1]
+    work = np.zeros(n)
+    wc = np.zeros(n)
     # a slip this small counts as none: held for a whole piece, its direction would be noise
     # (a piece changes the slips by about mu_w vy / segments)
-    tiny = np.maximum(_SLIP_TOL * np.hypot(vx, vy), 1e-12)
+    tiny = np.maximum(_SLIP_TOL * np.hypot(X[0], X[1]), 1e-12)
+    f = np.empty((4, n))
 
-    def rates(
-        mw: np.ndarray | float,
-        ms: np.ndarray | float,
-        cp: np.ndarray,
-        sp: np.ndarray,
-        cpt: np.ndarray,
-        spt: np.ndarray,
-    ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-        msp = mw * sp
-        mcp = mw * cp
-        k = s + msp * c
-        mscpt = ms * cpt * k
-        msspt = ms * spt * k
-        return (
-            -inv_m * (mcp + mscpt),
-            -inv_m * (c - s * msp + msspt),
-            -kw * (msp + msspt),
-            -kw * (mcp * s - mscpt),
-            kw * c * mcp,
-        )
+    def terms(mw: np.ndarray | float, ms: np.ndarray | float, d: np.ndarray) -> np.ndarray:
+        f[0] = mw * d[0]
+        f[1] = mw * d[1]
+        k = s + c * f[1]
+        f[2] = ms * d[2] * k
+        f[3] = ms * d[3] * k
+        return f
 
     for phase in (0, 1):
         for j in range(segments):
             left = segments - j
-            cp, sp, smag = _unit(vx + wy * Rs - wz * Rc, -vy * s + wx * R, tiny)
-            cpt, spt, cmag = _unit(vx - wy * R, vy + wx * R, tiny)
+            sl = S @ X  # (4, n): cushion slip x, y; cloth slip x, y
+            smag = np.sqrt(sl[0] * sl[0] + sl[1] * sl[1])
+            cmag = np.sqrt(sl[2] * sl[2] + sl[3] * sl[3])
+            d = sl / np.repeat(np.maximum(np.stack((smag, cmag)), tiny), 2, axis=0)
             zs = smag <= tiny
             zc = cmag <= tiny
             if np.count_nonzero(zs) or np.count_nonzero(zc):
                 # a contact with no slip: its slip starts in the direction the other forces
                 # drive it (friction there off), and its friction opposes that start
-                r0 = rates(np.where(zs, 0.0, mu_w), np.where(zc, 0.0, mu_s), cp, sp, cpt, spt)
-                a, b, _ = _unit(r0[0] + r0[3] * Rs - r0[4] * Rc, -r0[1] * s + r0[2] * R)
-                ca, cb, _ = _unit(r0[0] - r0[3] * R, r0[1] + r0[2] * R)
-                cp, sp = np.where(zs, a, cp), np.where(zs, b, sp)
-                cpt, spt = np.where(zc, ca, cpt), np.where(zc, cb, spt)
+                d = np.where(np.repeat(np.stack((zs, zc)), 2, axis=0), _UNIT_X, d)
+                r0 = SA @ terms(np.where(zs, 0.0, mu_w), np.where(zc, 0.0, mu_s), d) + Sb
+                m0 = np.sqrt(r0[0::2] ** 2 + r0[1::2] ** 2)
+                d0 = np.where(np.repeat(m0 > 0, 2, axis=0), r0, _UNIT_X)
+                d0 = d0 / np.repeat(np.where(m0 > 0, m0, 1.0), 2, axis=0)
+                d = np.where(np.repeat(np.stack((zs, zc)), 2, axis=0), d0, d)
             mw: np.ndarray | float = mu_w
             ms: np.ndarray | float = mu_s
-            r = rates(mw, ms, cp, sp, cpt, spt)
+            r = A @ terms(mw, ms, d) + b
             need = np.maximum(wc * (1.0 + e2) - work, 0.0) / c if phase else None
             for _ in range(3):
                 dvy = r[1]
-                fall = dvy < 0
                 if phase == 0:
-                    span = np.where(fall, vy / np.where(fall, -dvy, 1.0), 0.0)
+                    fall = dvy < 0
+                    span = np.where(fall, X[1] / np.where(fall, -dvy, 1.0), 0.0)
                 else:
-                    # work c |vy| dP over the piece: (-vy) p + (-dvy) p^2 / 2 = need / ...
-                    A, B = -vy, -dvy
+                    # work c |vy| dP over the piece: (-vy) p + (-dvy) p^2 / 2 = need / c
                     assert need is not None
-                    disc = np.maximum(A * A + 2.0 * B * need, 0.0)
-                    pos = B > 1e-300
+                    a_, b_ = -X[1], -dvy
+                    disc = np.maximum(a_ * a_ + 2.0 * b_ * need, 0.0)
+                    pos = b_ > 1e-300
                     span = np.where(
                         pos,
-                        (np.sqrt(disc) - A) / np.where(pos, B, 1.0),
-                        need / np.where(A > 0, A, 1.0),
+                        (np.sqrt(disc) - a_) / np.where(pos, b_, 1.0),
+                        need / np.where(a_ > 0, a_, 1.0),
                     )
                 h = np.maximum(span, 0.0) / left
                 # slip rates along each contact's held direction: a contact whose slip would
                 # reverse inside the piece sticks, its friction cut to stop the slip at zero
-                dsw = (r[0] + r[3] * Rs - r[4] * Rc) * cp + (-r[1] * s + r[2] * R) * sp
-                dst = (r[0] - r[3] * R) * cpt + (r[1] + r[2] * R) * spt
+                ds = S @ r
+                dsw = ds[0] * d[0] + ds[1] * d[1]
+                dst = ds[2] * d[2] + ds[3] * d[3]
                 pw = np.where(dsw < 0, smag / np.where(dsw < 0, -dsw, 1.0), np.inf)
                 pt = np.where(dst < 0, cmag / np.where(dst < 0, -dst, 1.0), np.inf)
                 stick_w = pw < h
@@ -242,18 +261,18 @@ def _stepped_columns(
                 hs = np.maximum(h, 1e-300)
                 mw = np.where(stick_w, mu_w * pw / hs, mw)
                 ms = np.where(stick_t, mu_s * pt / hs, ms)
-                r = rates(mw, ms, cp, sp, cpt, spt)
-            vy0 = vy
-            vx = vx + r[0] * h
-            vy = vy + r[1] * h
-            wx = wx + r[2] * h
-            wy = wy + r[3] * h
-            wz = wz + r[4] * h
-            work = work + c * 0.5 * (np.abs(vy0) + np.abs(vy)) * h
+                r = A @ terms(mw, ms, d) + b
+            vy0 = X[1].copy()
+            X += r * h
+            work = work + c * 0.5 * (np.abs(vy0) + np.abs(X[1])) * h
         if phase == 0:
-            vy = np.minimum(vy, 0.0)
+            X[1] = np.minimum(X[1], 0.0)
             wc = work
-    return vx, vy, wx, wy, wz
+    return X[0], X[1], X[2], X[3], X[4]
+
+
+_UNIT_X = np.array([1.0, 0.0, 1.0, 0.0])[:, None]
+"""The stand-in direction (1, 0) of both contacts, as a column of the (4, n) slip arrays."""
 
 
 def stepped_impact(
