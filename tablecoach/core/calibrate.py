@@ -73,9 +73,13 @@ def model_landing(
 
 
 def observed_landing(table: TableSpec, attempt: Attempt) -> RailPoint:
-    """The logged landing as a RailPoint in metres."""
-    rail = attempt.landing_rail
-    return RailPoint(rail, table.along_to_metres(rail, attempt.landing_at))  # type: ignore[arg-type]
+    """The logged landing as a RailPoint in metres. ValueError when the attempt carries no
+    observed landing (a hit logged without one, a miss that stopped short or jawed): the
+    model's own prediction is never used in its place."""
+    rail, at = attempt.landing_rail, attempt.landing_at
+    if rail is None or at is None:
+        raise ValueError("this attempt has no observed landing")
+    return RailPoint(rail, table.along_to_metres(rail, at))  # type: ignore[arg-type]
 
 
 def landing_error(
@@ -86,8 +90,10 @@ def landing_error(
     The model's landing is for the aim the player used, at ``speed`` m/s (default the logged
     speed). Positive means long: the ball landed further along its path than the model
     predicts (which way is "along" comes from the ideal trace of the same reading). None when
-    the model's ball never reaches a landing rail.
+    the model's ball never reaches a landing rail or no landing was observed.
     """
+    if not attempt.landed:
+        return None
     setup = shots.setup_of(table, attempt.shot)
     rail = setup.family.rails[0]
     reading = table.along_to_metres(rail, attempt.aim_used)
@@ -446,6 +452,8 @@ class _Shot:
 def _prepare(table: TableSpec, attempts: Sequence[Attempt]) -> list[_Shot]:
     out = []
     for a in attempts:
+        if not a.landed:  # only observed landings teach the fit
+            continue
         try:
             setup = shots.setup_of(table, a.shot)
             rail = setup.family.rails[0]

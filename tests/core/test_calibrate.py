@@ -72,6 +72,18 @@ def test_landing_error_sign_is_long_along_the_path() -> None:
     )
 
 
+def test_attempts_without_an_observed_landing_teach_nothing() -> None:
+    # A hit logged without a landing must not be read as landing where the model said: it has
+    # no landing error, and the fit refuses to run on such attempts alone (record format v2).
+    s, aim = _kick()
+    seen = _logged(T9, s, aim.reading, "medium", aim.landing)
+    unseen = replace(seen, result="hit", landing_rail=None, landing_at=None, miss_kind=None)
+    assert calibrate.landing_error(T9, unseen, model="ideal") is None
+    assert calibrate.landing_errors(T9, [unseen, seen], model="ideal")[0] is None
+    with pytest.raises(calibrate.CalibrationError, match="only 0 of 4 attempts"):
+        calibrate.fit(T9, [unseen] * 4, model="ideal")
+
+
 # ----- storage and use ----------------------------------------------------------------------
 
 
