@@ -12,7 +12,7 @@ from tablecoach.core.records import RecordError
 from tablecoach.core.store import Store
 from tablecoach.core.table import BUILTIN_TABLES
 from tablecoach.ui.widgets import wording as w
-from tablecoach.ui.widgets.landing import parse_landing, ruler
+from tablecoach.ui.widgets.landing import accepts, parse_landing, ruler
 from tablecoach.ui.widgets.session import Session, stats_of
 
 T9 = BUILTIN_TABLES["9ft"]
@@ -45,10 +45,44 @@ def test_landing_input_is_checked_against_the_rail_length():
     assert parse_landing("left", "7.75") == 7.75
     assert parse_landing("foot", "4") == 4.0
     for rail, typed in (("foot", "4.25"), ("right", "8.5"), ("head", "-1")):
-        with pytest.raises(RecordError, match="off the"):
+        with pytest.raises(RecordError, match="off the|past the end"):
             parse_landing(rail, typed)
+    # a number that only fits a long rail says how to get there
+    with pytest.raises(RecordError, match="past the end of the head rail.*up/down"):
+        parse_landing("head", "6")
     with pytest.raises(RecordError, match="not a number"):
         parse_landing("left", "2..5")
+
+
+def test_typed_landing_keeps_one_number():
+    # the trial's "722.50.5": each key is checked against what is already typed
+    typed = ""
+    for ch in "722.50.5":
+        if accepts(typed, ch):
+            typed += ch
+    # the second whole digits and the second point are refused; the rest is one number
+    assert typed == "7.505"
+    assert not accepts("7", "2") and not accepts("7.5", ".") and not accepts("7.125", "5")
+    assert accepts("", ".") and accepts(".", "5") and not accepts("", "x")
+
+
+def test_repeat_deals_the_setup_n_times_then_moves_on(session):
+    session.repeat = 3
+    pick = session.deal()
+    aim = shots.solve_aim(T9, pick.setup, pick.stroke, "ideal")
+    session.log_hit(aim)
+    assert session.repeats_left() == 2
+    again = session.again()
+    assert again is not None and again.setup.family == pick.setup.family
+    assert shots.record_of(T9, again.setup) == shots.record_of(T9, pick.setup)
+    assert session.stroke == pick.stroke
+    session.log_miss(shots.solve_aim(T9, again.setup, again.stroke, "ideal"), kind="short")
+    assert session.repeats_left() == 1
+    session.log_hit(aim)
+    assert session.repeats_left() == 0
+    # shuffled (the default) never repeats by itself
+    session.repeat = 1
+    assert session.repeats_left() == 0
 
 
 def test_ruler_marks_quarter_diamonds():

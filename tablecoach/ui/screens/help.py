@@ -11,17 +11,19 @@ from textual.screen import ModalScreen
 from textual.widgets import Footer, Static
 
 KEYS = (
-    ("h", "hit: the shot did what it should; logged with the aim's predicted landing"),
+    ("h", "hit: the shot did what it should (no landing is recorded for a hit)"),
     (
         "m",
         "miss: then where the ball crossed the rail (arrows in quarter diamonds, "
-        "up/down another rail, or type the number), Enter saves, Escape cancels",
+        "up/down another rail, or type the number), or s if it stopped short of the rail, "
+        "j if it rattled in the jaw; Enter saves, Escape cancels",
     ),
+    ("r", "again: the setup just logged comes back, same balls, stroke and spin"),
     ("u", "undo the last attempt of this session; its setup comes back"),
     ("n", "skip this setup without logging it"),
     ("s", "next speed preset for this attempt (the aim is solved again)"),
     ("p", "pin this zone for the next 10 setups; p again unpins (with the coach)"),
-    ("v", "history: streaks, rates and trends (when installed)"),
+    ("v", "history: streaks, rates and trends"),
     ("t", "setup: table, drill pack, player"),
     ("d", "dark or light colours"),
     ("ctrl+p", "command palette: every action by name"),

@@ -15,14 +15,12 @@ from textual.widgets import Footer
 
 from tablecoach.core import shots
 from tablecoach.core.shots import Aim, Convergence, Stroke
-from tablecoach.core.store import StoreError
 
 from ..messages import AimSolved, ConvergenceFound, DealerRefreshed, SetupDealt
-from ..widgets import wording as w
 from ..widgets.info import InfoCard, MessageLine, NotesPanel, SessionBar, card, notes, session_line
-from ..widgets.landing import LandingPrompt
 from ..widgets.session import REDRAWS, Session
 from ..widgets.table_panel import TablePanel, draw, picture_of
+from .shot_keys import ShotKeys
 
 SOLVED_KEPT = 16
 """How many solved aims the screen keeps, so an undone setup or a speed cycled back to is shown
@@ -37,12 +35,13 @@ def history_available() -> bool:
     return importlib.util.find_spec("tablecoach.ui.screens.history") is not None
 
 
-class PracticeScreen(Screen[None]):
+class PracticeScreen(ShotKeys, Screen[None]):
     """One session of practice. Every key is in the footer and in the command palette."""
 
     BINDINGS = [
         Binding("h", "hit", "Hit"),
         Binding("m", "miss", "Miss"),
+        Binding("r", "again", "Again"),
         Binding("u", "undo", "Undo"),
         Binding("n", "skip", "Skip"),
         Binding("s", "speed", "Speed"),
@@ -55,8 +54,9 @@ class PracticeScreen(Screen[None]):
 
     # (action, title, help) for the command palette; keys as in BINDINGS
     COMMANDS_LIST = (
-        ("hit", "Log a hit", "The shot scored; the landing is the aim's predicted landing (h)"),
-        ("miss", "Log a miss", "The shot missed; say where it crossed the rail (m)"),
+        ("hit", "Log a hit", "The shot scored; no landing is recorded for it (h)"),
+        ("miss", "Log a miss", "Where it crossed the rail, or s short, j jaw (m)"),
+        ("again", "Shoot it again", "Bring back the setup just logged, same stroke and spin (r)"),
         ("undo", "Undo the last attempt", "Remove the last logged attempt of this session (u)"),
         ("skip", "Skip this setup", "Deal the next setup without logging (n)"),
         ("speed", "Change speed", "Next speed preset for this attempt; re-solves the aim (s)"),
@@ -349,62 +349,6 @@ class PracticeScreen(Screen[None]):
         if self.aim is None:
             self.say(self.error or "the aim is still being worked out; a moment", bool(self.error))
         return self.aim
-
-    def action_hit(self) -> None:
-        aim = self._ready()
-        if aim is None:
-            return
-        self._logged(lambda: self.session.log_hit(aim))
-
-    def action_miss(self) -> None:
-        aim = self._ready()
-        if aim is None:
-            return
-        at = w.landing_diamonds(self.session.table, aim.landing)
-        hint = f"the aim predicts the {aim.landing.rail} rail at {w.num(at)}"
-
-        def done(result: tuple[str, float] | None) -> None:
-            if result is None:
-                self.say("miss not logged (cancelled)")
-                return
-            rail, spot = result
-            self._logged(lambda: self.session.log_miss(aim, rail, spot))
-
-        prompt = LandingPrompt(aim.landing.rail, at, hint, self.ascii_only)
-        self.app.push_screen(prompt, done)
-
-    def _logged(self, do: Any) -> None:
-        try:
-            a = do()
-        except StoreError as exc:
-            self.say(f"not saved: {exc}", True)
-            return
-        except ValueError as exc:
-            self.say(f"not saved: {exc}", True)
-            return
-        st = self.session.stats()
-        where = f"{a.landing_rail} rail at {w.num(a.landing_at)}"
-        self.say(f"logged a {a.result} ({where}); {w.count(st.shots, 'shot')}, streak {st.streak}")
-        self._deal()
-
-    def action_undo(self) -> None:
-        try:
-            gone = self.session.undo()
-        except StoreError as exc:
-            self.say(f"cannot undo: {exc}", True)
-            return
-        if gone is None:
-            self.say("nothing to undo in this session")
-            return
-        try:
-            self.session.show_again(gone)
-        except ValueError:
-            self.say(f"undone: the {gone.result}; its setup no longer fits this table")
-            self._deal()
-            return
-        self.say(f"undone: the {gone.result} at {gone.landing_rail} rail; its setup is back")
-        self.refresh_dealer = True  # once the setup is back on the screen (see _after_solved)
-        self._solve()
 
     @work(thread=True, group="ahead", exit_on_error=False)
     def _refresh_dealer_worker(self) -> None:

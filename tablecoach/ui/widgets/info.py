@@ -72,7 +72,7 @@ def card(
     grid.add_row("Spin", w.spin_text(stroke))
     if aim is not None and not error:
         grid.add_row("Margin", w.margin_text(table, aim))
-        grid.add_row("Lands", f"{w.landing_text(table, aim.landing)} (logged on a hit)")
+        grid.add_row("Lands", f"{w.landing_text(table, aim.landing)} (predicted)")
         grid.add_row("Conv.", w.convergence_text(table, conv) if conv else "working it out...")
         if aim.cut_angle is not None:
             grid.add_row("Cut", f"{math.degrees(aim.cut_angle):.0f} degrees on the object ball")

@@ -15,7 +15,7 @@ from tablecoach.core.shots import Aim, Setup, Stroke
 from tablecoach.core.store import Store
 from tablecoach.core.table import TableSpec
 
-from .wording import landing_diamonds, shown_reading
+from .wording import shown_reading
 
 SPEED_CYCLE = ("slow", "medium", "fast", "power")
 
@@ -203,6 +203,8 @@ class Session:
         self.pick: Pick | None = None
         self.stroke: Stroke = Stroke()
         self.ended = False
+        self.repeat = max(int(getattr(drill, "repeat", 1) or 1), 1)
+        """Each setup is dealt this many times in a row (1: shuffled, a new one every shot)."""
         self.lock = threading.RLock()
         self.dealer_stale = False
 
@@ -249,8 +251,16 @@ class Session:
         return self.preset, self.stroke
 
     # ----- attempts ------------------------------------------------------------------------------
-    def attempt(self, aim: Aim, result: str, landing_rail: str, landing_at: float) -> Attempt:
-        """The record of one shot at the shown setup with the shown aim."""
+    def attempt(
+        self,
+        aim: Aim,
+        result: str,
+        landing_rail: str | None,
+        landing_at: float | None,
+        miss_kind: str | None = None,
+    ) -> Attempt:
+        """The record of one shot at the shown setup with the shown aim. The landing is only
+        what the player saw (None when they gave none): never the aim's predicted landing."""
         assert self.pick is not None
         reading = shown_reading(self.table, aim)
         top = rail_length_diamonds(aim.rail)
@@ -279,6 +289,7 @@ class Session:
             drill=drill_name(self.drill),
             note=note,
             zone=self._zone_of(shot, aim.stroke.speed),
+            miss_kind=miss_kind,  # type: ignore[arg-type]
             session=self.id,
         )
 
@@ -290,12 +301,40 @@ class Session:
             return zone_label(self.pick.zone if self.pick else None)
         return zone_label(zone_of(shot, speed))
 
-    def log_hit(self, aim: Aim) -> Attempt:
-        at = landing_diamonds(self.table, aim.landing)
-        return self._log(self.attempt(aim, "hit", aim.landing.rail, at))
+    def log_hit(self, aim: Aim, rail: str | None = None, at: float | None = None) -> Attempt:
+        """Log a hit; it carries a landing only when the player gave one."""
+        return self._log(self.attempt(aim, "hit", rail, at))
 
-    def log_miss(self, aim: Aim, rail: str, at: float) -> Attempt:
-        return self._log(self.attempt(aim, "miss", rail, at))
+    def log_miss(
+        self, aim: Aim, rail: str | None = None, at: float | None = None, kind: str = "landed"
+    ) -> Attempt:
+        """Log a miss: where it crossed the landing rail, or ``kind`` "short" (stopped before
+        the rail) or "jaw" (rattled out) with no landing."""
+        if kind != "landed":
+            rail = at = None
+        return self._log(self.attempt(aim, "miss", rail, at, kind))
+
+    def repeats_left(self) -> int:
+        """How many more times the setup just logged comes back before a new one is dealt
+        (``repeat`` in a row; 0 when shuffled or nothing was logged)."""
+        if self.repeat <= 1 or not self.logged:
+            return 0
+        last = self.logged[-1].shot
+        done = 0
+        for a in reversed(self.logged):
+            if a.shot != last:
+                break
+            done += 1
+        return max(self.repeat - done, 0)
+
+    def again(self) -> Pick | None:
+        """Put the setup just logged back on the table (same positions, target, stroke and
+        spin); None when nothing has been logged in this session."""
+        if not self.logged:
+            return None
+        pick = self.show_again(self.logged[-1])
+        self.pick = replace(pick, why="again: the setup you just logged")
+        return self.pick
 
     def _log(self, a: Attempt) -> Attempt:
         saved = self.store.log(a)
