@@ -422,7 +422,11 @@ class Scheduler:
         """What is pinned, in words, or None."""
         if self._pin_left <= 0:
             return None
-        what = self._pin_zone.label if self._pin_zone else family_words(self._pin_family or "")
+        z = self._pin_zone
+        if z is not None:  # in a player's words, not the stored label
+            what = f"{family_words(z.family)} from {z.short} at {z.speed}"
+        else:
+            what = family_words(self._pin_family or "")
         return f"{what} for {self._pin_left} more"
 
     # ----- choosing ----------------------------------------------------------------------------

@@ -223,6 +223,46 @@ async def test_typed_number_of_another_rail_moves_with_the_rail(make_app):
         assert (a.landing_rail, a.landing_at) == ("left", 6.25)
 
 
+async def test_spin_key_cycles_and_is_logged(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        screen = app.screen
+        assert "centre ball" in text_of(app, "#card")
+        await pilot.press("e")
+        await settle(pilot)
+        aim = screen.aim
+        from tablecoach.core import spin
+
+        # the first step is a tip of running english: its side comes from the shot's geometry
+        side = spin.running_sign(aim.rail, aim.direction) or 1.0
+        assert aim.stroke.english == side and aim.stroke.follow == 0.0
+        card = text_of(app, "#card")
+        assert "a tip of running english" in " ".join(card.split())
+        await pilot.press("e", "e", "e")
+        await settle(pilot)
+        assert screen.aim.stroke.follow == -0.5
+        assert "a half tip of draw" in " ".join(text_of(app, "#card").split())
+        await pilot.press("h")
+        await settle(pilot)
+        [a] = stored(app)
+        assert (a.english, a.follow) == (0.0, -0.5)
+
+
+async def test_large_reading_toggles(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        assert "AIM" in text_of(app, "#card")
+        await pilot.press("b")
+        await pilot.pause()
+        card = text_of(app, "#card")
+        assert "AIM" not in card and "rail sights" in card and "┃" in card
+        await pilot.press("b")
+        await pilot.pause()
+        assert "AIM" in text_of(app, "#card")
+
+
 async def test_miss_typed_landing(make_app):
     app = make_app()
     async with app.run_test(size=SIZE) as pilot:
@@ -396,15 +436,22 @@ async def test_help_opens_and_closes(make_app):
         assert isinstance(app.screen, PracticeScreen)
 
 
-async def test_theme_toggles(make_app):
+async def test_theme_toggles_and_is_remembered(make_app):
     app = make_app()
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
         assert app.theme == "textual-dark"
-        await pilot.press("d")
+        await pilot.press("l")
         assert app.theme == "textual-light"
-        await pilot.press("d")
+        await pilot.press("l")
         assert app.theme == "textual-dark"
+        await pilot.press("l")
+        assert app.theme == "textual-light"
+    app.store.close()
+    again = make_app()
+    async with again.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        assert again.theme == "textual-light"
 
 
 async def test_palette_lists_every_action(make_app):
@@ -424,10 +471,16 @@ async def test_palette_lists_every_action(make_app):
             "Dark or light",
         ):
             assert want in titles
-        # and every key is shown in the footer
+        # the keys of a shot are in the footer; every key is in help (and the palette)
         shown = {k for k, ab in app.screen.active_bindings.items() if ab.binding.show}
-        for key in ("h", "m", "u", "n", "s", "t", "question_mark", "q", "d"):
+        for key in ("h", "m", "r", "u", "n", "s", "e", "question_mark", "q"):
             assert key in shown
+        from tablecoach.ui.screens.help import KEYS
+
+        keys = {k for k, _ in KEYS}
+        practice_keys = [b.key for b in type(app.screen).BINDINGS] + ["l"]
+        for key in practice_keys:
+            assert (key if key != "question_mark" else "?") in keys, key
 
 
 async def test_setup_screen_changes_table(make_app):

@@ -32,10 +32,10 @@ def test_placement_measures_from_the_nearer_rails():
     # image near the foot-right corner (positions by hand; measuring from the nearer rail is
     # common practice, no source).
     assert w.placement(T9, "cue ball", T9.to_metres(1.5, 1.0)) == (
-        "cue ball: 1.5 from the head rail, 1 from the left rail"
+        "cue ball: 1 1/2 from the head rail, 1 from the left rail"
     )
     assert w.placement(T9, "object ball", T9.to_metres(6.75, 3.5)) == (
-        "object ball: 1.25 from the foot rail, 0.5 from the right rail"
+        "object ball: 1 1/4 from the foot rail, 1/2 from the right rail"
     )
 
 

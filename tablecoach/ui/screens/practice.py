@@ -17,6 +17,7 @@ from tablecoach.core import shots
 from tablecoach.core.shots import Aim, Convergence, Stroke
 
 from ..messages import AimSolved, ConvergenceFound, DealerRefreshed, SetupDealt
+from ..widgets import wording as w
 from ..widgets.info import InfoCard, MessageLine, NotesPanel, SessionBar, card, notes, session_line
 from ..widgets.session import REDRAWS, Session
 from ..widgets.table_panel import TablePanel, draw, picture_of
@@ -45,9 +46,11 @@ class PracticeScreen(ShotKeys, Screen[None]):
         Binding("u", "undo", "Undo"),
         Binding("n", "skip", "Skip"),
         Binding("s", "speed", "Speed"),
-        Binding("p", "pin", "Pin"),
-        Binding("v", "history", "History"),
-        Binding("t", "setup", "Setup"),
+        Binding("e", "spin", "Spin"),
+        Binding("b", "large", "Big", show=False),
+        Binding("p", "pin", "Pin", show=False),
+        Binding("v", "history", "History", show=False),
+        Binding("t", "setup", "Setup", show=False),
         Binding("question_mark", "help", "Help", key_display="?"),
         Binding("q", "quit_session", "Quit"),
     ]
@@ -60,6 +63,8 @@ class PracticeScreen(ShotKeys, Screen[None]):
         ("undo", "Undo the last attempt", "Remove the last logged attempt of this session (u)"),
         ("skip", "Skip this setup", "Deal the next setup without logging (n)"),
         ("speed", "Change speed", "Next speed preset for this attempt; re-solves the aim (s)"),
+        ("spin", "Change spin", "Running, reverse english, follow, draw, centre; re-solves (e)"),
+        ("large", "Large reading", "Show the aim reading in large type, or not (b)"),
         ("pin", "Pin this zone", "Keep practising this zone (p again to unpin)"),
         ("history", "History", "Streaks, rates and trends (v)"),
         (
@@ -89,8 +94,9 @@ class PracticeScreen(ShotKeys, Screen[None]):
         self.model_note = ""
         self.drawn: tuple[Any, Any] | None = None
         self.refresh_dealer = False
+        self.large = False
         self.solved: dict[tuple[Any, Stroke], tuple[Aim, Convergence | None, str]] = {}
-        self.opening = "h hit, m miss, ? help: each attempt is saved the moment you log it"
+        self.opening = "h hit, m miss, r again, ? help: each attempt is saved as you log it"
 
     # ----- layout ----------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
@@ -123,11 +129,22 @@ class PracticeScreen(ShotKeys, Screen[None]):
         self.drawn = None
         # fixed-size panels: their text changes without a new layout of the screen
         self.query_one(InfoCard).update(
-            card(s.table, pick, s.stroke, self.aim, self.conv, self.error), layout=False
+            card(
+                s.table,
+                pick,
+                s.stroke,
+                self.aim,
+                self.conv,
+                self.error,
+                self.model_note,
+                self.large,
+                self.ascii_only,
+            ),
+            layout=False,
         )
         pinned = self._pinned_text()
         self.query_one(NotesPanel).update(
-            notes(s.table, pick, self.aim, self.status, pinned, self.model_note), layout=False
+            notes(s.table, pick, self.aim, self.status, pinned), layout=False
         )
         self.query_one(SessionBar).update(
             session_line(s.stats(), s.earlier_stats(), s.table.name, s.player), layout=False
@@ -370,6 +387,22 @@ class PracticeScreen(ShotKeys, Screen[None]):
         self.say(f"speed for this attempt: {preset}, {stroke.speed:.2f} m/s")
         self._solve()
 
+    def action_spin(self) -> None:
+        if self.session.pick is None:
+            return
+        stroke = self.session.next_spin(self.aim)
+        said = w.spin_text(stroke, self.aim)
+        note = "" if self.session.model != "ideal" else " (the ideal model leaves spin out)"
+        self.say(f"spin for this attempt: {said}{note}")
+        self._solve()
+
+    def action_large(self) -> None:
+        self.large = not self.large
+        self.say(
+            "large reading on (b again for the usual size)" if self.large else "large reading off"
+        )
+        self._refresh()
+
     def action_pin(self) -> None:
         dealer = self.session.dealer
         if not dealer.coached:
@@ -388,8 +421,9 @@ class PracticeScreen(ShotKeys, Screen[None]):
             return
         try:
             with self.session.lock:
-                if pick.zone:
-                    dealer.pin(zone=pick.zone)
+                zone = self.session.played_zone(self.aim)
+                if zone:
+                    dealer.pin(zone=zone)
                 else:
                     dealer.pin(family=pick.setup.family.name)
         except ValueError as exc:

@@ -17,7 +17,8 @@ from tablecoach.core.table import TableSpec
 
 from .wording import shown_reading
 
-SPEED_CYCLE = ("slow", "medium", "fast", "power")
+SPEED_CYCLE = tuple(shots.SPEED_PRESETS)
+"""The speed key steps through the named strokes in the order the core defines them."""
 
 DEAL_MODEL = "ideal"
 """The model the coach checks a dealt setup against. The ideal check is fast; the practice
@@ -190,7 +191,8 @@ class Session:
     ) -> None:
         self.store = store
         self.calibration = calibration
-        self.preset = "medium"
+        self.preset = shots.speed_name(Stroke().speed)
+        self.spin_step = 0
         self.table = table
         self.drill = drill
         self.player = player
@@ -217,6 +219,7 @@ class Session:
     def show(self, pick: Pick | None) -> None:
         """Put a setup on the table (None while the next one is being dealt)."""
         self.pick = pick
+        self.spin_step = 0
         if pick is not None:
             self.stroke = pick.stroke
             self.preset = shots.speed_name(pick.stroke.speed)
@@ -234,6 +237,7 @@ class Session:
         zone = self.pick.zone if self.pick is not None and not attempt.zone else attempt.zone
         self.pick = Pick(setup, stroke, attempt.shot.family, zone, "shown again after undo")
         self.stroke = stroke
+        self.spin_step = 0
         self.preset = shots.speed_name(stroke.speed)
         return self.pick
 
@@ -249,6 +253,27 @@ class Session:
             speed = stroke_for(self.calibration, self.preset).speed
         self.stroke = replace(self.stroke, speed=speed)
         return self.preset, self.stroke
+
+    def played_zone(self, aim: Aim | None) -> Any:
+        """The coach's zone of the shown setup at the stroke to be played (the dealt zone when
+        nothing is solved yet or the coach is not installed): a pin follows the stroke played."""
+        if self.pick is None or aim is None or not self.pick.zone:
+            return self.pick.zone if self.pick is not None else None
+        try:
+            from tablecoach.core.coach import zone_of  # noqa: PLC0415
+        except ImportError:
+            return self.pick.zone
+        return zone_of(shots.record_of(self.table, aim.setup), aim.stroke.speed)
+
+    def next_spin(self, aim: Aim | None) -> Stroke:
+        """The next spin of core.spin.SPIN_STEPS for this attempt (running and reverse english
+        turned into a side with the shown aim); the speed is kept."""
+        from tablecoach.core.spin import SPIN_STEPS, spin_for  # noqa: PLC0415
+
+        self.spin_step = (self.spin_step + 1) % len(SPIN_STEPS)
+        english, follow = spin_for(self.spin_step, aim)
+        self.stroke = replace(self.stroke, english=english, follow=follow)
+        return self.stroke
 
     # ----- attempts ------------------------------------------------------------------------------
     def attempt(
