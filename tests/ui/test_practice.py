@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import io
+from dataclasses import replace
 
 from rich.console import Console
 
@@ -261,6 +262,42 @@ async def test_large_reading_toggles(make_app):
         await pilot.press("b")
         await pilot.pause()
         assert "AIM" in text_of(app, "#card")
+
+
+async def test_calibration_offer_after_30_new_landings(make_app):
+    import numpy as np
+
+    from ..core.test_feedback import _kick_attempt
+
+    app = make_app()
+    # 29 observed landings already on this table (invented, scattered about the ideal landing
+    # with numpy's generator), and hits without a landing, which do not count
+    rng = np.random.default_rng(4)
+    seen = [
+        replace(_kick_attempt(float(x)), player="tester", note=str(i))
+        for i, x in enumerate(rng.normal(0.2, 0.1, 29))
+    ]
+    blind = replace(seen[0], result="hit", landing_rail=None, landing_at=None, miss_kind=None)
+    app.store.log_many([*seen, replace(blind, note="h1"), replace(blind, note="h2")])
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("h")
+        await settle(pilot)
+        assert "c calibrates" not in text_of(app, "#message")
+        await pilot.press("m", "right", "enter")
+        await settle(pilot)
+        assert "30 new landings on the 9ft table: c calibrates" in text_of(app, "#message")
+        screen = app.screen
+        await pilot.press("c")
+        await settle(pilot)  # the fit runs in a worker thread (calibrate_offer.py)
+        await pilot.pause()
+        message = text_of(app, "#message")
+        assert message.startswith("calibrated: landings now predicted to"), message
+        assert screen.session.calibration is not None and not screen.calibrating
+        assert screen.status.startswith("calibrated from")
+        # the new table is used for the aims from now on
+        assert screen.session.table == screen.session.calibration.apply(app.store.get_table("9ft"))
+        assert app.store.calibration("9ft", "tester") is not None
 
 
 async def test_miss_typed_landing(make_app):

@@ -30,6 +30,7 @@ KEYS = (
     ("b", "the aim reading in large type, to read from the table; b again for the usual size"),
     ("p", "pin this zone for the next 10 setups; p again unpins (with the coach)"),
     ("v", "history: streaks, rates and trends"),
+    ("c", "calibrate this table from your landings (in the background; offered after 30 new)"),
     ("t", "setup: table, drill pack, player"),
     ("l", "light or dark colours (remembered for the next start)"),
     ("ctrl+p", "command palette: every action by name"),

@@ -21,6 +21,7 @@ from ..widgets import wording as w
 from ..widgets.info import InfoCard, MessageLine, NotesPanel, SessionBar, card, notes, session_line
 from ..widgets.session import REDRAWS, Session
 from ..widgets.table_panel import TablePanel, draw, picture_of
+from .calibrate_offer import CalibrationOffer
 from .shot_keys import ShotKeys
 
 SOLVED_KEPT = 16
@@ -36,7 +37,7 @@ def history_available() -> bool:
     return importlib.util.find_spec("tablecoach.ui.screens.history") is not None
 
 
-class PracticeScreen(ShotKeys, Screen[None]):
+class PracticeScreen(ShotKeys, CalibrationOffer, Screen[None]):
     """One session of practice. Every key is in the footer and in the command palette."""
 
     BINDINGS = [
@@ -49,6 +50,7 @@ class PracticeScreen(ShotKeys, Screen[None]):
         Binding("e", "spin", "Spin"),
         Binding("b", "large", "Big", show=False),
         Binding("p", "pin", "Pin", show=False),
+        Binding("c", "calibrate", "Calibrate", show=False),
         Binding("v", "history", "History", show=False),
         Binding("t", "setup", "Setup", show=False),
         Binding("question_mark", "help", "Help", key_display="?"),
@@ -71,6 +73,11 @@ class PracticeScreen(ShotKeys, Screen[None]):
             "table_check",
             "Table check",
             "Shoot the reference shots that calibrate this table (palette only)",
+        ),
+        (
+            "calibrate",
+            "Calibrate this table",
+            "Fit the table to your landings, in the background (c)",
         ),
         ("setup", "Change table, pack or player", "Open the setup screen (t)"),
         ("help", "Help", "What every key does (?)"),
@@ -95,6 +102,7 @@ class PracticeScreen(ShotKeys, Screen[None]):
         self.drawn: tuple[Any, Any] | None = None
         self.refresh_dealer = False
         self.large = False
+        self.bias_note: tuple[int, str] = (-1, "")
         self.solved: dict[tuple[Any, Stroke], tuple[Aim, Convergence | None, str]] = {}
         self.opening = "h hit, m miss, r again, ? help: each attempt is saved as you log it"
 
@@ -139,6 +147,7 @@ class PracticeScreen(ShotKeys, Screen[None]):
                 self.model_note,
                 self.large,
                 self.ascii_only,
+                self.bias_note[1] if self.bias_note[0] == self.token else "",
             ),
             layout=False,
         )
@@ -317,6 +326,10 @@ class PracticeScreen(ShotKeys, Screen[None]):
             conv = shots.convergence(self.session.table, setup, None, stroke, model)
         except ValueError:
             conv = None
+        try:
+            self.bias_note = (token, self.session.bias_text(setup, stroke))
+        except ValueError:
+            self.bias_note = (token, "")
         self.post_message(ConvergenceFound(token, conv))
 
     def on_setup_dealt(self, message: SetupDealt) -> None:

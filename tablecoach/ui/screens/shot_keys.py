@@ -6,7 +6,7 @@ seen and logs it; practice.py deals, solves and shows.
 
 from __future__ import annotations
 
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from tablecoach.core.records import Attempt
 from tablecoach.core.store import StoreError
@@ -36,11 +36,13 @@ class ShotKeys:
     refresh_dealer: bool
     app: Any
 
-    # provided by PracticeScreen
-    def say(self, text: str, error: bool = False) -> None: ...
-    def _ready(self) -> Any: ...
-    def _deal(self, first: bool = False) -> None: ...
-    def _solve(self) -> None: ...
+    if TYPE_CHECKING:  # provided by PracticeScreen (and Screen); never defined here
+
+        def offer_text(self) -> str: ...
+        def say(self, text: str, error: bool = False) -> None: ...
+        def _ready(self) -> Any: ...
+        def _deal(self, first: bool = False) -> None: ...
+        def _solve(self) -> None: ...
 
     def action_hit(self) -> None:
         aim = self._ready()
@@ -74,6 +76,9 @@ class ShotKeys:
         left = self.session.repeats_left()
         said = f"logged a {a.result} ({how_it_ended(a)}); {w.count(st.shots, 'shot')}"
         said += f", streak {st.streak}"
+        offer = self.offer_text()
+        if offer:
+            said = f"{said}. {offer}"
         if left:
             self.session.again()
             self.say(f"{said}; the same setup again ({w.count(left, 'more time')})")

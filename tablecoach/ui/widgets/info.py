@@ -79,6 +79,7 @@ def card(
     model_note: str = "",
     large: bool = False,
     ascii_only: bool = False,
+    bias: str = "",
 ) -> RenderableType:
     """The setup card: a warning first when the model has one, the reading and stroke in
     large, then what the shot is, where the balls go, margin, landing and convergence."""
@@ -116,6 +117,8 @@ def card(
         if shift:
             grid.add_row("", Text(shift, style="dim"))
         grid.add_row("Lands", f"{w.landing_text(table, aim.landing)} (predicted)")
+        if bias:
+            grid.add_row("You", Text(bias, style="bold"))
         grid.add_row("Conv.", w.convergence_text(table, conv) if conv else "working it out...")
         if aim.cut_angle is not None:
             grid.add_row("Cut", f"{math.degrees(aim.cut_angle):.0f} degrees on the object ball")

@@ -265,6 +265,21 @@ class Session:
             return self.pick.zone
         return zone_of(shots.record_of(self.table, aim.setup), aim.stroke.speed)
 
+    def bias_text(self, setup: Setup, stroke: Stroke) -> str:
+        """The player's landing bias in the zone of this setup at this stroke, as advice ("you
+        land 0.3 long here (6 landings): aim to land 0.3 shorter"); "" with too few landings
+        or no coach. Slow under the physical model: call it from a worker."""
+        try:
+            from tablecoach.core.coach import zone_of  # noqa: PLC0415
+        except ImportError:
+            return ""
+        from tablecoach.core import feedback  # noqa: PLC0415
+
+        label = zone_label(zone_of(shots.record_of(self.table, setup), stroke.speed))
+        seen = [*self.earlier, *self.logged]
+        got = feedback.zone_bias(self.table, seen, label, self.model, self.calibration)
+        return "" if got is None else feedback.bias_words(*got)
+
     def next_spin(self, aim: Aim | None) -> Stroke:
         """The next spin of core.spin.SPIN_STEPS for this attempt (running and reverse english
         turned into a side with the shown aim); the speed is kept."""
