@@ -347,7 +347,7 @@ class Calibration:
     def sentences(self) -> list[str]:
         """The calibration in a player's words, most useful first."""
         out: list[str] = []
-        head = f"Calibrated from {self.attempts} attempts"
+        head = f"Calibrated from {self.attempts} attempt{'s' if self.attempts != 1 else ''}"
         if self.outliers:
             head += (
                 f" ({self.outliers} far from the model, mislogged or near a pocket, "

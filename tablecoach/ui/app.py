@@ -20,6 +20,7 @@ from tablecoach import paths
 from tablecoach.core import calibrate
 from tablecoach.core import drills as drills_mod
 from tablecoach.core.store import Store, StoreError
+from tablecoach.core.summary import by_family
 from tablecoach.core.table import BUILTIN_TABLES, DEFAULT_TABLE, TableSpec
 
 from .screens.practice import PracticeScreen
@@ -177,7 +178,7 @@ class TableCoachApp(App[int]):
         except ValueError as exc:
             self.practice.say(f"cannot open the setup screen: {exc}", True)
             return
-        current = Choice(s.table.name, self.drill_name, s.player)
+        current = Choice(s.table.name, self.drill_name, s.player, s.repeat)
         self.push_screen(SetupScreen(tables, packs, players, current), self._setup_done)
 
     def _setup_done(self, choice: Choice | None) -> None:
@@ -191,6 +192,8 @@ class TableCoachApp(App[int]):
             self.drill_name = old_drill
             self.practice.say(str(exc), True)
             return
+        if choice.repeat:
+            fresh.session.repeat = choice.repeat
         save_settings(choice)
         self._end_session()
         self.practice = fresh
@@ -202,7 +205,12 @@ class TableCoachApp(App[int]):
             self.exit(0)
             return
         s = self.practice.session
-        screen = SummaryScreen(s.stats(), s.player, s.table.name, self.drill_name)
+        try:
+            table_of = {s.table.name: s.store.get_table(s.table.name)}.get
+            families = by_family(s.logged, table_of)
+        except ValueError:
+            families = []
+        screen = SummaryScreen(s.stats(), s.player, s.table.name, self.drill_name, families)
 
         def done(leave: bool | None) -> None:
             if leave:

@@ -152,6 +152,24 @@ async def test_hit_again_hit_miss_short(make_app):
         assert "stopped short" in text_of(app, "#message")
 
 
+async def test_hit_with_a_landing_the_player_saw(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("H")
+        await pilot.pause()
+        prompt = app.screen
+        assert isinstance(prompt, LandingPrompt) and prompt.hit
+        await pilot.press("s")  # no "short" for a hit
+        await pilot.pause()
+        assert app.screen is prompt and "a hit reached its target" in prompt.error
+        rail = prompt.rail
+        await pilot.press("2", "enter")
+        await settle(pilot)
+        [a] = stored(app)
+        assert (a.result, a.landing_rail, a.landing_at, a.miss_kind) == ("hit", rail, 2.0, None)
+
+
 async def test_again_before_anything_is_logged(make_app):
     app = make_app()
     async with app.run_test(size=SIZE) as pilot:
@@ -433,6 +451,11 @@ async def test_quit_and_reopen_shows_the_attempts(make_app):
         await pilot.pause()
         summary = text_of(app, "#summary-grid")
         assert "attempts" in summary and "best streak" in summary
+        # by family: made, rate, best streak and the landing bias (none seen: a hit without
+        # a landing and a miss in the jaw)
+        families = text_of(app, "#summary-families")
+        assert "One-rail kick" in families and "1 of 2" in families and "50%" in families
+        assert families.split("One-rail kick")[1].split()[3:6] == ["50%", "1", "-"]
         await pilot.press("q")
         await pilot.pause()
     assert app.return_code == 0
@@ -535,6 +558,35 @@ async def test_setup_screen_changes_table(make_app):
         assert "new session: 8ft table" in text_of(app, "#message")
         ended = {i.id: i.ended for i in app.store.sessions()}
         assert ended[old] is not None
+
+
+async def test_setup_screen_repeats_each_setup(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("t")
+        await pilot.pause()
+        await pilot.press("tab", "tab")  # tables -> packs -> shots per setup
+        await pilot.press("down", "down")  # from "1: a new setup every shot" to "3 in a row"
+        assert "3 shots a setup" in text_of(app, "#setup-picks")
+        await pilot.press("ctrl+s")
+        await settle(pilot)
+        s = app.screen.session
+        assert s.repeat == 3
+        first = s.pick
+        await pilot.press("h")
+        await settle(pilot)
+        assert "the same setup again (2 more times)" in text_of(app, "#message")
+        await pilot.press("m", "s")
+        await settle(pilot)
+        assert "the same setup again (1 more time)" in text_of(app, "#message")
+        await pilot.press("h")
+        await settle(pilot)
+        got = stored(app)
+        table = s.table
+        assert [a.shot for a in got] == [shots.record_of(table, first.setup)] * 3
+        assert s.pick.why != "again: the setup you just logged"  # then a new one is dealt
+        assert "r shoots it again" in text_of(app, "#message")
 
 
 def test_damaged_database_is_one_line(data_env, capsys):

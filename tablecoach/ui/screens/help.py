@@ -12,6 +12,7 @@ from textual.widgets import Footer, Static
 
 KEYS = (
     ("h", "hit: the shot did what it should (no landing is recorded for a hit)"),
+    ("H", "hit, and say where the ball crossed the landing rail (when you saw it)"),
     (
         "m",
         "miss: then where the ball crossed the rail (arrows in quarter diamonds, "

@@ -42,6 +42,7 @@ class PracticeScreen(ShotKeys, CalibrationOffer, Screen[None]):
 
     BINDINGS = [
         Binding("h", "hit", "Hit"),
+        Binding("H", "hit_landing", "Hit, with landing", show=False),
         Binding("m", "miss", "Miss"),
         Binding("r", "again", "Again"),
         Binding("u", "undo", "Undo"),
@@ -60,6 +61,7 @@ class PracticeScreen(ShotKeys, CalibrationOffer, Screen[None]):
     # (action, title, help) for the command palette; keys as in BINDINGS
     COMMANDS_LIST = (
         ("hit", "Log a hit", "The shot scored; no landing is recorded for it (h)"),
+        ("hit_landing", "Log a hit and where it crossed", "A hit with the landing you saw (H)"),
         ("miss", "Log a miss", "Where it crossed the rail, or s short, j jaw (m)"),
         ("again", "Shoot it again", "Bring back the setup just logged, same stroke and spin (r)"),
         ("undo", "Undo the last attempt", "Remove the last logged attempt of this session (u)"),

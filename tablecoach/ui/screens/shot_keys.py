@@ -28,7 +28,7 @@ def how_it_ended(a: Attempt) -> str:
 
 
 class ShotKeys:
-    """h, m, r and u on the practice screen (mixed into PracticeScreen)."""
+    """h, H, m, r and u on the practice screen (mixed into PracticeScreen)."""
 
     session: Any
     aim: Any
@@ -49,6 +49,23 @@ class ShotKeys:
         if aim is None:
             return
         self._logged(lambda: self.session.log_hit(aim))
+
+    def action_hit_landing(self) -> None:
+        """A hit with the landing the player saw (by choice: a plain hit records none)."""
+        aim = self._ready()
+        if aim is None:
+            return
+        at = w.landing_diamonds(self.session.table, aim.landing)
+        hint = f"the aim predicts the {aim.landing.rail} rail at {w.num(at)}"
+
+        def done(result: MissReport | None) -> None:
+            if result is None:
+                self.say("hit not logged (cancelled)")
+                return
+            self._logged(lambda: self.session.log_hit(aim, result.rail, result.at))
+
+        prompt = LandingPrompt(aim.landing.rail, at, hint, self.ascii_only, hit=True)
+        self.app.push_screen(prompt, done)
 
     def action_miss(self) -> None:
         aim = self._ready()

@@ -103,8 +103,11 @@ class LandingPrompt(ModalScreen[MissReport | None]):
         Binding("escape", "cancel", "Cancel", show=True),
     ]
 
-    def __init__(self, rail: str, at: float, hint: str = "", ascii_only: bool = False) -> None:
+    def __init__(
+        self, rail: str, at: float, hint: str = "", ascii_only: bool = False, hit: bool = False
+    ) -> None:
         super().__init__()
+        self.hit = hit  # a hit's landing, given by choice: s and j do not apply
         self.ascii_only = ascii_only
         self.rail = rail if rail in RAIL_ORDER else "foot"
         top = rail_length_diamonds(self.rail)
@@ -125,7 +128,8 @@ class LandingPrompt(ModalScreen[MissReport | None]):
 
     def _show(self) -> None:
         body = Text()
-        body.append("Miss: where did the ball cross the rail?\n", style="bold")
+        ask = "Hit" if self.hit else "Miss"
+        body.append(f"{ask}: where did the ball cross the rail?\n", style="bold")
         value = self.typed + "_" if self.typed else num(self.at)
         body.append(f"  {self.rail} rail at ", style="")
         body.append(value, style="bold reverse")
@@ -135,7 +139,8 @@ class LandingPrompt(ModalScreen[MissReport | None]):
         body.append_text(ruler(self.rail, self.at, self.ascii_only))
         body.append("  left/right: a quarter diamond   up/down: another rail\n", style="dim")
         body.append("  or type the number; Enter saves, Escape cancels\n", style="dim")
-        body.append("  s: stopped short of the rail   j: rattled in the jaw\n", style="dim")
+        if not self.hit:
+            body.append("  s: stopped short of the rail   j: rattled in the jaw\n", style="dim")
         if self.hint:
             body.append(f"  {self.hint}\n", style="dim")
         if self.error:
@@ -227,10 +232,20 @@ class LandingPrompt(ModalScreen[MissReport | None]):
         self.dismiss(MissReport("landed", self.rail, round(self.at, 3)))
 
     def action_short(self) -> None:
+        if self._no_kind():
+            return
         self.dismiss(MissReport("short"))
 
     def action_jaw(self) -> None:
+        if self._no_kind():
+            return
         self.dismiss(MissReport("jaw"))
+
+    def _no_kind(self) -> bool:
+        if self.hit:
+            self.error = "a hit reached its target: give where it crossed, or Escape"
+            self._show()
+        return self.hit
 
     def action_cancel(self) -> None:
         self.dismiss(None)
