@@ -284,9 +284,10 @@ class Choice:
 
 
 def family_words(family: str) -> str:
-    """A family's title in lower case (``cross-corner bank``), or its name."""
+    """A family's title in lower case (``cross-corner bank``), or its name in words (a pack's
+    own ``left-rail-corner-bank`` reads "left rail corner bank")."""
     fam = shots.PRESETS.get(family)
-    return (fam.title if fam is not None else family).lower()
+    return (fam.title if fam is not None else family.replace("-", " ")).lower()
 
 
 def _sort_key(z: Zone) -> tuple[str, int, int, str]:

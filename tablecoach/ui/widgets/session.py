@@ -202,6 +202,8 @@ class Session:
         self.dealer = Dealer(table, drill, self.earlier, rng, model)
         self.id = store.start_session(player, table.name, drill_name(drill))
         self.logged: list[Attempt] = []
+        self.setups: dict[int, Setup] = {}
+        """Logged attempt id -> the setup as shown (with its family's title), for r and undo."""
         self.pick: Pick | None = None
         self.stroke: Stroke = Stroke()
         self.ended = False
@@ -231,8 +233,9 @@ class Session:
         return pick
 
     def show_again(self, attempt: Attempt) -> Pick:
-        """Put an undone attempt's setup and stroke back on the table."""
-        setup = shots.setup_of(self.table, attempt.shot)
+        """Put a logged (or undone) attempt's setup and stroke back on the table."""
+        shown = self.setups.get(attempt.id) if attempt.id is not None else None
+        setup = shown if shown is not None else shots.setup_of(self.table, attempt.shot)
         stroke = Stroke(attempt.speed, attempt.english, attempt.follow)
         zone = self.pick.zone if self.pick is not None and not attempt.zone else attempt.zone
         self.pick = Pick(setup, stroke, attempt.shot.family, zone, "shown again after undo")
@@ -343,7 +346,7 @@ class Session:
 
     def log_hit(self, aim: Aim, rail: str | None = None, at: float | None = None) -> Attempt:
         """Log a hit; it carries a landing only when the player gave one."""
-        return self._log(self.attempt(aim, "hit", rail, at))
+        return self._log(self.attempt(aim, "hit", rail, at), aim.setup)
 
     def log_miss(
         self, aim: Aim, rail: str | None = None, at: float | None = None, kind: str = "landed"
@@ -352,7 +355,7 @@ class Session:
         the rail) or "jaw" (rattled out) with no landing."""
         if kind != "landed":
             rail = at = None
-        return self._log(self.attempt(aim, "miss", rail, at, kind))
+        return self._log(self.attempt(aim, "miss", rail, at, kind), aim.setup)
 
     def repeats_left(self) -> int:
         """How many more times the setup just logged comes back before a new one is dealt
@@ -376,9 +379,11 @@ class Session:
         self.pick = replace(pick, why="again: the setup you just logged")
         return self.pick
 
-    def _log(self, a: Attempt) -> Attempt:
+    def _log(self, a: Attempt, setup: Setup | None = None) -> Attempt:
         saved = self.store.log(a)
         self.logged.append(saved)
+        if setup is not None and saved.id is not None:
+            self.setups[saved.id] = setup
         with self.lock:
             self.dealer.record(saved)
         return saved
