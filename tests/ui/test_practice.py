@@ -268,6 +268,31 @@ async def test_spin_key_cycles_and_is_logged(make_app):
         assert (a.english, a.follow) == (0.0, -0.5)
 
 
+async def test_a_pack_deals_spin_and_the_card_names_it(make_app):
+    app = make_app(drill="kicks-with-spin")
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        seen = set()
+        for _ in range(6):
+            screen = app.screen
+            aim = screen.aim
+            st = aim.stroke
+            card = " ".join(text_of(app, "#card").split())
+            if st.english:
+                from tablecoach.core import spin
+
+                kind = spin.english_kind(st.english, aim)
+                side = "right" if st.english > 0 else "left"
+                assert f"a tip of {kind} english ({side})" in card
+                seen.add(kind)
+            elif st.follow:
+                assert ("a half tip of follow" if st.follow > 0 else "a half tip of draw") in card
+                seen.add("follow" if st.follow > 0 else "draw")
+            await pilot.press("n")
+            await settle(pilot)
+        assert seen, "the pack dealt no spin in six setups"
+
+
 async def test_large_reading_toggles(make_app):
     app = make_app()
     async with app.run_test(size=SIZE) as pilot:
