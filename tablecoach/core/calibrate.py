@@ -1083,14 +1083,15 @@ TABLE_CHECK: tuple[
     ("two-rail-kick", (1.0, 1.0), None, (5.0, 1.0), "fast"),
     ("three-rail-kick", (2.0, 1.0), None, (4.0, 1.5), "fast"),
     ("three-rail-kick", (1.0, 2.0), None, (3.0, 1.0), "fast"),
-    ("cross-corner-bank", (5.28, 2.01), (5.5, 2.5), None, "fast"),
-    ("cross-side-bank", (5.09, 1.47), (5.0, 2.0), None, "fast"),
-    ("long-rail-bank", (5.47, 1.9), (6.0, 2.0), None, "fast"),
+    ("cross-corner-bank", (5.25, 2.0), (5.5, 2.5), None, "fast"),
+    ("cross-side-bank", (5.0, 1.5), (5.0, 2.0), None, "fast"),
+    ("long-rail-bank", (5.5, 2.0), (6.0, 2.0), None, "fast"),
 )
 """Reference shots of the table check: (family, cue, object, target ball, preset), positions in
-diamonds. Checking a system on each new table with a benchmark shot is common practice (no
-source); these cover one, two and three rails and three banks at the speeds a player uses
-most, so that the first calibration sees cushion, cloth and speed at once."""
+diamonds, on the quarter-diamond grid a player places by eye (placing.py). Checking a system on
+each new table with a benchmark shot is common practice (no source); these cover one, two and
+three rails and three banks at the speeds a player uses most, so that the first calibration
+sees cushion, cloth and speed at once."""
 
 
 def table_check_setups(table: TableSpec, model: str = "ideal") -> list[Any]:

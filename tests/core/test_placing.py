@@ -149,3 +149,14 @@ def test_aim_shift_by_hand_for_a_one_rail_kick() -> None:
     moved = [reading(1.75, 1.0), reading(1.25, 1.0), reading(1.5, 1.25), reading(1.5, 0.75)]
     want = max(abs(m - base) for m in moved)
     assert placing.aim_shift(t, setup) == pytest.approx(want, abs=1e-6)
+
+
+def test_table_check_positions_sit_on_the_quarter_grid() -> None:
+    from tablecoach.core import calibrate
+
+    for table in BUILTIN_TABLES.values():
+        for d in calibrate.table_check_setups(table):
+            for p in (d.setup.cue, d.setup.object, d.setup.target_ball):
+                if p is not None:
+                    x, y = table.to_diamonds(*p)
+                    assert _placeable(table, x, 0, 4) and _placeable(table, y, 1, 4), (x, y)
