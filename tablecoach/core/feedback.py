@@ -22,6 +22,10 @@ OFFER_AFTER = 30
 """New observed landings on a table (since its last calibration) before the practice screen
 offers to calibrate it again."""
 
+RECENT_LANDINGS = 40
+"""A zone's bias is taken over its latest landings at most: the player's habit now, and a
+bounded amount of model work."""
+
 MIN_BIAS_LANDINGS = 3
 """Landings in a zone before its bias is shown: fewer say more about luck than about a habit."""
 
@@ -76,13 +80,13 @@ def zone_bias(
     model: str = "ideal",
     calibration: Any = None,
 ) -> tuple[float, int] | None:
-    """The mean landing error (diamonds round the table, + long) of the observed landings
-    logged in ``zone`` (the zone label stored with each attempt), against the model's landing
-    for the aim used (calibrate.landing_errors), and how many it averages. None with fewer than
-    MIN_BIAS_LANDINGS."""
+    """The mean landing error (diamonds round the table, + long) of the latest observed
+    landings (RECENT_LANDINGS at most) logged in ``zone`` (the zone label stored with each
+    attempt), against the model's landing for the aim used (calibrate.landing_errors), and how
+    many it averages. None with fewer than MIN_BIAS_LANDINGS."""
     from .calibrate import landing_errors  # noqa: PLC0415  (calibrate is heavy; load lazily)
 
-    mine = [a for a in attempts if a.zone == zone and a.landed]
+    mine = [a for a in attempts if a.zone == zone and a.landed][-RECENT_LANDINGS:]
     if len(mine) < MIN_BIAS_LANDINGS:
         return None
     errs = [e for e in landing_errors(table, mine, model, calibration) if e is not None]

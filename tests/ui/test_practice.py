@@ -293,6 +293,31 @@ async def test_a_pack_deals_spin_and_the_card_names_it(make_app):
         assert seen, "the pack dealt no spin in six setups"
 
 
+async def test_card_shows_the_zones_landing_bias(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        screen = app.screen
+        # three misses at one setup, each given a landing on the predicted rail
+        for _ in range(3):
+            await pilot.press("m")
+            await pilot.pause()
+            prompt = app.screen
+            await pilot.press("right", "enter")  # a quarter diamond past the mark
+            await settle(pilot)
+            await pilot.press("r")
+            await settle(pilot)
+        got = stored(app)
+        assert len(got) == 3 and all(a.landed for a in got)
+        from tablecoach.core import feedback
+
+        want = feedback.zone_bias(screen.session.table, got, got[0].zone, "ideal")
+        assert want is not None and want[1] == 3
+        card = " ".join(text_of(app, "#card").split())
+        assert feedback.bias_words(*want) in card, card
+        assert prompt is not screen
+
+
 async def test_large_reading_toggles(make_app):
     app = make_app()
     async with app.run_test(size=SIZE) as pilot:

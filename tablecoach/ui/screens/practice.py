@@ -17,12 +17,12 @@ from tablecoach.core import shots
 from tablecoach.core.shots import Aim, Convergence, Stroke
 
 from ..messages import AimSolved, ConvergenceFound, DealerRefreshed, SetupDealt
-from ..widgets import wording as w
 from ..widgets.info import InfoCard, MessageLine, NotesPanel, SessionBar, card, notes, session_line
 from ..widgets.session import REDRAWS, Session
 from ..widgets.table_panel import TablePanel, draw, picture_of
 from .calibrate_offer import CalibrationOffer
 from .shot_keys import ShotKeys
+from .stroke_keys import StrokeKeys
 
 SOLVED_KEPT = 16
 """How many solved aims the screen keeps, so an undone setup or a speed cycled back to is shown
@@ -37,7 +37,7 @@ def history_available() -> bool:
     return importlib.util.find_spec("tablecoach.ui.screens.history") is not None
 
 
-class PracticeScreen(ShotKeys, CalibrationOffer, Screen[None]):
+class PracticeScreen(ShotKeys, StrokeKeys, CalibrationOffer, Screen[None]):
     """One session of practice. Every key is in the footer and in the command palette."""
 
     BINDINGS = [
@@ -328,11 +328,24 @@ class PracticeScreen(ShotKeys, CalibrationOffer, Screen[None]):
             conv = shots.convergence(self.session.table, setup, None, stroke, model)
         except ValueError:
             conv = None
-        try:
-            self.bias_note = (token, self.session.bias_text(setup, stroke))
-        except ValueError:
-            self.bias_note = (token, "")
         self.post_message(ConvergenceFound(token, conv))
+        self._bias_now(token, setup, stroke, conv)
+
+    @work(thread=True, exclusive=True, group="bias", exit_on_error=False)
+    def _bias_worker(self, token: int, setup: shots.Setup, stroke: Stroke) -> None:
+        self._bias_now(token, setup, stroke, self.conv)
+
+    def _bias_now(
+        self, token: int, setup: shots.Setup, stroke: Stroke, conv: Convergence | None
+    ) -> None:
+        """The zone's landing bias for the card (the model runs the zone's landings)."""
+        try:
+            note = self.session.bias_text(setup, stroke)
+        except ValueError:
+            note = ""
+        if note and token == self.token:
+            self.bias_note = (token, note)
+            self.post_message(ConvergenceFound(token, conv))
 
     def on_setup_dealt(self, message: SetupDealt) -> None:
         if message.generation != self.generation:
@@ -358,6 +371,8 @@ class PracticeScreen(ShotKeys, CalibrationOffer, Screen[None]):
     def _after_solved(self, token: int, aim: Aim, need_conv: bool = True) -> None:
         if token == self.token and need_conv:
             self._conv_worker(token, aim.setup, aim.stroke, aim.model)
+        elif token == self.token:  # a remembered aim: only the zone's bias is worked out again
+            self._bias_worker(token, aim.setup, aim.stroke)
         if self.refresh_dealer:
             self.refresh_dealer = False
             self._refresh_dealer_worker()
@@ -394,22 +409,6 @@ class PracticeScreen(ShotKeys, CalibrationOffer, Screen[None]):
     def action_skip(self) -> None:
         self.say("skipped; here is the next setup")
         self._deal()
-
-    def action_speed(self) -> None:
-        if self.session.pick is None:
-            return
-        preset, stroke = self.session.next_speed()
-        self.say(f"speed for this attempt: {preset}, {stroke.speed:.2f} m/s")
-        self._solve()
-
-    def action_spin(self) -> None:
-        if self.session.pick is None:
-            return
-        stroke = self.session.next_spin(self.aim)
-        said = w.spin_text(stroke, self.aim)
-        note = "" if self.session.model != "ideal" else " (the ideal model leaves spin out)"
-        self.say(f"spin for this attempt: {said}{note}")
-        self._solve()
 
     def action_large(self) -> None:
         self.large = not self.large
