@@ -132,3 +132,16 @@ def test_the_stores_only_player_is_the_default(data_env):
         assert app.practice is not None and app.practice.session.player == "Mara"
     finally:
         app.store.close()
+
+
+def test_a_packs_repeat_setting_reaches_the_session(tmp_path):
+    from dataclasses import replace as dc_replace
+
+    pack = dc_replace(drills.find_drill("one-rail-kicks", None), repeat=3)
+    assert drills.find_drill("one-rail-kicks", None).repeat == 1  # shuffled by default
+    with Store.open(tmp_path / "r.sqlite3") as store:
+        s = Session(store, T9, pack, "tester", np.random.default_rng(3), "ideal")
+        assert s.repeat == 3
+        pick = s.deal()
+        s.log_hit(shots.solve_aim(T9, pick.setup, pick.stroke, "ideal"))
+        assert s.repeats_left() == 2
