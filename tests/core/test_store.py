@@ -393,6 +393,8 @@ def test_migrates_version_2_in_place(db: Path) -> None:
         # time order: the short miss has b's time and a later id
         assert cols.landing_rail == (None, "left", None, "head")
         assert np.isnan(cols.landing_at[[0, 2]]).all() and cols.miss_kind[2] == "short"
+        # the columnar read gives back the same attempts, no landing included
+        assert s.columns().to_attempts() == s.attempts()
     c = sqlite3.connect(db)
     idx = {r[0] for r in c.execute("SELECT name FROM sqlite_master WHERE type = 'index'")}
     assert {"attempts_session", "attempts_ident", "attempts_at", "attempts_player_table_at"} <= idx
