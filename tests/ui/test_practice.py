@@ -355,6 +355,7 @@ async def test_calibration_offer_after_30_new_landings(make_app):
         await pilot.press("m", "right", "enter")
         await settle(pilot)
         assert "30 new landings on the 9ft table: c calibrates" in text_of(app, "#message")
+        assert "30 new landings: c calibrates" in text_of(app, "#notes")
         screen = app.screen
         await pilot.press("c")
         await settle(pilot)  # the fit runs in a worker thread (calibrate_offer.py)
@@ -363,6 +364,7 @@ async def test_calibration_offer_after_30_new_landings(make_app):
         assert message.startswith("calibrated: landings now predicted to"), message
         assert screen.session.calibration is not None and not screen.calibrating
         assert screen.status.startswith("calibrated from")
+        assert "c calibrates" not in text_of(app, "#notes")
         # the new table is used for the aims from now on
         assert screen.session.table == screen.session.calibration.apply(app.store.get_table("9ft"))
         assert app.store.calibration("9ft", "tester") is not None

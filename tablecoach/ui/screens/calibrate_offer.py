@@ -23,6 +23,8 @@ class CalibrationOffer:
     solved: dict[Any, Any]
     offered: bool = False
     calibrating: bool = False
+    offer_hint: str = ""
+    """Added to the table's status line under the table while an offer stands."""
 
     if TYPE_CHECKING:  # provided by PracticeScreen (and Screen); never defined here
 
@@ -44,6 +46,7 @@ class CalibrationOffer:
         if not n:
             return ""
         self.offered = True
+        self.offer_hint = f"; {n} new landings: c calibrates"
         return (
             f"{n} new landings on the {s.table.name} table: c calibrates it now, in the "
             "background (keep practising)"
@@ -55,6 +58,7 @@ class CalibrationOffer:
             return
         self.calibrating = True
         self.offered = True
+        self.offer_hint = "; calibrating..."
         s = self.session
         self.say(f"calibrating the {s.table.name} table from your landings; keep practising")
         self._calibrate_worker(s.table.name, s.player, s.model, s.calibration)
@@ -72,6 +76,7 @@ class CalibrationOffer:
 
     def on_calibration_done(self, message: CalibrationDone) -> None:
         self.calibrating = False
+        self.offer_hint = ""
         if message.error:
             self.say(f"not calibrated: {message.error}", True)
             return

@@ -155,7 +155,7 @@ class PracticeScreen(ShotKeys, StrokeKeys, CalibrationOffer, Screen[None]):
         )
         pinned = self._pinned_text()
         self.query_one(NotesPanel).update(
-            notes(s.table, pick, self.aim, self.status, pinned), layout=False
+            notes(s.table, pick, self.aim, self.status + self.offer_hint, pinned), layout=False
         )
         self.query_one(SessionBar).update(
             session_line(s.stats(), s.earlier_stats(), s.table.name, s.player), layout=False
