@@ -354,17 +354,19 @@ async def test_calibration_offer_after_30_new_landings(make_app):
         assert "c calibrates" not in text_of(app, "#message")
         await pilot.press("m", "right", "enter")
         await settle(pilot)
-        assert "30 new landings on the 9ft table: c calibrates" in text_of(app, "#message")
+        assert "30 new landings: c calibrates" in text_of(app, "#message")
         assert "30 new landings: c calibrates" in text_of(app, "#notes")
         screen = app.screen
         await pilot.press("c")
         await settle(pilot)  # the fit runs in a worker thread (calibrate_offer.py)
         await pilot.pause()
         message = text_of(app, "#message")
-        assert message.startswith("calibrated: landings now predicted to"), message
+        assert message.startswith("calibrated the 9ft table"), message
+        notes = " ".join(text_of(app, "#notes").split())
+        assert "calibrated from 33 attempts: landings now predicted to" in notes, notes  # 29+2+2
         assert screen.session.calibration is not None and not screen.calibrating
         assert screen.status.startswith("calibrated from")
-        assert "c calibrates" not in text_of(app, "#notes")
+        assert "c calibrates" not in notes
         # the new table is used for the aims from now on
         assert screen.session.table == screen.session.calibration.apply(app.store.get_table("9ft"))
         assert app.store.calibration("9ft", "tester") is not None

@@ -145,3 +145,16 @@ def test_a_packs_repeat_setting_reaches_the_session(tmp_path):
         pick = s.deal()
         s.log_hit(shots.solve_aim(T9, pick.setup, pick.stroke, "ideal"))
         assert s.repeats_left() == 2
+
+
+def test_session_line_leaves_out_whole_parts_that_do_not_fit():
+    from tablecoach.ui.widgets.info import session_line
+    from tablecoach.ui.widgets.session import Stats
+
+    now, before = Stats(3, 2, 1, 2), Stats(30, 12, 0, 4)
+    full = session_line(now, before, "9ft", "kim").plain
+    assert full.endswith("before: 30 shots, 12 hits")
+    narrow = session_line(now, before, "9ft", "kim", 78).plain
+    assert "before" not in narrow and narrow.startswith("kim on 9ft") and len(narrow) <= 78
+    tiny = session_line(now, before, "9ft", "kim", 50).plain
+    assert tiny.startswith("this session: 3 shots, 2 hits (67%), streak 1")

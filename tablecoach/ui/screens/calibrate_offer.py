@@ -47,10 +47,7 @@ class CalibrationOffer:
             return ""
         self.offered = True
         self.offer_hint = f"; {n} new landings: c calibrates"
-        return (
-            f"{n} new landings on the {s.table.name} table: c calibrates it now, in the "
-            "background (keep practising)"
-        )
+        return f"{n} new landings: c calibrates"
 
     def action_calibrate(self) -> None:
         if self.calibrating:
@@ -93,7 +90,9 @@ class CalibrationOffer:
         self.status = cal.status
         self.solved.clear()  # aims solved on the old table
         self._forget_ahead()  # and the setup dealt ahead was solved there too
-        self.say("calibrated: " + "; ".join(message.changes))
+        # what changed stays under the table (the message line is one line)
+        self.offer_hint = ": " + "; ".join(message.changes)
+        self.say(f"calibrated the {s.table.name} table: what changed is under the table")
         if s.pick is not None:
             self._solve()
         else:

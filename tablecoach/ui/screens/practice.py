@@ -158,7 +158,14 @@ class PracticeScreen(ShotKeys, StrokeKeys, CalibrationOffer, Screen[None]):
             notes(s.table, pick, self.aim, self.status + self.offer_hint, pinned), layout=False
         )
         self.query_one(SessionBar).update(
-            session_line(s.stats(), s.earlier_stats(), s.table.name, s.player), layout=False
+            session_line(
+                s.stats(),
+                s.earlier_stats(),
+                s.table.name,
+                s.player,
+                self.query_one(SessionBar).content_size.width,
+            ),
+            layout=False,
         )
 
     def _pinned_text(self) -> str:

@@ -91,17 +91,18 @@ class ShotKeys:
             return
         st = self.session.stats()
         left = self.session.repeats_left()
-        said = f"logged a {a.result} ({how_it_ended(a)}); {w.count(st.shots, 'shot')}"
-        said += f", streak {st.streak}"
+        said = f"logged a {a.result} ({how_it_ended(a)})"
         offer = self.offer_text()
-        if offer:
-            said = f"{said}. {offer}"
+        if offer:  # the offer instead of the count (on the line below), so the line fits 80
+            said = f"{said}; {offer}"
+        else:
+            said += f"; {w.count(st.shots, 'shot')}, streak {st.streak}"
         if left:
             self.session.again()
             self.say(f"{said}; the same setup again ({w.count(left, 'more time')})")
             self._solve()
             return
-        self.say(f"{said}; r shoots it again")
+        self.say(said if offer else f"{said}; r shoots it again")
         self._deal()
 
     def action_again(self) -> None:

@@ -160,17 +160,29 @@ def why_text(pick: Pick, aim: Aim | None) -> str:
     return f"{pick.why}; dealt {dealt}, played {played}: it counts as a {played} shot"
 
 
-def session_line(stats: Stats, earlier: Stats, table_name: str, player: str) -> Text:
-    """Running count and streak of this session, and what was logged before it."""
-    t = Text()
-    t.append(f"{player} on {table_name}  ", style="bold")
+def session_line(
+    stats: Stats, earlier: Stats, table_name: str, player: str, width: int | None = None
+) -> Text:
+    """Running count and streak of this session, and what was logged before it; parts that
+    do not fit ``width`` are left out whole (the earlier count first, then the player)."""
     rate = f" ({100 * stats.hits / stats.shots:.0f}%)" if stats.shots else ""
-    t.append(f"this session: {w.count(stats.shots, 'shot')}, {w.count(stats.hits, 'hit')}{rate}, ")
-    t.append(f"streak {stats.streak}", style="bold")
-    t.append(f" (best {stats.best})")
+    parts: list[tuple[str, str]] = [
+        (f"{player} on {table_name}  ", "bold"),
+        (f"this session: {w.count(stats.shots, 'shot')}, {w.count(stats.hits, 'hit')}{rate}, ", ""),
+        (f"streak {stats.streak}", "bold"),
+        (f" (best {stats.best})", ""),
+    ]
     if earlier.shots:
         before = f"{w.count(earlier.shots, 'shot')}, {w.count(earlier.hits, 'hit')}"
-        t.append(f"   before: {before}", style="dim")
+        parts.append((f"   before: {before}", "dim"))
+    if width is not None and width > 0:
+        if sum(len(p) for p, _ in parts) > width and earlier.shots:
+            parts.pop()
+        if sum(len(p) for p, _ in parts) > width:
+            parts.pop(0)
+    t = Text()
+    for text, style in parts:
+        t.append(text, style=style)
     return t
 
 
