@@ -102,7 +102,7 @@ def test_export_to_stdout_and_filters(capsys: pytest.CaptureFixture[str]) -> Non
     code, out, _ = run_cli(capsys, "export")
     assert code == 0
     lines = out.splitlines()
-    assert len(lines) == 12 and all(json.loads(x)["v"] == 1 for x in lines)
+    assert len(lines) == 12 and all(json.loads(x)["v"] == 2 for x in lines)
     code, out, _ = run_cli(capsys, "export", "--format", "csv", "--player", "bo")
     rows = list(csv.reader(io.StringIO(out, newline="")))  # notes may hold line breaks
     assert rows[0][:4] == ["v", "when", "player", "table"]

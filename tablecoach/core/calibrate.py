@@ -73,9 +73,13 @@ def model_landing(
 
 
 def observed_landing(table: TableSpec, attempt: Attempt) -> RailPoint:
-    """The logged landing as a RailPoint in metres."""
-    rail = attempt.landing_rail
-    return RailPoint(rail, table.along_to_metres(rail, attempt.landing_at))  # type: ignore[arg-type]
+    """The logged landing as a RailPoint in metres. ValueError when the attempt carries no
+    observed landing (a hit logged without one, a miss that stopped short or jawed): the
+    model's own prediction is never used in its place."""
+    rail, at = attempt.landing_rail, attempt.landing_at
+    if rail is None or at is None:
+        raise ValueError("this attempt has no observed landing")
+    return RailPoint(rail, table.along_to_metres(rail, at))  # type: ignore[arg-type]
 
 
 def landing_error(
@@ -86,8 +90,10 @@ def landing_error(
     The model's landing is for the aim the player used, at ``speed`` m/s (default the logged
     speed). Positive means long: the ball landed further along its path than the model
     predicts (which way is "along" comes from the ideal trace of the same reading). None when
-    the model's ball never reaches a landing rail.
+    the model's ball never reaches a landing rail or no landing was observed.
     """
+    if not attempt.landed:
+        return None
     setup = shots.setup_of(table, attempt.shot)
     rail = setup.family.rails[0]
     reading = table.along_to_metres(rail, attempt.aim_used)
@@ -366,7 +372,7 @@ class Calibration:
         (shots.STROKE_LENGTHS)."""
         here = self._words_table(table)
         out: list[str] = []
-        head = f"Calibrated from {self.attempts} attempts"
+        head = f"Calibrated from {self.attempts} attempt{'s' if self.attempts != 1 else ''}"
         if self.outliers:
             head += (
                 f" ({self.outliers} far from the model, mislogged or near a pocket, "
@@ -499,6 +505,8 @@ class _Shot:
 def _prepare(table: TableSpec, attempts: Sequence[Attempt]) -> list[_Shot]:
     out = []
     for a in attempts:
+        if not a.landed:  # only observed landings teach the fit
+            continue
         try:
             setup = shots.setup_of(table, a.shot)
             rail = setup.family.rails[0]
@@ -1129,14 +1137,15 @@ TABLE_CHECK: tuple[
     ("two-rail-kick", (1.0, 1.0), None, (5.0, 1.0), "fast"),
     ("three-rail-kick", (2.0, 1.0), None, (4.0, 1.5), "fast"),
     ("three-rail-kick", (1.0, 2.0), None, (3.0, 1.0), "fast"),
-    ("cross-corner-bank", (5.28, 2.01), (5.5, 2.5), None, "fast"),
-    ("cross-side-bank", (5.09, 1.47), (5.0, 2.0), None, "fast"),
-    ("long-rail-bank", (5.47, 1.9), (6.0, 2.0), None, "fast"),
+    ("cross-corner-bank", (5.25, 2.0), (5.5, 2.5), None, "fast"),
+    ("cross-side-bank", (5.0, 1.5), (5.0, 2.0), None, "fast"),
+    ("long-rail-bank", (5.5, 2.0), (6.0, 2.0), None, "fast"),
 )
 """Reference shots of the table check: (family, cue, object, target ball, preset), positions in
-diamonds. Checking a system on each new table with a benchmark shot is common practice (no
-source); these cover one, two and three rails and three banks at the speeds a player uses
-most, so that the first calibration sees cushion, cloth and speed at once."""
+diamonds, on the quarter-diamond grid a player places by eye (placing.py). Checking a system on
+each new table with a benchmark shot is common practice (no source); these cover one, two and
+three rails and three banks at the speeds a player uses most, so that the first calibration
+sees cushion, cloth and speed at once."""
 
 
 def table_check_setups(table: TableSpec, model: str = "ideal") -> list[Any]:

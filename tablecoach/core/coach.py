@@ -284,9 +284,10 @@ class Choice:
 
 
 def family_words(family: str) -> str:
-    """A family's title in lower case (``cross-corner bank``), or its name."""
+    """A family's title in lower case (``cross-corner bank``), or its name in words (a pack's
+    own ``left-rail-corner-bank`` reads "left rail corner bank")."""
     fam = shots.PRESETS.get(family)
-    return (fam.title if fam is not None else family).lower()
+    return (fam.title if fam is not None else family.replace("-", " ")).lower()
 
 
 def _sort_key(z: Zone) -> tuple[str, int, int, str]:
@@ -422,7 +423,11 @@ class Scheduler:
         """What is pinned, in words, or None."""
         if self._pin_left <= 0:
             return None
-        what = self._pin_zone.label if self._pin_zone else family_words(self._pin_family or "")
+        z = self._pin_zone
+        if z is not None:  # in a player's words, not the stored label
+            what = f"{family_words(z.family)} from {z.short} at {z.speed}"
+        else:
+            what = family_words(self._pin_family or "")
         return f"{what} for {self._pin_left} more"
 
     # ----- choosing ----------------------------------------------------------------------------

@@ -20,6 +20,7 @@ from typing import Any
 
 import numpy as np
 
+from .placing import DEFAULT_GRID, GRIDS, snap, spans
 from .shots import (
     PRESETS,
     SPEED_PRESETS,
@@ -42,8 +43,10 @@ MAX_TRIES = 300
 """Random draws per setup before a region is declared to give no clean path."""
 
 MAX_COUNT = 500
+MAX_REPEAT = 10
+"""At most this many shots in a row of one setup (``repeat`` in a pack)."""
 
-_PACK_KEYS = {"title", "description", "count", "item"}
+_PACK_KEYS = {"title", "description", "count", "item", "grid", "repeat"}
 _ITEM_KEYS = {
     "family",
     "travel",
@@ -104,7 +107,9 @@ class DrillItem:
 @dataclass(frozen=True, slots=True)
 class Drill:
     """A drill pack: ``name`` (the file's stem), a title and description, its items, how many
-    setups a round deals (``count``) and the file it came from."""
+    setups a round deals (``count``) and the file it came from. ``grid`` is how finely dealt
+    positions are placed (steps a diamond: 4 quarters, 8 eighths; placing.py) and ``repeat``
+    how many times in a row each setup is shot (1: a new setup every shot)."""
 
     name: str
     title: str
@@ -112,6 +117,8 @@ class Drill:
     items: tuple[DrillItem, ...]
     count: int
     source: Path | None = None
+    grid: int = DEFAULT_GRID
+    repeat: int = 1
 
 
 @dataclass(frozen=True, slots=True)
@@ -364,7 +371,13 @@ def parse_drill(text: str, name: str, source: str = "<drill>", path: Path | None
     if not isinstance(items_raw, list) or not items_raw:
         raise ctx.fail(["item"], "is missing: a pack needs at least one [[item]]")
     items = tuple(_item(ctx, k, raw) for k, raw in enumerate(items_raw))
-    return Drill(name, title.strip(), desc.strip(), items, count, path)
+    grid = data.get("grid", DEFAULT_GRID)
+    if isinstance(grid, bool) or grid not in GRIDS:
+        raise ctx.fail(["grid"], f"= {grid!r}: use 4 (quarter diamonds) or 8 (eighths)")
+    repeat = data.get("repeat", 1)
+    if isinstance(repeat, bool) or not isinstance(repeat, int) or not 1 <= repeat <= MAX_REPEAT:
+        raise ctx.fail(["repeat"], f"= {repeat!r} must be a whole number from 1 to {MAX_REPEAT}")
+    return Drill(name, title.strip(), desc.strip(), items, count, path, grid, repeat)
 
 
 def load_drill(path: str | Path) -> Drill:
@@ -457,11 +470,15 @@ def _placeable(table: TableSpec, r: Rect) -> Rect | None:
     return Rect(x0, x1, y0, y1)
 
 
-def _point(rng: np.random.Generator, rects: Sequence[Rect]) -> tuple[float, float]:
-    """A uniform random point in a union of rectangles (by area; a point-sized one counts)."""
+def _point(
+    table: TableSpec, rng: np.random.Generator, rects: Sequence[Rect], grid: int
+) -> tuple[float, float]:
+    """A point a player can place in a union of rectangles: a rectangle by area (a point-sized
+    one counts), then a grid position or a frozen one in it, uniformly (placing.snap)."""
     areas = np.array([max(r.area, 1e-12) for r in rects])
     r = rects[int(rng.choice(len(rects), p=areas / areas.sum()))] if len(rects) > 1 else rects[0]
-    return (float(rng.uniform(r.x0, r.x1)), float(rng.uniform(r.y0, r.y1)))
+    sx, sy = spans(table, r.x0, r.x1, r.y0, r.y1)
+    return (snap(sx, grid, rng), snap(sy, grid, rng))
 
 
 def label_of(item: DrillItem, speed_index: int) -> str:
@@ -497,7 +514,7 @@ def _draw(
     for _ in range(tries):
         si = int(rng.integers(len(item.speeds)))
         pocket = item.pockets[int(rng.integers(len(item.pockets)))] if item.pockets else None
-        pts = {b: table.to_metres(*_point(rng, rs)) for b, rs in regions.items()}
+        pts = {b: table.to_metres(*_point(table, rng, rs, drill.grid)) for b, rs in regions.items()}
         stroke = Stroke(item.speeds[si], item.english, item.follow)
         try:
             for b, p in pts.items():
@@ -586,6 +603,8 @@ def describe(drill: Drill) -> dict[str, Any]:
         "title": drill.title,
         "description": drill.description,
         "count": drill.count,
+        "grid": drill.grid,
+        "repeat": drill.repeat,
         "source": str(drill.source) if drill.source else None,
         "items": [
             {

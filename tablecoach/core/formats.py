@@ -1,4 +1,5 @@
-"""Attempt records as JSONL (version 1) and CSV, for export and import (docs/formats.md).
+"""Attempt records as JSONL (version 2; version 1 reads) and CSV, for export and import
+(docs/formats.md).
 
 Numbers are written with Python's shortest round-tripping repr, and times as ISO-8601 UTC to
 the microsecond, so exporting and importing again gives back exactly the same attempts.
@@ -21,6 +22,7 @@ from .records import (
     RecordError,
     ShotRecord,
     flatten,
+    upgrade_v1,
     validate_attempt,
 )
 
@@ -32,7 +34,7 @@ CSV_COLUMNS: tuple[str, ...] = (
 )
 """CSV header, in order. ``rails`` joins rail names with ';'; empty cells are absent values."""
 
-_OPTIONAL_CSV = {"note", "model", "drill", "zone", "english", "follow"}
+_OPTIONAL_CSV = {"note", "model", "drill", "zone", "english", "follow", "miss_kind"}
 _TOP = {
     "v",
     "when",
@@ -49,6 +51,7 @@ _TOP = {
     "model",
     "drill",
     "zone",
+    "miss_kind",
 }
 _SHOT = {"travel", "rails", "family", "target", "cue", "object"}
 
@@ -63,12 +66,20 @@ def _pt(p: tuple[float, float] | None) -> list[float] | None:
 
 
 def attempt_to_json(a: Attempt) -> dict[str, Any]:
-    """One attempt as the version-1 JSON object (id and session are the store's, not kept)."""
+    """One attempt as the version-2 JSON object (id and session are the store's, not kept).
+
+    ``landing`` is null unless a landing was observed; ``miss_kind`` is written on a miss only.
+    """
     s = a.shot
     target: dict[str, Any] = (
         {"pocket": s.pocket} if s.pocket is not None else {"ball": _pt(s.target_ball)}
     )
-    return {
+    landing = (
+        {"rail": a.landing_rail, "at": float(a.landing_at)}
+        if a.landing_rail is not None and a.landing_at is not None
+        else None
+    )
+    out: dict[str, Any] = {
         "v": SCHEMA_VERSION,
         "when": when_text(a.when),
         "player": a.player,
@@ -86,12 +97,15 @@ def attempt_to_json(a: Attempt) -> dict[str, Any]:
         "follow": float(a.follow),
         "aim": {"rail": a.aim_rail, "given": float(a.aim_given), "used": float(a.aim_used)},
         "result": a.result,
-        "landing": {"rail": a.landing_rail, "at": float(a.landing_at)},
+        "landing": landing,
         "note": a.note,
         "model": a.model,
         "drill": a.drill,
         "zone": a.zone,
     }
+    if a.result == "miss":
+        out["miss_kind"] = a.miss_kind
+    return out
 
 
 # ----- reading one object -------------------------------------------------------------------
@@ -151,16 +165,22 @@ class _Line:
 
 
 def attempt_from_json(obj: Any, line_no: int = 1) -> Attempt:
-    """Read one version-1 JSON object into a validated Attempt; errors name the line."""
+    """Read one JSON object (version 2, or version 1 upgraded by ``records.upgrade_v1``) into a
+    validated Attempt; errors name the line."""
     ln = _Line(line_no)
     if not isinstance(obj, dict):
         raise ln.err("each line must be one JSON object")
     v = obj.get("v")
-    if v != SCHEMA_VERSION:
+    if v not in (1, SCHEMA_VERSION) or isinstance(v, bool):
         if isinstance(v, int) and not isinstance(v, bool) and v > SCHEMA_VERSION:
-            raise ln.err(f"record version {v} is newer than this tablecoach reads (1)")
-        raise ln.err(f"field 'v' must be {SCHEMA_VERSION}, got {v!r}")
-    unknown = sorted(set(obj) - _TOP)
+            raise ln.err(
+                f"record version {v} is newer than this tablecoach reads "
+                f"({SCHEMA_VERSION}); upgrade tablecoach to import it"
+            )
+        raise ln.err(f"field 'v' must be 1 or {SCHEMA_VERSION}, got {v!r}")
+    unknown = sorted(set(obj) - _TOP - ({"miss_kind"} if v == 1 else set()))
+    if v == 1 and "miss_kind" in obj:
+        raise ln.err("field 'miss_kind' is not part of version 1 records (write v 2)")
     if unknown:
         raise ln.err(f"field {unknown[0]!r} is not part of the record format")
     when_s = ln.text(obj, "when")
@@ -198,7 +218,15 @@ def attempt_from_json(obj: Any, line_no: int = 1) -> Attempt:
     )
     aim = ln.table(obj, "aim")
     result: Any = ln.text(obj, "result")
-    landing = ln.table(obj, "landing")
+    if v == 1:
+        landing: dict[str, Any] | None = ln.table(obj, "landing")
+        miss_kind: Any = None
+    else:
+        raw = ln.get(obj, "landing")
+        landing = None if raw is None else ln.table(obj, "landing")
+        miss_kind = obj.get("miss_kind")
+        if miss_kind is not None and not isinstance(miss_kind, str):
+            raise ln.err(f"field 'miss_kind' must be text, got {miss_kind!r}")
     a = Attempt(
         when=when,
         player=ln.text(obj, "player"),
@@ -211,13 +239,16 @@ def attempt_from_json(obj: Any, line_no: int = 1) -> Attempt:
         aim_given=ln.num(aim, "given", "aim."),
         aim_used=ln.num(aim, "used", "aim."),
         result=result,
-        landing_rail=ln.text(landing, "rail", "landing."),
-        landing_at=ln.num(landing, "at", "landing."),
+        landing_rail=None if landing is None else ln.text(landing, "rail", "landing."),
+        landing_at=None if landing is None else ln.num(landing, "at", "landing."),
         note=ln.text(obj, "note", default=""),
         model=ln.text(obj, "model", default="ideal"),
         drill=ln.text(obj, "drill", default=""),
         zone=ln.text(obj, "zone", default=""),
+        miss_kind=miss_kind,
     )
+    if v == 1:
+        a = upgrade_v1(a)
     try:
         return validate_attempt(a)
     except RecordError as exc:
@@ -335,8 +366,16 @@ def _row_to_obj(row: dict[str, str], ln: _Line) -> dict[str, Any]:
             "used": num("aim_used"),
         },
         "result": row.get("result", ""),
-        "landing": {"rail": row.get("landing_rail", ""), "at": num("landing_at")},
     }
+    land_rail = row.get("landing_rail", "").strip()
+    land_at = num("landing_at")
+    if v == 1 or land_rail or land_at is not None:
+        obj["landing"] = {"rail": land_rail, "at": land_at}
+    else:
+        obj["landing"] = None
+    kind = row.get("miss_kind", "").strip()
+    if kind:
+        obj["miss_kind"] = kind
     for key in ("english", "follow"):
         val = num(key)
         if val is not None:

@@ -518,7 +518,8 @@ def _columns(items: list[Attempt]) -> Columns:
         shapes=shapes,
         aim_used=np.fromiter(aim_used, np.float64, n),
         landing_rail=land_code,
-        landing_at=np.fromiter(lat, np.float64, n),
+        # no observed landing (a hit without one, a short or jawed miss): NaN, no offset
+        landing_at=np.fromiter((np.nan if v is None else v for v in lat), np.float64, n),
         player=player,
         players=player_names,
         table=table,

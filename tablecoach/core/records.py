@@ -8,14 +8,20 @@ Convert to metres through the table (``TableSpec.to_metres``) when a model needs
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from datetime import UTC, datetime
 from typing import Any, Literal
 
 from .table import POCKETS, RAILS, TableError
 
 Result = Literal["hit", "miss"]
-SCHEMA_VERSION = 1
+MissKind = Literal["landed", "short", "jaw"]
+SCHEMA_VERSION = 2
+"""The record version written (docs/formats.md); version 1 records still read (upgrade_v1)."""
+
+MISS_KINDS: tuple[str, ...] = ("landed", "short", "jaw")
+"""How a miss ended: it crossed the landing rail (``landed``, with a landing), stopped before
+the rail (``short``), or rattled out of the pocket jaws (``jaw``); the last two have no landing."""
 
 
 class RecordError(ValueError):
@@ -46,10 +52,12 @@ class Attempt:
     ``when`` is timezone-aware UTC. ``aim_given`` is the reading the coach showed and
     ``aim_used`` the reading the player actually used (the same unless they said otherwise),
     both in diamonds along ``aim_rail``'s line of sights. ``landing_rail``/``landing_at`` is
-    where the travelling ball crossed the landing rail (diamonds). ``speed`` is m/s off the tip,
-    ``english``/``follow`` in tips. ``id`` and ``session`` are the store's keys (None before
-    saving). ``model`` names the aim model that gave the reading, ``drill`` the pack, ``zone``
-    the coach's zone label at the time.
+    where the player saw the travelling ball cross the landing rail (diamonds), or both None
+    when no landing was observed: a hit records one only when the player gave it, and a miss
+    has none when it stopped short or rattled in the jaws (``miss_kind``; None on a hit).
+    ``speed`` is m/s off the tip, ``english``/``follow`` in tips. ``id`` and ``session`` are
+    the store's keys (None before saving). ``model`` names the aim model that gave the
+    reading, ``drill`` the pack, ``zone`` the coach's zone label at the time.
     """
 
     when: datetime
@@ -63,18 +71,29 @@ class Attempt:
     aim_given: float
     aim_used: float
     result: Result
-    landing_rail: str
-    landing_at: float
+    landing_rail: str | None
+    landing_at: float | None
     note: str = ""
     model: str = "ideal"
     drill: str = ""
     zone: str = ""
+    miss_kind: MissKind | None = None
     session: int | None = None
     id: int | None = field(default=None, compare=False)
+
+    def __post_init__(self) -> None:
+        # a miss given with a landing and no kind is a "landed" miss (the kind is implied)
+        if self.result == "miss" and self.miss_kind is None and self.landing_rail is not None:
+            object.__setattr__(self, "miss_kind", "landed")
 
     @property
     def hit(self) -> bool:
         return self.result == "hit"
+
+    @property
+    def landed(self) -> bool:
+        """Whether the record carries an observed landing (never the model's prediction)."""
+        return self.landing_rail is not None and self.landing_at is not None
 
 
 FLAT_FIELDS: tuple[str, ...] = (
@@ -104,6 +123,7 @@ FLAT_FIELDS: tuple[str, ...] = (
     "model",
     "drill",
     "zone",
+    "miss_kind",
 )
 """The fields of an attempt laid flat, in the one order the store, CSV and identity share."""
 
@@ -142,11 +162,12 @@ def flatten(a: Attempt) -> tuple[Any, ...]:
         float(a.aim_used),
         a.result,
         a.landing_rail,
-        float(a.landing_at),
+        _opt(a.landing_at),
         a.note,
         a.model,
         a.drill,
         a.zone,
+        a.miss_kind,
     )
 
 
@@ -226,19 +247,49 @@ def validate_attempt(a: Attempt) -> Attempt:
     check_rail_point("aim.used", a.aim_rail, a.aim_used)
     if a.result not in ("hit", "miss"):
         raise RecordError("field 'result' must be 'hit' or 'miss'")
-    check_rail_point("landing.at", a.landing_rail, a.landing_at)
+    if (a.landing_rail is None) != (a.landing_at is None):
+        raise RecordError("field 'landing' needs both a rail and a point, or neither")
+    if a.landing_rail is not None and a.landing_at is not None:
+        check_rail_point("landing.at", a.landing_rail, a.landing_at)
+    if a.result == "hit":
+        if a.miss_kind is not None:
+            raise RecordError("field 'miss_kind' is only for a miss; leave it out on a hit")
+    elif a.miss_kind not in MISS_KINDS:
+        raise RecordError(
+            f"field 'miss_kind' = {a.miss_kind!r}: a miss is one of {', '.join(MISS_KINDS)}"
+        )
+    elif (a.miss_kind == "landed") != (a.landing_rail is not None):
+        raise RecordError(
+            "a miss with a landing has miss_kind 'landed'; a 'short' or 'jaw' miss has landing null"
+        )
     return a
+
+
+def upgrade_v1(a: Attempt) -> Attempt:
+    """A version-1 record in version-2 terms.
+
+    Version 1 put a landing on every attempt, and the app filled a hit's with the aim's
+    predicted landing, not a seen one; version 2 keeps only what was observed. So a hit loses
+    its landing (it can be recomputed from the setup, aim and speed kept in the record) and a
+    miss keeps its landing as ``miss_kind`` "landed".
+    """
+    if a.result == "hit":
+        return replace(a, landing_rail=None, landing_at=None, miss_kind=None)
+    return replace(a, miss_kind="landed")
 
 
 __all__ = [
     "Attempt",
     "FLAT_FIELDS",
+    "MISS_KINDS",
+    "MissKind",
     "RecordError",
     "SCHEMA_VERSION",
     "ShotRecord",
     "TableError",
     "check_rail_point",
     "flatten",
+    "upgrade_v1",
     "utc_now",
     "validate_attempt",
 ]

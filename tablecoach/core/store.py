@@ -27,7 +27,7 @@ import numpy as np
 from .records import FLAT_FIELDS, Attempt, ShotRecord, flatten, utc_now, validate_attempt
 from .table import BUILTIN_TABLES, TableError, TableSpec, table_from_mapping, table_to_mapping
 
-SCHEMA_VERSION = 2
+SCHEMA_VERSION = 3
 """The schema this code writes (PRAGMA user_version). Version 1 is the first schema."""
 
 APPLICATION_ID = 0x74636F61
@@ -145,27 +145,101 @@ def _migrate_1_to_2(conn: sqlite3.Connection) -> None:
         );
         """,
     )
-    rows = conn.execute(f"SELECT {_COLS}, id FROM attempts").fetchall()
+    # the identities are set again by the step to version 3 (miss_kind enters them)
+    v2_cols = ", ".join(c for c in _COL_NAMES if c != "miss_kind")
+    rows = conn.execute(f"SELECT {v2_cols}, id FROM attempts").fetchall()
     conn.executemany(
         "UPDATE attempts SET ident = ? WHERE id = ?",
-        ((attempt_identity(_from_row(r)), r[-1]) for r in rows),
+        ((attempt_identity(_from_row((*r[:26], None, r[26]))), r[-1]) for r in rows),
     )
+    _run_script(conn, _HISTORY_INDEXES)
     _run_script(
         conn,
         """
-        CREATE INDEX attempts_ident ON attempts(ident);
-        CREATE INDEX attempts_at ON attempts(at, id);
-        CREATE INDEX attempts_player_at ON attempts(player, at);
-        CREATE INDEX attempts_table_at ON attempts(table_name, at);
-        CREATE INDEX attempts_family_at ON attempts(family, at);
-        CREATE INDEX attempts_player_table_at ON attempts(player, table_name, at);
         CREATE INDEX sessions_player ON sessions(player, table_name);
         CREATE INDEX calibrations_key ON calibrations(table_name, player, id);
         """,
     )
 
 
-_MIGRATIONS = {1: _migrate_1_to_2}
+_HISTORY_INDEXES = """
+        CREATE INDEX attempts_ident ON attempts(ident);
+        CREATE INDEX attempts_at ON attempts(at, id);
+        CREATE INDEX attempts_player_at ON attempts(player, at);
+        CREATE INDEX attempts_table_at ON attempts(table_name, at);
+        CREATE INDEX attempts_family_at ON attempts(family, at);
+        CREATE INDEX attempts_player_table_at ON attempts(player, table_name, at);
+"""
+"""The attempts indexes of version 2 on (made again when version 3 rebuilds the table)."""
+
+
+def _migrate_2_to_3(conn: sqlite3.Connection) -> None:
+    """Version 3: what was seen apart from what was predicted (record format version 2).
+
+    The landing columns may be NULL (no landing observed) and ``miss_kind`` says how a miss
+    ended. SQLite cannot drop a NOT NULL in place, so the attempts table is copied into one
+    of the new shape (same ids, sessions and values) and its indexes made again. Version 2
+    filled a hit's landing with the aim's predicted one, so hits lose it (records.upgrade_v1:
+    it can be recomputed from the setup, aim and speed); misses keep theirs as "landed".
+    """
+    _run_script(
+        conn,
+        """
+        CREATE TABLE attempts_v3 (
+            id INTEGER PRIMARY KEY,
+            session_id INTEGER REFERENCES sessions(id),
+            at TEXT NOT NULL,
+            player TEXT NOT NULL,
+            table_name TEXT NOT NULL,
+            travel TEXT NOT NULL,
+            rails TEXT NOT NULL,
+            family TEXT NOT NULL,
+            pocket TEXT,
+            target_x REAL,
+            target_y REAL,
+            cue_x REAL NOT NULL,
+            cue_y REAL NOT NULL,
+            object_x REAL,
+            object_y REAL,
+            speed REAL NOT NULL,
+            english REAL NOT NULL,
+            follow REAL NOT NULL,
+            aim_rail TEXT NOT NULL,
+            aim_given REAL NOT NULL,
+            aim_used REAL NOT NULL,
+            result TEXT NOT NULL,
+            landing_rail TEXT,
+            landing_at REAL,
+            note TEXT NOT NULL DEFAULT '',
+            model TEXT NOT NULL DEFAULT 'ideal',
+            drill TEXT NOT NULL DEFAULT '',
+            zone TEXT NOT NULL DEFAULT '',
+            ident TEXT,
+            miss_kind TEXT
+        );
+        INSERT INTO attempts_v3
+            SELECT id, session_id, at, player, table_name, travel, rails, family, pocket,
+                target_x, target_y, cue_x, cue_y, object_x, object_y, speed, english, follow,
+                aim_rail, aim_given, aim_used, result,
+                CASE WHEN result = 'hit' THEN NULL ELSE landing_rail END,
+                CASE WHEN result = 'hit' THEN NULL ELSE landing_at END,
+                note, model, drill, zone, NULL,
+                CASE WHEN result = 'hit' THEN NULL ELSE 'landed' END
+            FROM attempts;
+        DROP TABLE attempts;
+        ALTER TABLE attempts_v3 RENAME TO attempts;
+        CREATE INDEX attempts_session ON attempts(session_id);
+        """,
+    )
+    rows = conn.execute(f"SELECT {_COLS}, id FROM attempts").fetchall()
+    conn.executemany(
+        "UPDATE attempts SET ident = ? WHERE id = ?",
+        ((attempt_identity(_from_row(r)), r[-1]) for r in rows),
+    )
+    _run_script(conn, _HISTORY_INDEXES)
+
+
+_MIGRATIONS = {1: _migrate_1_to_2, 2: _migrate_2_to_3}
 """from-version -> step; applying them in order takes any older file to SCHEMA_VERSION."""
 
 
@@ -175,6 +249,7 @@ _DB_NAMES = {"when": "at", "table": "table_name"}
 """Database column names that differ from the record field names (SQL keywords avoided)."""
 _COL_NAMES = (*(_DB_NAMES.get(f, f) for f in FLAT_FIELDS), "session_id")
 _COLS = ", ".join(_COL_NAMES)
+_INSERT = f"INSERT INTO attempts ({_COLS}, ident) VALUES ({', '.join('?' * (len(_COL_NAMES) + 1))})"
 
 
 def iso_utc(when: datetime) -> str:
@@ -220,6 +295,7 @@ def _from_row(r: Sequence[Any], id_: int | None = None) -> Attempt:
         r[24],
         r[25],
         r[26],
+        r[27],
         id_,
     )
 
@@ -231,13 +307,13 @@ _fromiso = datetime.fromisoformat
 
 _TEXT_FIELDS = frozenset(
     {"player", "table", "travel", "family", "pocket", "aim_rail", "result", "landing_rail",
-     "note", "model", "drill", "zone"}
+     "note", "model", "drill", "zone", "miss_kind"}
 )  # fmt: skip
 _FIELD_COLUMN = dict(zip(FLAT_FIELDS, _COL_NAMES, strict=False))
 """records.FLAT_FIELDS name -> attempts column (the two share one order)."""
 
 KEY_FIELDS: tuple[str, ...] = (
-    "player", "table", "travel", "rails", "family", "aim_rail", "result", "landing_rail",
+    "player", "table", "travel", "rails", "family", "aim_rail", "result",
     "model", "drill", "zone",
 )  # fmt: skip
 """Text fields with few distinct values (all NOT NULL): ``Store.columns`` reads those asked for
@@ -288,12 +364,13 @@ class AttemptColumns:
     aim_given: np.ndarray | None
     aim_used: np.ndarray | None
     result: tuple[str, ...] | None
-    landing_rail: tuple[str, ...] | None
+    landing_rail: tuple[str | None, ...] | None
     landing_at: np.ndarray | None
     note: tuple[str, ...] | None
     model: tuple[str, ...] | None
     drill: tuple[str, ...] | None
     zone: tuple[str, ...] | None
+    miss_kind: tuple[str | None, ...] | None
     id: np.ndarray
     session: np.ndarray
     key: np.ndarray | None = None
@@ -768,7 +845,7 @@ class Store:
             validate_attempt(a)
         prepared = [(a, _to_row(a), attempt_identity(a)) for a in items]
         out: list[Attempt] = []
-        insert = f"INSERT INTO attempts ({_COLS}, ident) VALUES ({', '.join('?' * 28)})"
+        insert = _INSERT
         with self._write() as c:
             known: set[int] = set()
             for a, row, ident in prepared:
@@ -955,7 +1032,7 @@ class Store:
         checked = [validate_attempt(a) for a in items]
         added = dups = 0
         seen: set[str] = set()
-        insert = f"INSERT INTO attempts ({_COLS}, ident) VALUES ({', '.join('?' * 28)})"
+        insert = _INSERT
         for start in range(0, len(checked), _IMPORT_CHUNK):
             # keys and rows are built before the write lock is taken, to keep it short
             chunk = checked[start : start + _IMPORT_CHUNK]

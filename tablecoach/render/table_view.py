@@ -123,7 +123,8 @@ class TableView:
     """A Rich renderable of one table picture.
 
     ``rows`` fixes the rows per diamond (columns are twice that); by default the largest scale
-    that fits the width (and ``max_height`` if given) is used, from 1 to 4 rows a diamond.
+    that fits the width (and ``max_height`` if given) is used, from 1 to ``max_rows`` (4 unless
+    given) rows a diamond.
     ``margin`` is how many diamonds beyond the rails may be drawn to show the convergence
     point; when it lies farther out, an arrow at the edge points to it.
     """
@@ -135,12 +136,14 @@ class TableView:
         rows: int | None = None,
         max_height: int | None = None,
         margin: float = 5.0,
+        max_rows: int = 4,
     ) -> None:
         self.picture = picture
         self.glyphs = ASCII if ascii_only else UNICODE
         self.rows = rows
         self.max_height = max_height
         self.margin = margin
+        self.max_rows = max(1, int(max_rows))
 
     # ----- layout ------------------------------------------------------------------------
     def _extent(self) -> tuple[float, float, float, float]:
@@ -171,7 +174,7 @@ class TableView:
                 if w <= width and (height is None or h <= height):
                     return self.rows, ext
             return self.rows, table_only
-        for rows in (4, 3, 2, 1):
+        for rows in range(self.max_rows, 0, -1):
             for ext in (ext_full, table_only):
                 w, h = self._size(rows, ext)
                 if w <= width and (height is None or h <= height):
@@ -338,10 +341,12 @@ def legend(ascii_only: bool = False) -> Iterable[tuple[str, str, str]]:
     )
 
 
-def legend_text(ascii_only: bool = False) -> Text:
-    """A one-line key to the symbols."""
+def legend_text(ascii_only: bool = False, width: int | None = None) -> Text:
+    """A one-line key to the symbols; with ``width``, only the entries that fit whole."""
     t = Text()
     for ch, style, meaning in legend(ascii_only):
+        if width is not None and t.cell_len + len(ch) + 1 + len(meaning) > width:
+            break
         t.append(ch, STYLES[style])
         t.append(f" {meaning}  ")
     t.rstrip()

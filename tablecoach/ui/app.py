@@ -20,6 +20,7 @@ from tablecoach import paths
 from tablecoach.core import calibrate
 from tablecoach.core import drills as drills_mod
 from tablecoach.core.store import Store, StoreError
+from tablecoach.core.summary import by_family
 from tablecoach.core.table import BUILTIN_TABLES, DEFAULT_TABLE, TableSpec
 
 from .screens.practice import PracticeScreen
@@ -28,7 +29,8 @@ from .screens.summary import SummaryScreen, summary_text
 from .widgets.session import Session, physical_available
 
 SETTINGS_FILE = "practice.json"
-"""Last table, pack and player picked on the setup screen, in the configuration folder."""
+"""Last table, pack and player picked on the setup screen, and the colours, in the
+configuration folder."""
 
 THEMES = ("textual-dark", "textual-light")
 
@@ -61,18 +63,24 @@ def load_settings() -> dict[str, str]:
         return {}
     if not isinstance(data, dict):
         return {}
-    keys = ("table", "drill", "player")
+    keys = ("table", "drill", "player", "theme")
     return {k: v for k, v in data.items() if k in keys and isinstance(v, str)}
+
+
+def update_settings(**values: str) -> None:
+    """Remember these settings for the next start, keeping the others (best effort)."""
+    data = load_settings()
+    data.update(values)
+    try:
+        folder = paths.ensure_dir(paths.config_dir())
+        (folder / SETTINGS_FILE).write_text(json.dumps(data, indent=1), encoding="utf-8")
+    except OSError:
+        pass
 
 
 def save_settings(choice: Choice) -> None:
     """Remember the setup-screen picks for the next start (best effort)."""
-    try:
-        folder = paths.ensure_dir(paths.config_dir())
-        data = {"table": choice.table, "drill": choice.drill, "player": choice.player}
-        (folder / SETTINGS_FILE).write_text(json.dumps(data, indent=1), encoding="utf-8")
-    except OSError:
-        pass
+    update_settings(table=choice.table, drill=choice.drill, player=choice.player)
 
 
 @dataclass(frozen=True)
@@ -113,7 +121,7 @@ class TableCoachApp(App[int]):
 
     CSS_PATH = "app.tcss"
     TITLE = "tablecoach"
-    BINDINGS = [Binding("d", "toggle_theme", "Theme")]
+    BINDINGS = [Binding("l", "toggle_theme", "Light/dark", show=False)]
 
     def __init__(
         self,
@@ -170,7 +178,7 @@ class TableCoachApp(App[int]):
         except ValueError as exc:
             self.practice.say(f"cannot open the setup screen: {exc}", True)
             return
-        current = Choice(s.table.name, self.drill_name, s.player)
+        current = Choice(s.table.name, self.drill_name, s.player, s.repeat)
         self.push_screen(SetupScreen(tables, packs, players, current), self._setup_done)
 
     def _setup_done(self, choice: Choice | None) -> None:
@@ -184,6 +192,8 @@ class TableCoachApp(App[int]):
             self.drill_name = old_drill
             self.practice.say(str(exc), True)
             return
+        if choice.repeat:
+            fresh.session.repeat = choice.repeat
         save_settings(choice)
         self._end_session()
         self.practice = fresh
@@ -195,7 +205,12 @@ class TableCoachApp(App[int]):
             self.exit(0)
             return
         s = self.practice.session
-        screen = SummaryScreen(s.stats(), s.player, s.table.name, self.drill_name)
+        try:
+            table_of = {s.table.name: s.store.get_table(s.table.name)}.get
+            families = by_family(s.logged, table_of)
+        except ValueError:
+            families = []
+        screen = SummaryScreen(s.stats(), s.player, s.table.name, self.drill_name, families)
 
         def done(leave: bool | None) -> None:
             if leave:
@@ -210,11 +225,12 @@ class TableCoachApp(App[int]):
     # ----- looks and the palette ----------------------------------------------------------------
     def action_toggle_theme(self) -> None:
         self.theme = THEMES[1] if self.theme == THEMES[0] else THEMES[0]
+        update_settings(theme=self.theme)  # the next start opens in the same colours
 
     def get_system_commands(self, screen: Screen[Any]) -> Iterable[SystemCommand]:
         yield from super().get_system_commands(screen)
         yield SystemCommand(
-            "Dark or light", "Switch between dark and light colours (d)", self.action_toggle_theme
+            "Dark or light", "Switch between dark and light colours (l)", self.action_toggle_theme
         )
         if isinstance(screen, PracticeScreen):
             for action, title, help_text in screen.COMMANDS_LIST:
@@ -231,7 +247,7 @@ def build_app(
     seed: int | None = None,
     model: str | None = None,
     ascii_only: bool = False,
-    theme: str = "textual-dark",
+    theme: str | None = None,
 ) -> TableCoachApp:
     """Open the store (paths / TABLECOACH_DATA_DIR) and build the app.
 
@@ -248,8 +264,11 @@ def build_app(
         only = known[0] if len(known) == 1 else None  # one player in the store: that player
         p = player or saved.get("player") or only or default_player()
         start = resolve(store, t, d, p)
+        colours = theme or saved.get("theme", THEMES[0])
+        if colours not in THEMES:
+            colours = THEMES[0]
         return TableCoachApp(
-            store, start, d, seed=seed, model=model, ascii_only=ascii_only, theme=theme
+            store, start, d, seed=seed, model=model, ascii_only=ascii_only, theme=colours
         )
     except BaseException:
         store.close()

@@ -58,3 +58,14 @@ class ConvergenceFound(Message):
 
 class DealerRefreshed(Message):
     """The coach has started again from the attempts still logged (after an undo)."""
+
+
+class CalibrationDone(Message):
+    """A calibration run in the background finished: ``calibration`` with ``changes`` (what it
+    changed, in words), or ``error`` with the one line that says why it could not be fitted."""
+
+    def __init__(self, calibration: Any = None, changes: Any = (), error: str = "") -> None:
+        super().__init__()
+        self.calibration = calibration
+        self.changes = tuple(changes)
+        self.error = error

@@ -49,6 +49,16 @@ def _random_attempts(n: int, seed: int) -> list[Attempt]:
                 note=notes[i % len(notes)],
             )
         )
+        # version 2: a hit without a landing, and misses that stopped short or jawed
+        if i % 7 == 3:
+            out[-1] = replace(
+                out[-1], result="hit", landing_rail=None, landing_at=None, miss_kind=None
+            )
+        elif i % 7 in (4, 5):
+            kind = "short" if i % 7 == 4 else "jaw"
+            out[-1] = replace(
+                out[-1], result="miss", landing_rail=None, landing_at=None, miss_kind=kind
+            )
     return out
 
 
@@ -56,6 +66,9 @@ def _same(a: Attempt, b: Attempt) -> None:
     assert a == replace(b, session=a.session)
     # bit-exact floats (float.hex is exact)
     for name in ("speed", "english", "follow", "aim_given", "aim_used", "landing_at"):
+        if getattr(b, name) is None:  # no landing observed stays none
+            assert getattr(a, name) is None
+            continue
         assert getattr(a, name).hex() == getattr(b, name).hex()
     assert [c.hex() for c in a.shot.cue] == [c.hex() for c in b.shot.cue]
 
@@ -67,7 +80,7 @@ def test_jsonl_round_trip_exact() -> None:
     lines = buf.getvalue().splitlines()
     assert len(lines) == 200
     # each line is one JSON object (the stdlib json parser as the reference reader)
-    assert all(json.loads(x)["v"] == 1 for x in lines)
+    assert all(json.loads(x)["v"] == 2 for x in lines)
     back, errors = formats.read_jsonl(io.StringIO(buf.getvalue()))
     assert errors == []
     for a, b in zip(back, items, strict=True):
@@ -91,9 +104,22 @@ def test_json_shape_matches_docs() -> None:
     a = make_attempt(1)
     obj = formats.attempt_to_json(a)
     assert list(obj) == [
-        "v", "when", "player", "table", "shot", "speed", "english", "follow", "aim", "result",
-        "landing", "note", "model", "drill", "zone",
-    ]  # fmt: skip
+        "v",
+        "when",
+        "player",
+        "table",
+        "shot",
+        "speed",
+        "english",
+        "follow",
+        "aim",
+        "result",
+        "landing",
+        "note",
+        "model",
+        "drill",
+        "zone",
+    ]  # fmt: skip (make_attempt(1) is a hit the player gave a landing for: no miss_kind)
     assert obj["when"] == "2026-03-14T18:30:07.123457Z"
     assert obj["shot"] == {
         "travel": "object",
@@ -107,6 +133,60 @@ def test_json_shape_matches_docs() -> None:
     assert obj["landing"] == {"rail": "foot", "at": 2.0 / 7.0}
     kick = formats.attempt_to_json(make_attempt(0))
     assert kick["shot"]["target"] == {"ball": [6.1, 2.9]} and kick["shot"]["object"] is None
+    # a hit carries no miss_kind; a hit without a landing writes landing null
+    hit = formats.attempt_to_json(make_attempt(2, landing_rail=None, landing_at=None))
+    assert hit["result"] == "hit" and hit["landing"] is None and "miss_kind" not in hit
+    miss = formats.attempt_to_json(make_attempt(5))
+    assert list(miss)[-1] == "miss_kind" and miss["miss_kind"] == "landed"
+    short = make_attempt(5, landing_rail=None, landing_at=None, miss_kind="short")
+    obj = formats.attempt_to_json(short)
+    assert obj["landing"] is None and obj["miss_kind"] == "short"
+
+
+def test_version_1_lines_upgrade() -> None:
+    """A version-1 hit loses the landing the app had filled with the aim's prediction; a
+    version-1 miss keeps its landing as a 'landed' miss (docs/formats.md, version 1)."""
+    v1 = formats.attempt_to_json(make_attempt(2))  # a hit with a landing
+    v1["v"] = 1
+    v1.pop("miss_kind", None)
+    got = formats.attempt_from_json(v1, 3)
+    assert got.result == "hit" and got.landing_rail is None and got.landing_at is None
+    assert got.miss_kind is None
+    miss = formats.attempt_to_json(make_attempt(5))
+    miss["v"] = 1
+    del miss["miss_kind"]
+    got = formats.attempt_from_json(miss, 4)
+    assert (got.landing_rail, got.landing_at, got.miss_kind) == ("foot", 2.0 / 7.0, "landed")
+    assert got.result == "miss"
+    # version 1 had no miss_kind and always a landing
+    miss["miss_kind"] = "short"
+    with pytest.raises(RecordError, match="line 4: .*not part of version 1"):
+        formats.attempt_from_json(miss, 4)
+    del miss["miss_kind"]
+    miss["landing"] = None
+    with pytest.raises(RecordError, match="line 4: field 'landing' must be an object"):
+        formats.attempt_from_json(miss, 4)
+
+
+@pytest.mark.parametrize(
+    ("change", "needle"),
+    [
+        # a short or jaw miss has no landing; a landed miss has one; a hit has no kind
+        (lambda o: o.update(miss_kind="short"), "landing null"),
+        (lambda o: o.update(landing=None), "landing null"),
+        (lambda o: o.update(landing=None, miss_kind="early"), "'early': a miss is one of"),
+        (lambda o: o.update(result="hit"), "only for a miss"),
+        (lambda o: o.update(miss_kind=3), "'miss_kind' must be text"),
+        (lambda o: o.pop("landing"), "'landing' is missing"),
+        (lambda o: o.update(landing={"rail": "foot"}), "'landing.at' is missing"),
+    ],
+)
+def test_version_2_landing_rules(change, needle) -> None:  # type: ignore[no-untyped-def]
+    obj = formats.attempt_to_json(make_attempt(5))  # a landed miss
+    change(obj)
+    with pytest.raises(RecordError) as info:
+        formats.attempt_from_json(obj, 5)
+    assert str(info.value).startswith("line 5: ") and needle in str(info.value)
 
 
 def test_reads_hand_written_example() -> None:
@@ -143,7 +223,7 @@ def test_bad_lines_reported_with_numbers() -> None:
 @pytest.mark.parametrize(
     ("change", "needle"),
     [
-        (lambda o: o.update(v=2), "newer"),
+        (lambda o: o.update(v=3), "newer"),
         (lambda o: o.update(v="1"), "field 'v'"),
         (lambda o: o.pop("speed"), "'speed' is missing"),
         (lambda o: o.update(when="2026-03-14 18:30"), "no time zone"),
@@ -173,7 +253,7 @@ def test_csv_errors() -> None:
     assert len(got) == 1
     assert [n for n, _ in errors] == [3, 4]
     assert "'aim_used' = 'three' is not a number" in errors[0][1]
-    assert "28 cells" in errors[1][1]
+    assert f"{len(formats.CSV_COLUMNS) + 1} cells" in errors[1][1]
     got, errors = formats.read_csv(io.StringIO("a,b\n1,2\n"))
     assert got == [] and errors[0][0] == 1 and "header" in errors[0][1]
 

@@ -314,6 +314,27 @@ def test_one_rail_reflection_by_hand_and_sign_of_long():
     assert (bias[0].long, bias[0].short) == (1, 1)
 
 
+def test_bias_counts_only_observed_landings():
+    # A hit logged without a landing and a miss that stopped short carry no landing (record
+    # format version 2): they get no offset and leave the bias of the seen landings unchanged.
+    # Same hand-worked reflection as above (law of reflection).
+    spec = builtin_table("9ft")
+    code, at, _ = h.ideal_landings(
+        spec, np.array([[2.0, 2.0]]), ("right",), "right", np.array([4.0])
+    )
+    shot = ShotRecord("cue", ("right",), (2.0, 2.0), None, None, (7.0, 1.0), "one-rail-kick")
+    t0 = datetime(2026, 11, 2, 18, 0, tzinfo=UTC)
+    seen = att(t0, "miss", shot=shot, landing_at=float(at[0]) + 0.5)
+    unseen_hit = att(t0, "hit", shot=shot, landing_rail=None, landing_at=None)
+    short = att(t0, "miss", shot=shot, landing_rail=None, landing_at=None, miss_kind="short")
+    off = h.landing_offsets([seen, unseen_hit, short])
+    assert off[0] == pytest.approx(0.5, abs=1e-9)
+    assert math.isnan(off[1]) and math.isnan(off[2])
+    bias = h.landing_bias([seen, unseen_hit, short])
+    assert len(bias) == 1 and bias[0].attempts == 1
+    assert bias[0].mean == pytest.approx(0.5, abs=1e-9)
+
+
 def test_unknown_table_has_no_offset():
     t0 = datetime(2026, 11, 2, 18, 0, tzinfo=UTC)
     off = h.landing_offsets([att(t0, table="garage")])

@@ -313,6 +313,10 @@ def test_migrates_first_schema(db: Path) -> None:
             "",
         )
         assert b.shot.pocket == "foot-left" and b.result == "miss" and b.session == 1
+        # the hit's landing was the aim's prediction (record format version 2): gone; the
+        # miss keeps the landing the player gave
+        assert (a.landing_rail, a.landing_at, a.miss_kind) == (None, None, None)
+        assert (b.landing_rail, b.landing_at, b.miss_kind) == ("left", 6.5, "landed")
         assert s.sessions()[0].attempts == 2
         # identity keys were filled in by the migration: importing the same attempts adds none
         assert s.import_attempts(got) == (0, 2)
@@ -323,6 +327,80 @@ def test_migrates_first_schema(db: Path) -> None:
     idx = {r[0] for r in c.execute("SELECT name FROM sqlite_master WHERE type = 'index'")}
     assert {"attempts_player_at", "attempts_table_at", "attempts_family_at", "attempts_at"} <= idx
     assert c.execute("PRAGMA integrity_check").fetchone()[0] == "ok"
+    c.close()
+
+
+# The schema version 2 attempts table and its extra statements, by hand (what the released
+# version 2 code wrote), with one hit, one miss and a player the first attempt created.
+V2_SQL = (
+    V1_SQL.replace("PRAGMA user_version = 1;", "")
+    + """
+ALTER TABLE attempts ADD COLUMN model TEXT NOT NULL DEFAULT 'ideal';
+ALTER TABLE attempts ADD COLUMN drill TEXT NOT NULL DEFAULT '';
+ALTER TABLE attempts ADD COLUMN zone TEXT NOT NULL DEFAULT '';
+ALTER TABLE attempts ADD COLUMN ident TEXT;
+ALTER TABLE players ADD COLUMN created_by INTEGER;
+CREATE TABLE calibrations (id INTEGER PRIMARY KEY, table_name TEXT NOT NULL,
+  player TEXT NOT NULL, params TEXT NOT NULL, attempts INTEGER NOT NULL, at TEXT NOT NULL);
+CREATE INDEX attempts_ident ON attempts(ident);
+CREATE INDEX attempts_at ON attempts(at, id);
+CREATE INDEX attempts_player_at ON attempts(player, at);
+CREATE INDEX attempts_table_at ON attempts(table_name, at);
+CREATE INDEX attempts_family_at ON attempts(family, at);
+CREATE INDEX attempts_player_table_at ON attempts(player, table_name, at);
+CREATE INDEX sessions_player ON sessions(player, table_name);
+CREATE INDEX calibrations_key ON calibrations(table_name, player, id);
+UPDATE attempts SET model = 'physical', drill = 'kicks', zone = 'b2', ident = 'old' || id;
+INSERT INTO players VALUES ('eve', '2025-01-03T10:00:00.000000+00:00', 3);
+INSERT INTO attempts VALUES (3, NULL, '2025-01-03T10:00:00.000000+00:00', 'eve', '8ft', 'cue',
+  'left', 'one-rail-kick', NULL, 4.0, 1.0, 1.0, 1.0, NULL, NULL, 2.0, 0.0, 0.0, 'left',
+  2.5, 2.5, 'miss', 'head', 3.0, 'n', 'ideal', '', '', 'old3');
+INSERT INTO calibrations VALUES (1, '9ft', 'dee', '{"k": 1}', 2,
+  '2025-01-02T11:00:00.000000+00:00');
+PRAGMA user_version = 2;
+"""
+)
+
+
+def test_migrates_version_2_in_place(db: Path) -> None:
+    """The schema before record format 2: every row, id, session, player and calibration
+    kept; hits lose the predicted landing version 2 stored, misses become 'landed'."""
+    db.parent.mkdir(parents=True, exist_ok=True)
+    c = sqlite3.connect(db)
+    c.executescript(V2_SQL)
+    c.commit()
+    c.close()
+    with Store.open(db) as s:
+        assert s.schema_version() == SCHEMA_VERSION
+        got = s.attempts()
+        assert [a.id for a in got] == [1, 2, 3]
+        a, b, e = got
+        assert (a.result, a.landing_rail, a.landing_at, a.miss_kind) == ("hit", None, None, None)
+        assert (b.landing_rail, b.landing_at, b.miss_kind) == ("left", 6.5, "landed")
+        assert (e.landing_rail, e.landing_at, e.miss_kind) == ("head", 3.0, "landed")
+        assert (a.model, a.drill, a.zone, a.session, e.session) == (
+            "physical", "kicks", "b2", 1, None,
+        )  # fmt: skip
+        assert (a.aim_used, b.speed, e.note) == (3.75, 0.67, "n")
+        assert s.calibration("9ft", "dee")["params"] == {"k": 1}  # type: ignore[index]
+        # identities were made again from the new content: importing them adds nothing
+        assert s.import_attempts(got) == (0, 3)
+        # a short miss (no landing) can now be logged and read back
+        short = replace(got[1], id=None, landing_rail=None, landing_at=None, miss_kind="short")
+        back = s.log(short)
+        assert s.attempts(session=1)[-1] == back and back.landing_rail is None
+        cols = s.columns(fields=["landing_rail", "landing_at", "miss_kind", "result"])
+        # time order: the short miss has b's time and a later id
+        assert cols.landing_rail == (None, "left", None, "head")
+        assert np.isnan(cols.landing_at[[0, 2]]).all() and cols.miss_kind[2] == "short"
+        # the columnar read gives back the same attempts, no landing included
+        assert s.columns().to_attempts() == s.attempts()
+    c = sqlite3.connect(db)
+    idx = {r[0] for r in c.execute("SELECT name FROM sqlite_master WHERE type = 'index'")}
+    assert {"attempts_session", "attempts_ident", "attempts_at", "attempts_player_table_at"} <= idx
+    assert c.execute("PRAGMA integrity_check").fetchone()[0] == "ok"
+    assert c.execute("PRAGMA foreign_key_check").fetchall() == []
+    assert c.execute("SELECT created_by FROM players WHERE name = 'eve'").fetchone() == (3,)
     c.close()
 
 

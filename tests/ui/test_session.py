@@ -12,7 +12,7 @@ from tablecoach.core.records import RecordError
 from tablecoach.core.store import Store
 from tablecoach.core.table import BUILTIN_TABLES
 from tablecoach.ui.widgets import wording as w
-from tablecoach.ui.widgets.landing import parse_landing, ruler
+from tablecoach.ui.widgets.landing import accepts, parse_landing, ruler
 from tablecoach.ui.widgets.session import Session, stats_of
 
 T9 = BUILTIN_TABLES["9ft"]
@@ -32,10 +32,10 @@ def test_placement_measures_from_the_nearer_rails():
     # image near the foot-right corner (positions by hand; measuring from the nearer rail is
     # common practice, no source).
     assert w.placement(T9, "cue ball", T9.to_metres(1.5, 1.0)) == (
-        "cue ball: 1.5 from the head rail, 1 from the left rail"
+        "cue ball: 1 1/2 from the head rail, 1 from the left rail"
     )
     assert w.placement(T9, "object ball", T9.to_metres(6.75, 3.5)) == (
-        "object ball: 1.25 from the foot rail, 0.5 from the right rail"
+        "object ball: 1 1/4 from the foot rail, 1/2 from the right rail"
     )
 
 
@@ -45,10 +45,44 @@ def test_landing_input_is_checked_against_the_rail_length():
     assert parse_landing("left", "7.75") == 7.75
     assert parse_landing("foot", "4") == 4.0
     for rail, typed in (("foot", "4.25"), ("right", "8.5"), ("head", "-1")):
-        with pytest.raises(RecordError, match="off the"):
+        with pytest.raises(RecordError, match="off the|past the end"):
             parse_landing(rail, typed)
+    # a number that only fits a long rail says how to get there
+    with pytest.raises(RecordError, match="past the end of the head rail.*up/down"):
+        parse_landing("head", "6")
     with pytest.raises(RecordError, match="not a number"):
         parse_landing("left", "2..5")
+
+
+def test_typed_landing_keeps_one_number():
+    # the trial's "722.50.5": each key is checked against what is already typed
+    typed = ""
+    for ch in "722.50.5":
+        if accepts(typed, ch):
+            typed += ch
+    # the second whole digits and the second point are refused; the rest is one number
+    assert typed == "7.505"
+    assert not accepts("7", "2") and not accepts("7.5", ".") and not accepts("7.125", "5")
+    assert accepts("", ".") and accepts(".", "5") and not accepts("", "x")
+
+
+def test_repeat_deals_the_setup_n_times_then_moves_on(session):
+    session.repeat = 3
+    pick = session.deal()
+    aim = shots.solve_aim(T9, pick.setup, pick.stroke, "ideal")
+    session.log_hit(aim)
+    assert session.repeats_left() == 2
+    again = session.again()
+    assert again is not None and again.setup.family == pick.setup.family
+    assert shots.record_of(T9, again.setup) == shots.record_of(T9, pick.setup)
+    assert session.stroke == pick.stroke
+    session.log_miss(shots.solve_aim(T9, again.setup, again.stroke, "ideal"), kind="short")
+    assert session.repeats_left() == 1
+    session.log_hit(aim)
+    assert session.repeats_left() == 0
+    # shuffled (the default) never repeats by itself
+    session.repeat = 1
+    assert session.repeats_left() == 0
 
 
 def test_ruler_marks_quarter_diamonds():
@@ -101,3 +135,29 @@ def test_the_stores_only_player_is_the_default(data_env):
         assert app.practice is not None and app.practice.session.player == "Mara"
     finally:
         app.store.close()
+
+
+def test_a_packs_repeat_setting_reaches_the_session(tmp_path):
+    from dataclasses import replace as dc_replace
+
+    pack = dc_replace(drills.find_drill("one-rail-kicks", None), repeat=3)
+    assert drills.find_drill("one-rail-kicks", None).repeat == 1  # shuffled by default
+    with Store.open(tmp_path / "r.sqlite3") as store:
+        s = Session(store, T9, pack, "tester", np.random.default_rng(3), "ideal")
+        assert s.repeat == 3
+        pick = s.deal()
+        s.log_hit(shots.solve_aim(T9, pick.setup, pick.stroke, "ideal"))
+        assert s.repeats_left() == 2
+
+
+def test_session_line_leaves_out_whole_parts_that_do_not_fit():
+    from tablecoach.ui.widgets.info import session_line
+    from tablecoach.ui.widgets.session import Stats
+
+    now, before = Stats(3, 2, 1, 2), Stats(30, 12, 0, 4)
+    full = session_line(now, before, "9ft", "kim").plain
+    assert full.endswith("before: 30 shots, 12 hits")
+    narrow = session_line(now, before, "9ft", "kim", 78).plain
+    assert "before" not in narrow and narrow.startswith("kim on 9ft") and len(narrow) <= 78
+    tiny = session_line(now, before, "9ft", "kim", 50).plain
+    assert tiny.startswith("this session: 3 shots, 2 hits (67%), streak 1")

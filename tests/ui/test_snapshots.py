@@ -20,6 +20,11 @@ def test_practice_120x40_light(make_app, snap_compare):
     assert snap_compare(app, terminal_size=(120, 40), run_before=settle)
 
 
+def test_practice_80x24_dark(make_app, snap_compare):
+    app = make_app(theme="textual-dark")
+    assert snap_compare(app, terminal_size=(80, 24), run_before=settle)
+
+
 def test_miss_prompt_100x30(make_app, snap_compare):
     async def before(pilot) -> None:
         await settle(pilot)

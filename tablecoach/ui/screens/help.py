@@ -11,19 +11,29 @@ from textual.screen import ModalScreen
 from textual.widgets import Footer, Static
 
 KEYS = (
-    ("h", "hit: the shot did what it should; logged with the aim's predicted landing"),
+    ("h", "hit: the shot did what it should (no landing is recorded for a hit)"),
+    ("H", "hit, and say where the ball crossed the landing rail (when you saw it)"),
     (
         "m",
         "miss: then where the ball crossed the rail (arrows in quarter diamonds, "
-        "up/down another rail, or type the number), Enter saves, Escape cancels",
+        "up/down another rail, or type the number), or s if it stopped short of the rail, "
+        "j if it rattled in the jaw; Enter saves, Escape cancels",
     ),
+    ("r", "again: the setup just logged comes back, same balls, stroke and spin"),
     ("u", "undo the last attempt of this session; its setup comes back"),
     ("n", "skip this setup without logging it"),
-    ("s", "next speed preset for this attempt (the aim is solved again)"),
+    ("s", "next named stroke for this attempt (the aim is solved again)"),
+    (
+        "e",
+        "spin for this attempt: a tip of running english, of reverse english, a half tip of "
+        "follow, of draw, centre ball (the aim is solved again)",
+    ),
+    ("b", "the aim reading in large type, to read from the table; b again for the usual size"),
     ("p", "pin this zone for the next 10 setups; p again unpins (with the coach)"),
-    ("v", "history: streaks, rates and trends (when installed)"),
+    ("v", "history: streaks, rates and trends"),
+    ("c", "calibrate this table from your landings (in the background; offered after 30 new)"),
     ("t", "setup: table, drill pack, player"),
-    ("d", "dark or light colours"),
+    ("l", "light or dark colours (remembered for the next start)"),
     ("ctrl+p", "command palette: every action by name"),
     ("?", "this help"),
     ("q", "quit with a session summary"),

@@ -241,7 +241,8 @@ class HistoryScreen(Screen[None]):
             self.families = res.families
         self._show(res.history)
         n = res.history.rate.attempts
-        status.update(Text(f"{n} attempts shown" if n else "no attempts match these filters"))
+        shown = f"{n} attempt{'' if n == 1 else 's'} shown"
+        status.update(Text(shown if n else "no attempts match these filters"))
 
     # ----- drawing ----------------------------------------------------------------------
     def _show_filters(self) -> None:

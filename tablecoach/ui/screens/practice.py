@@ -15,14 +15,14 @@ from textual.widgets import Footer
 
 from tablecoach.core import shots
 from tablecoach.core.shots import Aim, Convergence, Stroke
-from tablecoach.core.store import StoreError
 
 from ..messages import AimSolved, ConvergenceFound, DealerRefreshed, SetupDealt
-from ..widgets import wording as w
 from ..widgets.info import InfoCard, MessageLine, NotesPanel, SessionBar, card, notes, session_line
-from ..widgets.landing import LandingPrompt
 from ..widgets.session import REDRAWS, Session
 from ..widgets.table_panel import TablePanel, draw, picture_of
+from .calibrate_offer import CalibrationOffer
+from .shot_keys import ShotKeys
+from .stroke_keys import StrokeKeys
 
 SOLVED_KEPT = 16
 """How many solved aims the screen keeps, so an undone setup or a speed cycled back to is shown
@@ -37,35 +37,49 @@ def history_available() -> bool:
     return importlib.util.find_spec("tablecoach.ui.screens.history") is not None
 
 
-class PracticeScreen(Screen[None]):
+class PracticeScreen(ShotKeys, StrokeKeys, CalibrationOffer, Screen[None]):
     """One session of practice. Every key is in the footer and in the command palette."""
 
     BINDINGS = [
         Binding("h", "hit", "Hit"),
+        Binding("H", "hit_landing", "Hit, with landing", show=False),
         Binding("m", "miss", "Miss"),
+        Binding("r", "again", "Again"),
         Binding("u", "undo", "Undo"),
         Binding("n", "skip", "Skip"),
         Binding("s", "speed", "Speed"),
-        Binding("p", "pin", "Pin"),
-        Binding("v", "history", "History"),
-        Binding("t", "setup", "Setup"),
+        Binding("e", "spin", "Spin"),
+        Binding("b", "large", "Big", show=False),
+        Binding("p", "pin", "Pin", show=False),
+        Binding("c", "calibrate", "Calibrate", show=False),
+        Binding("v", "history", "History", show=False),
+        Binding("t", "setup", "Setup", show=False),
         Binding("question_mark", "help", "Help", key_display="?"),
         Binding("q", "quit_session", "Quit"),
     ]
 
     # (action, title, help) for the command palette; keys as in BINDINGS
     COMMANDS_LIST = (
-        ("hit", "Log a hit", "The shot scored; the landing is the aim's predicted landing (h)"),
-        ("miss", "Log a miss", "The shot missed; say where it crossed the rail (m)"),
+        ("hit", "Log a hit", "The shot scored; no landing is recorded for it (h)"),
+        ("hit_landing", "Log a hit and where it crossed", "A hit with the landing you saw (H)"),
+        ("miss", "Log a miss", "Where it crossed the rail, or s short, j jaw (m)"),
+        ("again", "Shoot it again", "Bring back the setup just logged, same stroke and spin (r)"),
         ("undo", "Undo the last attempt", "Remove the last logged attempt of this session (u)"),
         ("skip", "Skip this setup", "Deal the next setup without logging (n)"),
         ("speed", "Change speed", "Next speed preset for this attempt; re-solves the aim (s)"),
+        ("spin", "Change spin", "Running, reverse english, follow, draw, centre; re-solves (e)"),
+        ("large", "Large reading", "Show the aim reading in large type, or not (b)"),
         ("pin", "Pin this zone", "Keep practising this zone (p again to unpin)"),
         ("history", "History", "Streaks, rates and trends (v)"),
         (
             "table_check",
             "Table check",
             "Shoot the reference shots that calibrate this table (palette only)",
+        ),
+        (
+            "calibrate",
+            "Calibrate this table",
+            "Fit the table to your landings, in the background (c)",
         ),
         ("setup", "Change table, pack or player", "Open the setup screen (t)"),
         ("help", "Help", "What every key does (?)"),
@@ -89,8 +103,10 @@ class PracticeScreen(Screen[None]):
         self.model_note = ""
         self.drawn: tuple[Any, Any] | None = None
         self.refresh_dealer = False
+        self.large = False
+        self.bias_note: tuple[int, str] = (-1, "")
         self.solved: dict[tuple[Any, Stroke], tuple[Aim, Convergence | None, str]] = {}
-        self.opening = "h hit, m miss, ? help: each attempt is saved the moment you log it"
+        self.opening = "h hit, m miss, r again, ? help: each attempt is saved as you log it"
 
     # ----- layout ----------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
@@ -123,14 +139,33 @@ class PracticeScreen(Screen[None]):
         self.drawn = None
         # fixed-size panels: their text changes without a new layout of the screen
         self.query_one(InfoCard).update(
-            card(s.table, pick, s.stroke, self.aim, self.conv, self.error), layout=False
+            card(
+                s.table,
+                pick,
+                s.stroke,
+                self.aim,
+                self.conv,
+                self.error,
+                self.model_note,
+                self.large,
+                self.ascii_only,
+                self.bias_note[1] if self.bias_note[0] == self.token else "",
+            ),
+            layout=False,
         )
         pinned = self._pinned_text()
         self.query_one(NotesPanel).update(
-            notes(s.table, pick, self.aim, self.status, pinned, self.model_note), layout=False
+            notes(s.table, pick, self.aim, self.status + self.offer_hint, pinned), layout=False
         )
         self.query_one(SessionBar).update(
-            session_line(s.stats(), s.earlier_stats(), s.table.name, s.player), layout=False
+            session_line(
+                s.stats(),
+                s.earlier_stats(),
+                s.table.name,
+                s.player,
+                self.query_one(SessionBar).content_size.width,
+            ),
+            layout=False,
         )
 
     def _pinned_text(self) -> str:
@@ -301,6 +336,23 @@ class PracticeScreen(Screen[None]):
         except ValueError:
             conv = None
         self.post_message(ConvergenceFound(token, conv))
+        self._bias_now(token, setup, stroke, conv)
+
+    @work(thread=True, exclusive=True, group="bias", exit_on_error=False)
+    def _bias_worker(self, token: int, setup: shots.Setup, stroke: Stroke) -> None:
+        self._bias_now(token, setup, stroke, self.conv)
+
+    def _bias_now(
+        self, token: int, setup: shots.Setup, stroke: Stroke, conv: Convergence | None
+    ) -> None:
+        """The zone's landing bias for the card (the model runs the zone's landings)."""
+        try:
+            note = self.session.bias_text(setup, stroke)
+        except ValueError:
+            note = ""
+        if note and token == self.token:
+            self.bias_note = (token, note)
+            self.post_message(ConvergenceFound(token, conv))
 
     def on_setup_dealt(self, message: SetupDealt) -> None:
         if message.generation != self.generation:
@@ -326,6 +378,8 @@ class PracticeScreen(Screen[None]):
     def _after_solved(self, token: int, aim: Aim, need_conv: bool = True) -> None:
         if token == self.token and need_conv:
             self._conv_worker(token, aim.setup, aim.stroke, aim.model)
+        elif token == self.token:  # a remembered aim: only the zone's bias is worked out again
+            self._bias_worker(token, aim.setup, aim.stroke)
         if self.refresh_dealer:
             self.refresh_dealer = False
             self._refresh_dealer_worker()
@@ -350,62 +404,6 @@ class PracticeScreen(Screen[None]):
             self.say(self.error or "the aim is still being worked out; a moment", bool(self.error))
         return self.aim
 
-    def action_hit(self) -> None:
-        aim = self._ready()
-        if aim is None:
-            return
-        self._logged(lambda: self.session.log_hit(aim))
-
-    def action_miss(self) -> None:
-        aim = self._ready()
-        if aim is None:
-            return
-        at = w.landing_diamonds(self.session.table, aim.landing)
-        hint = f"the aim predicts the {aim.landing.rail} rail at {w.num(at)}"
-
-        def done(result: tuple[str, float] | None) -> None:
-            if result is None:
-                self.say("miss not logged (cancelled)")
-                return
-            rail, spot = result
-            self._logged(lambda: self.session.log_miss(aim, rail, spot))
-
-        prompt = LandingPrompt(aim.landing.rail, at, hint, self.ascii_only)
-        self.app.push_screen(prompt, done)
-
-    def _logged(self, do: Any) -> None:
-        try:
-            a = do()
-        except StoreError as exc:
-            self.say(f"not saved: {exc}", True)
-            return
-        except ValueError as exc:
-            self.say(f"not saved: {exc}", True)
-            return
-        st = self.session.stats()
-        where = f"{a.landing_rail} rail at {w.num(a.landing_at)}"
-        self.say(f"logged a {a.result} ({where}); {w.count(st.shots, 'shot')}, streak {st.streak}")
-        self._deal()
-
-    def action_undo(self) -> None:
-        try:
-            gone = self.session.undo()
-        except StoreError as exc:
-            self.say(f"cannot undo: {exc}", True)
-            return
-        if gone is None:
-            self.say("nothing to undo in this session")
-            return
-        try:
-            self.session.show_again(gone)
-        except ValueError:
-            self.say(f"undone: the {gone.result}; its setup no longer fits this table")
-            self._deal()
-            return
-        self.say(f"undone: the {gone.result} at {gone.landing_rail} rail; its setup is back")
-        self.refresh_dealer = True  # once the setup is back on the screen (see _after_solved)
-        self._solve()
-
     @work(thread=True, group="ahead", exit_on_error=False)
     def _refresh_dealer_worker(self) -> None:
         self.session.refresh_dealer()
@@ -419,12 +417,12 @@ class PracticeScreen(Screen[None]):
         self.say("skipped; here is the next setup")
         self._deal()
 
-    def action_speed(self) -> None:
-        if self.session.pick is None:
-            return
-        preset, stroke = self.session.next_speed()
-        self.say(f"speed for this attempt: {preset}, {stroke.speed:.2f} m/s")
-        self._solve()
+    def action_large(self) -> None:
+        self.large = not self.large
+        self.say(
+            "large reading on (b again for the usual size)" if self.large else "large reading off"
+        )
+        self._refresh()
 
     def action_pin(self) -> None:
         dealer = self.session.dealer
@@ -444,8 +442,9 @@ class PracticeScreen(Screen[None]):
             return
         try:
             with self.session.lock:
-                if pick.zone:
-                    dealer.pin(zone=pick.zone)
+                zone = self.session.played_zone(self.aim)
+                if zone:
+                    dealer.pin(zone=zone)
                 else:
                     dealer.pin(family=pick.setup.family.name)
         except ValueError as exc:

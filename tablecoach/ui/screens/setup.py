@@ -19,6 +19,19 @@ class Choice:
     table: str
     drill: str
     player: str
+    repeat: int = 0
+    """Shots in a row of each setup; 0 keeps the pack's own setting."""
+
+
+REPEATS: tuple[tuple[int, str], ...] = (
+    (0, "as the pack says"),
+    (1, "1: a new setup every shot (shuffled)"),
+    (2, "2 in a row"),
+    (3, "3 in a row"),
+    (5, "5 in a row"),
+)
+"""The setup screen's choices of shots per setup. Shuffled practice, a new setup every shot,
+retains better than repeating one (Shea and Morgan 1979); repeats are for grooving a shot."""
 
 
 class SetupScreen(ModalScreen[Choice | None]):
@@ -59,6 +72,11 @@ class SetupScreen(ModalScreen[Choice | None]):
                     yield OptionList(
                         *[Option(f"{n}  {d}", id=n) for n, d in self.drills], id="drills"
                     )
+                with Vertical(classes="setup-col setup-narrow"):
+                    yield Label("Shots per setup")
+                    yield OptionList(
+                        *[Option(text, id=str(n)) for n, text in REPEATS], id="repeats"
+                    )
             yield Label("Player (known: " + (", ".join(self.players) or "none yet") + ")")
             yield Input(value=self.current.player, id="player", max_length=40)
             yield Static("", id="setup-picks")
@@ -66,9 +84,11 @@ class SetupScreen(ModalScreen[Choice | None]):
         yield Footer()
 
     def on_mount(self) -> None:
+        repeats = [(str(n), t) for n, t in REPEATS]
         for wid, items, cur in (
             ("#tables", self.tables, self.current.table),
             ("#drills", self.drills, self.current.drill),
+            ("#repeats", repeats, str(self.current.repeat)),
         ):
             ol = self.query_one(wid, OptionList)
             names = [n for n, _ in items]
@@ -83,8 +103,11 @@ class SetupScreen(ModalScreen[Choice | None]):
         table = self._picked("#tables") or "?"
         drill = self._picked("#drills") or "?"
         player = self.query_one("#player", Input).value.strip() or "?"
+        n = int(self._picked("#repeats") or 0)
+        each = "" if n == 0 else (", a new setup every shot" if n == 1 else f", {n} shots a setup")
         self.query_one("#setup-picks", Static).update(
-            f"Start: {table} table, {drill} pack, player {player} (Enter on the name or ctrl+s)"
+            f"Start: {table} table, {drill} pack{each}, player {player} "
+            "(Enter on the name or ctrl+s)"
         )
 
     def on_option_list_option_highlighted(self, event: OptionList.OptionHighlighted) -> None:
@@ -117,7 +140,7 @@ class SetupScreen(ModalScreen[Choice | None]):
         if table is None or drill is None:
             msg.update("pick a table and a drill pack with the arrow keys")
             return
-        self.dismiss(Choice(table, drill, player))
+        self.dismiss(Choice(table, drill, player, int(self._picked("#repeats") or 0)))
 
     def action_cancel(self) -> None:
         self.dismiss(None)

@@ -1,4 +1,4 @@
-"""The session summary shown on quit: attempts, hits, the current and the best streak."""
+"""The session summary shown on quit: attempts, hits, the streaks, and each family's shots."""
 
 from __future__ import annotations
 
@@ -8,6 +8,8 @@ from textual.binding import Binding
 from textual.containers import Vertical
 from textual.screen import ModalScreen
 from textual.widgets import Footer, Static
+
+from tablecoach.core.summary import FamilyLine
 
 from ..widgets.session import Stats
 
@@ -25,6 +27,24 @@ def summary_lines(stats: Stats, player: str, table: str, drill: str) -> list[tup
         ("current streak", str(stats.streak)),
         ("best streak", str(stats.best)),
     ]
+
+
+def family_table(lines: list[FamilyLine]) -> RichTable:
+    """Made, rate, best streak and landing bias of each family played."""
+    t = RichTable(box=None, padding=(0, 1), show_edge=False)
+    t.add_column("family", no_wrap=True)
+    t.add_column("made", justify="right", no_wrap=True)
+    t.add_column("rate", justify="right", no_wrap=True)
+    t.add_column("best", justify="right", no_wrap=True)
+    t.add_column("lands", no_wrap=True)
+    for f in lines:
+        if f.bias is None:
+            lands = "-"
+        else:
+            way = "long" if f.bias > 0 else "short"
+            lands = f"{abs(f.bias):.1f} {way} ({f.bias_n})"
+        t.add_row(f.title, f"{f.made} of {f.tried}", f"{100 * f.rate:.0f}%", str(f.best), lands)
+    return t
 
 
 def summary_text(stats: Stats) -> str:
@@ -45,9 +65,17 @@ class SummaryScreen(ModalScreen[bool]):
         Binding("escape", "stay", "Keep practising"),
     ]
 
-    def __init__(self, stats: Stats, player: str, table: str, drill: str) -> None:
+    def __init__(
+        self,
+        stats: Stats,
+        player: str,
+        table: str,
+        drill: str,
+        families: list[FamilyLine] | None = None,
+    ) -> None:
         super().__init__()
         self.rows = summary_lines(stats, player, table, drill)
+        self.families = families or []
 
     def compose(self) -> ComposeResult:
         grid = RichTable.grid(padding=(0, 2))
@@ -58,6 +86,13 @@ class SummaryScreen(ModalScreen[bool]):
         with Vertical(id="summary-box"):
             yield Static("Session summary", id="summary-title")
             yield Static(grid, id="summary-grid")
+            if self.families:
+                yield Static(family_table(self.families), id="summary-families")
+                yield Static(
+                    "lands: mean landing against the mirror line of the aim used, "
+                    "over (n) seen landings",
+                    id="summary-note",
+                )
             yield Static("q or Enter to quit, Escape to keep practising", id="summary-hint")
         yield Footer()
 

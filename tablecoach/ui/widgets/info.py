@@ -8,10 +8,12 @@ from rich.console import Console, ConsoleOptions, Group, RenderableType, RenderR
 from rich.text import Text
 from textual.widgets import Static
 
-from tablecoach.core.shots import Aim, Convergence, Stroke
+from tablecoach.core import placing
+from tablecoach.core.shots import Aim, Convergence, Stroke, speed_name, travel_lengths
 from tablecoach.core.table import TableSpec
 
 from . import wording as w
+from .bigtype import big
 from .session import Pick, Stats
 
 POWER_CAUTION = (
@@ -41,6 +43,32 @@ class Rows:
                 yield head
 
 
+def headline(
+    table: TableSpec,
+    stroke: Stroke,
+    aim: Aim | None,
+    large: bool = False,
+    ascii_only: bool = False,
+) -> Text:
+    """The reading and the stroke, first and biggest: what a player needs from the rail."""
+    t = Text()
+    if aim is None:
+        return t
+    reading = w.num(w.shown_reading(table, aim))
+    if large:
+        t.append_text(big(reading, ascii_only, style="bold"))
+        t.append(f"\n{aim.rail} rail sights\n", style="bold")
+    else:
+        t.append("AIM ", style="bold")
+        t.append(f" {reading} ", style="bold reverse")
+        t.append(f" {aim.rail} rail sights\n", style="bold")
+    t.append(f"{speed_name(stroke.speed).upper()} ", style="bold")
+    t.append(f"{travel_lengths(table, stroke.speed):.1f} table lengths")
+    t.append(f" {stroke.speed:.2f} m/s\n", style="dim")
+    t.append(w.spin_text(stroke, aim), style="bold")
+    return t
+
+
 def card(
     table: TableSpec,
     pick: Pick | None,
@@ -48,8 +76,13 @@ def card(
     aim: Aim | None,
     conv: Convergence | None,
     error: str = "",
+    model_note: str = "",
+    large: bool = False,
+    ascii_only: bool = False,
+    bias: str = "",
 ) -> RenderableType:
-    """The setup card: what the shot is, where the balls go, the aim, speed, spin, margin."""
+    """The setup card: a warning first when the model has one, the reading and stroke in
+    large, then what the shot is, where the balls go, margin, landing and convergence."""
     if pick is None:
         if error:
             return Text(error, style="bold red")
@@ -57,30 +90,41 @@ def card(
     setup = pick.setup
     if aim is not None:
         stroke = aim.stroke  # the solver may have asked for a firmer stroke
+    parts: list[RenderableType] = []
+    warnings = [model_note] if model_note else []
+    if aim is not None:
+        warnings += list(aim.notes)
+    for note in warnings:
+        parts.append(Text(f"! {note}", style="bold yellow"))
+    if error:
+        parts.append(Text(error, style="bold red"))
+    elif aim is None:
+        parts.append(Text("working out the aim...", style="italic"))
+    else:
+        parts.append(headline(table, stroke, aim, large, ascii_only))
+    if stroke.speed >= 3.2:
+        parts.append(Text(POWER_CAUTION, style="yellow"))
     title = Text(setup.family.title or setup.family.name, style="bold")
     title.append(f": {w.target_text(setup)}", style="")
+    parts.append(Text(""))
+    parts.append(title)
     grid = Rows()
     for i, line in enumerate(w.placements(table, setup)):
         grid.add_row("Place" if i == 0 else "", line)
-    if error:
-        grid.add_row("Aim", Text(error, style="bold red"))
-    elif aim is None:
-        grid.add_row("Aim", Text("working out the aim...", style="italic"))
-    else:
-        grid.add_row("Aim", Text(w.aim_text(table, aim), style="bold"))
-    grid.add_row("Speed", w.speed_text(table, stroke))
-    grid.add_row("Spin", w.spin_text(stroke))
     if aim is not None and not error:
         grid.add_row("Margin", w.margin_text(table, aim))
-        grid.add_row("Lands", f"{w.landing_text(table, aim.landing)} (logged on a hit)")
+        shift = w.placement_text(table, aim, placing.aim_shift(table, setup))
+        if shift:
+            grid.add_row("", Text(shift, style="dim"))
+        grid.add_row("Lands", f"{w.landing_text(table, aim.landing)} (predicted)")
+        if bias:
+            grid.add_row("You", Text(bias, style="bold"))
         grid.add_row("Conv.", w.convergence_text(table, conv) if conv else "working it out...")
         if aim.cut_angle is not None:
             grid.add_row("Cut", f"{math.degrees(aim.cut_angle):.0f} degrees on the object ball")
-        for note in aim.notes:
-            grid.add_row("Note", note)
-    if stroke.speed >= 3.2:
-        grid.add_row("Care", Text(POWER_CAUTION, style="yellow"))
-    return Group(title, grid)
+        grid.add_row("Contact", w.contact_text(table, aim))
+    parts.append(grid)
+    return Group(*parts)
 
 
 def notes(
@@ -94,7 +138,7 @@ def notes(
     """Why this setup, the model and the table's calibration: the lines under the table."""
     grid = Rows()
     if pick is not None:
-        grid.add_row("Why", pick.why)
+        grid.add_row("Why", why_text(pick, aim))
     if pinned:
         grid.add_row("Pinned", pinned)
     if aim is not None:
@@ -106,17 +150,39 @@ def notes(
     return grid
 
 
-def session_line(stats: Stats, earlier: Stats, table_name: str, player: str) -> Text:
-    """Running count and streak of this session, and what was logged before it."""
-    t = Text()
-    t.append(f"{player} on {table_name}  ", style="bold")
+def why_text(pick: Pick, aim: Aim | None) -> str:
+    """Why the coach dealt this setup, and, when the stroke played is not the one dealt (the
+    player changed it, or the model needs a firmer one), which stroke the attempt counts as."""
+    dealt = speed_name(pick.stroke.speed)
+    played = speed_name(aim.stroke.speed) if aim is not None else dealt
+    if played == dealt:
+        return pick.why
+    return f"{pick.why}; dealt {dealt}, played {played}: it counts as a {played} shot"
+
+
+def session_line(
+    stats: Stats, earlier: Stats, table_name: str, player: str, width: int | None = None
+) -> Text:
+    """Running count and streak of this session, and what was logged before it; parts that
+    do not fit ``width`` are left out whole (the earlier count first, then the player)."""
     rate = f" ({100 * stats.hits / stats.shots:.0f}%)" if stats.shots else ""
-    t.append(f"this session: {w.count(stats.shots, 'shot')}, {w.count(stats.hits, 'hit')}{rate}, ")
-    t.append(f"streak {stats.streak}", style="bold")
-    t.append(f" (best {stats.best})")
+    parts: list[tuple[str, str]] = [
+        (f"{player} on {table_name}  ", "bold"),
+        (f"this session: {w.count(stats.shots, 'shot')}, {w.count(stats.hits, 'hit')}{rate}, ", ""),
+        (f"streak {stats.streak}", "bold"),
+        (f" (best {stats.best})", ""),
+    ]
     if earlier.shots:
         before = f"{w.count(earlier.shots, 'shot')}, {w.count(earlier.hits, 'hit')}"
-        t.append(f"   before: {before}", style="dim")
+        parts.append((f"   before: {before}", "dim"))
+    if width is not None and width > 0:
+        if sum(len(p) for p, _ in parts) > width and earlier.shots:
+            parts.pop()
+        if sum(len(p) for p, _ in parts) > width:
+            parts.pop(0)
+    t = Text()
+    for text, style in parts:
+        t.append(text, style=style)
     return t
 
 

@@ -15,7 +15,7 @@ from tablecoach.core.shots import Aim, Setup, Stroke
 from tablecoach.core.store import Store
 from tablecoach.core.table import TableSpec
 
-from .wording import landing_diamonds, shown_reading
+from .wording import shown_reading
 
 SPEED_CYCLE: tuple[str, ...] = tuple(shots.SPEED_PRESETS)
 """The named strokes the speed key steps through, softest first (shots.STROKE_LENGTHS)."""
@@ -191,7 +191,8 @@ class Session:
     ) -> None:
         self.store = store
         self.calibration = calibration
-        self.preset = "medium"
+        self.preset = shots.speed_name(Stroke().speed)
+        self.spin_step = 0
         self.table = table
         self.drill = drill
         self.player = player
@@ -201,9 +202,13 @@ class Session:
         self.dealer = Dealer(table, drill, self.earlier, rng, model)
         self.id = store.start_session(player, table.name, drill_name(drill))
         self.logged: list[Attempt] = []
+        self.setups: dict[int, Setup] = {}
+        """Logged attempt id -> the setup as shown (with its family's title), for r and undo."""
         self.pick: Pick | None = None
         self.stroke: Stroke = Stroke()
         self.ended = False
+        self.repeat = max(int(getattr(drill, "repeat", 1) or 1), 1)
+        """Each setup is dealt this many times in a row (1: shuffled, a new one every shot)."""
         self.lock = threading.RLock()
         self.dealer_stale = False
 
@@ -216,6 +221,7 @@ class Session:
     def show(self, pick: Pick | None) -> None:
         """Put a setup on the table (None while the next one is being dealt)."""
         self.pick = pick
+        self.spin_step = 0
         if pick is not None:
             self.stroke = pick.stroke
             self.preset = shots.speed_name(pick.stroke.speed)
@@ -227,12 +233,14 @@ class Session:
         return pick
 
     def show_again(self, attempt: Attempt) -> Pick:
-        """Put an undone attempt's setup and stroke back on the table."""
-        setup = shots.setup_of(self.table, attempt.shot)
+        """Put a logged (or undone) attempt's setup and stroke back on the table."""
+        shown = self.setups.get(attempt.id) if attempt.id is not None else None
+        setup = shown if shown is not None else shots.setup_of(self.table, attempt.shot)
         stroke = Stroke(attempt.speed, attempt.english, attempt.follow)
         zone = self.pick.zone if self.pick is not None and not attempt.zone else attempt.zone
         self.pick = Pick(setup, stroke, attempt.shot.family, zone, "shown again after undo")
         self.stroke = stroke
+        self.spin_step = 0
         self.preset = shots.speed_name(stroke.speed)
         return self.pick
 
@@ -249,9 +257,53 @@ class Session:
         self.stroke = replace(self.stroke, speed=speed)
         return self.preset, self.stroke
 
+    def played_zone(self, aim: Aim | None) -> Any:
+        """The coach's zone of the shown setup at the stroke to be played (the dealt zone when
+        nothing is solved yet or the coach is not installed): a pin follows the stroke played."""
+        if self.pick is None or aim is None or not self.pick.zone:
+            return self.pick.zone if self.pick is not None else None
+        try:
+            from tablecoach.core.coach import zone_of  # noqa: PLC0415
+        except ImportError:
+            return self.pick.zone
+        return zone_of(shots.record_of(self.table, aim.setup), aim.stroke.speed)
+
+    def bias_text(self, setup: Setup, stroke: Stroke) -> str:
+        """The player's landing bias in the zone of this setup at this stroke, as advice ("you
+        land 0.3 long here (6 landings): aim to land 0.3 shorter"); "" with too few landings
+        or no coach. Slow under the physical model: call it from a worker."""
+        try:
+            from tablecoach.core.coach import zone_of  # noqa: PLC0415
+        except ImportError:
+            return ""
+        from tablecoach.core import feedback  # noqa: PLC0415
+
+        label = zone_label(zone_of(shots.record_of(self.table, setup), stroke.speed))
+        seen = [*self.earlier, *self.logged]
+        got = feedback.zone_bias(self.table, seen, label, self.model, self.calibration)
+        return "" if got is None else feedback.bias_words(*got)
+
+    def next_spin(self, aim: Aim | None) -> Stroke:
+        """The next spin of core.spin.SPIN_STEPS for this attempt (running and reverse english
+        turned into a side with the shown aim); the speed is kept."""
+        from tablecoach.core.spin import SPIN_STEPS, spin_for  # noqa: PLC0415
+
+        self.spin_step = (self.spin_step + 1) % len(SPIN_STEPS)
+        english, follow = spin_for(self.spin_step, aim)
+        self.stroke = replace(self.stroke, english=english, follow=follow)
+        return self.stroke
+
     # ----- attempts ------------------------------------------------------------------------------
-    def attempt(self, aim: Aim, result: str, landing_rail: str, landing_at: float) -> Attempt:
-        """The record of one shot at the shown setup with the shown aim."""
+    def attempt(
+        self,
+        aim: Aim,
+        result: str,
+        landing_rail: str | None,
+        landing_at: float | None,
+        miss_kind: str | None = None,
+    ) -> Attempt:
+        """The record of one shot at the shown setup with the shown aim. The landing is only
+        what the player saw (None when they gave none): never the aim's predicted landing."""
         assert self.pick is not None
         reading = shown_reading(self.table, aim)
         top = rail_length_diamonds(aim.rail)
@@ -280,6 +332,7 @@ class Session:
             drill=drill_name(self.drill),
             note=note,
             zone=self._zone_of(shot, aim.stroke.speed),
+            miss_kind=miss_kind,  # type: ignore[arg-type]
             session=self.id,
         )
 
@@ -291,16 +344,46 @@ class Session:
             return zone_label(self.pick.zone if self.pick else None)
         return zone_label(zone_of(shot, speed))
 
-    def log_hit(self, aim: Aim) -> Attempt:
-        at = landing_diamonds(self.table, aim.landing)
-        return self._log(self.attempt(aim, "hit", aim.landing.rail, at))
+    def log_hit(self, aim: Aim, rail: str | None = None, at: float | None = None) -> Attempt:
+        """Log a hit; it carries a landing only when the player gave one."""
+        return self._log(self.attempt(aim, "hit", rail, at), aim.setup)
 
-    def log_miss(self, aim: Aim, rail: str, at: float) -> Attempt:
-        return self._log(self.attempt(aim, "miss", rail, at))
+    def log_miss(
+        self, aim: Aim, rail: str | None = None, at: float | None = None, kind: str = "landed"
+    ) -> Attempt:
+        """Log a miss: where it crossed the landing rail, or ``kind`` "short" (stopped before
+        the rail) or "jaw" (rattled out) with no landing."""
+        if kind != "landed":
+            rail = at = None
+        return self._log(self.attempt(aim, "miss", rail, at, kind), aim.setup)
 
-    def _log(self, a: Attempt) -> Attempt:
+    def repeats_left(self) -> int:
+        """How many more times the setup just logged comes back before a new one is dealt
+        (``repeat`` in a row; 0 when shuffled or nothing was logged)."""
+        if self.repeat <= 1 or not self.logged:
+            return 0
+        last = self.logged[-1].shot
+        done = 0
+        for a in reversed(self.logged):
+            if a.shot != last:
+                break
+            done += 1
+        return max(self.repeat - done, 0)
+
+    def again(self) -> Pick | None:
+        """Put the setup just logged back on the table (same positions, target, stroke and
+        spin); None when nothing has been logged in this session."""
+        if not self.logged:
+            return None
+        pick = self.show_again(self.logged[-1])
+        self.pick = replace(pick, why="again: the setup you just logged")
+        return self.pick
+
+    def _log(self, a: Attempt, setup: Setup | None = None) -> Attempt:
         saved = self.store.log(a)
         self.logged.append(saved)
+        if setup is not None and saved.id is not None:
+            self.setups[saved.id] = setup
         with self.lock:
             self.dealer.record(saved)
         return saved

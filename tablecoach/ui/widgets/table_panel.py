@@ -31,9 +31,14 @@ def picture_of(
     )
 
 
+MAX_ROWS = 6
+"""The table grows with the terminal up to 6 rows (12 columns) a diamond."""
+
+
 def draw(picture: Picture, ascii_only: bool, width: int, height: int) -> list[Text]:
     """The picture as lines for a panel of this size (safe to call in a worker thread)."""
-    return TableView(picture, ascii_only=ascii_only, max_height=height).lines(width, height)
+    view = TableView(picture, ascii_only=ascii_only, max_height=height, max_rows=MAX_ROWS)
+    return view.lines(width, height)
 
 
 class TablePanel(Widget):
@@ -92,7 +97,10 @@ class TablePanel(Widget):
         else:
             lines = draw(self._picture, self.ascii_only, *size)
             self._lines = (size, lines)
-        foot = Text(self._note, style="italic") if self._note else legend_text(self.ascii_only)
+        if self._note:
+            foot = Text(self._note, style="italic")
+        else:
+            foot = legend_text(self.ascii_only, width)
         console = self.app.console
         out = []
         for line in [*lines, foot]:

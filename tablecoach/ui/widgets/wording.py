@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from tablecoach.core import placing
 from tablecoach.core.shots import (
     Aim,
     Convergence,
@@ -11,6 +12,7 @@ from tablecoach.core.shots import (
     speed_name,
     travel_lengths,
 )
+from tablecoach.core.spin import english_kind
 from tablecoach.core.table import TableSpec
 
 RAIL_ORDER = ("head", "left", "foot", "right")
@@ -30,10 +32,9 @@ def count(n: int, word: str) -> str:
 
 def placement(table: TableSpec, what: str, p: tuple[float, float]) -> str:
     """Where to put a ball, as a player measures it: diamonds from the nearer end rail and the
-    nearer long rail (ball centre from the cushion nose), then the x/y diamonds."""
+    nearer long rail (ball centre from the cushion nose) in fractions, or frozen to a rail."""
     x, y = table.to_diamonds(*p)
-    along = f"{num(x)} from the head rail" if x <= 4.0 else f"{num(8.0 - x)} from the foot rail"
-    across = f"{num(y)} from the left rail" if y <= 2.0 else f"{num(4.0 - y)} from the right rail"
+    along, across = placing.words(table, x, y)
     return f"{what}: {along}, {across}"
 
 
@@ -67,6 +68,14 @@ def aim_text(table: TableSpec, aim: Aim) -> str:
     return f"sight {num(reading)} on the {aim.rail} rail{contact}"
 
 
+def contact_text(table: TableSpec, aim: Aim) -> str:
+    """Where the travelling ball's centre meets the first cushion, in diamonds along it."""
+    first = aim.contacts[0] if aim.contacts else None
+    if first is None:
+        return "not found"
+    return f"{num(table.along_to_diamonds(first.rail, first.at))} on the {first.rail} rail"
+
+
 def shown_reading(table: TableSpec, aim: Aim) -> float:
     """The reading as shown and logged: diamonds along the first rail, to 0.01."""
     return round(table.along_to_diamonds(aim.rail, aim.reading), 2)
@@ -93,15 +102,31 @@ def speed_text(table: TableSpec, stroke: Stroke) -> str:
     )
 
 
-def spin_text(stroke: Stroke) -> str:
-    """English and follow/draw in tips, or a centre-ball hit."""
+def tips_text(tips: float) -> str:
+    """Tips of spin as players say them: "a tip", "a half tip", "a tip and a half"."""
+    t = abs(tips)
+    named = {0.25: "a quarter tip", 0.5: "a half tip", 0.75: "three quarters of a tip"}
+    named |= {1.0: "a tip", 1.5: "a tip and a half"}
+    for v, words in named.items():
+        if abs(t - v) < 1e-9:
+            return words
+    return f"{num(t)} tips"
+
+
+def spin_text(stroke: Stroke, aim: Aim | None = None) -> str:
+    """English and follow/draw in the trade's words ("a tip of running english (right)", "a
+    half tip of draw"), or a centre-ball hit."""
     parts = []
     if stroke.english:
         side = "right" if stroke.english > 0 else "left"
-        parts.append(f"{num(abs(stroke.english))} tip {side} english")
+        kind = english_kind(stroke.english, aim)
+        if kind:
+            parts.append(f"{tips_text(stroke.english)} of {kind} english ({side})")
+        else:
+            parts.append(f"{tips_text(stroke.english)} of {side} english")
     if stroke.follow:
-        kind = "follow" if stroke.follow > 0 else "draw"
-        parts.append(f"{num(abs(stroke.follow))} tip {kind}")
+        what = "follow" if stroke.follow > 0 else "draw"
+        parts.append(f"{tips_text(stroke.follow)} of {what}")
     return ", ".join(parts) if parts else "centre ball"
 
 
@@ -109,7 +134,19 @@ def margin_text(table: TableSpec, aim: Aim) -> str:
     """How far the reading may move each way and still score, in diamonds."""
     unit = table.rail_unit(aim.rail)
     lo, hi = aim.margin_minus / unit, aim.margin_plus / unit
-    return f"-{lo:.2f} / +{hi:.2f} diamond on the reading"
+    return f"-{lo:.2f} / +{hi:.2f} diamond"
+
+
+def placement_text(table: TableSpec, aim: Aim, shift: float | None) -> str:
+    """The margin against what a quarter-diamond placement error does to the aim."""
+    if shift is None:
+        return ""
+    unit = table.rail_unit(aim.rail)
+    margin = min(aim.margin_minus, aim.margin_plus) / unit
+    said = f"a ball 1/4 diamond off moves the aim {shift:.2f}"
+    if shift > margin:
+        return f"{said}: more than the margin, place with care"
+    return f"{said}: within the margin"
 
 
 def convergence_text(table: TableSpec, conv: Convergence | None) -> str:
