@@ -20,6 +20,7 @@ from typing import Any
 
 import numpy as np
 
+from . import validate
 from .shots import (
     PRESETS,
     SPEED_PRESETS,
@@ -183,9 +184,10 @@ class _Ctx:
 
 
 def _num(ctx: _Ctx, path: list[str | int], v: Any) -> float:
-    if isinstance(v, bool) or not isinstance(v, int | float) or not math.isfinite(v):
-        raise ctx.fail(path, f"must be a number, got {v!r}")
-    return float(v)
+    try:
+        return validate.finite(v, "value")
+    except validate.InputError:
+        raise ctx.fail(path, f"must be a finite number, got {validate.show(v)}") from None
 
 
 def _span(ctx: _Ctx, path: list[str | int], v: Any, top: float) -> tuple[float, float]:
@@ -299,8 +301,14 @@ def _item(ctx: _Ctx, k: int, raw: Any) -> DrillItem:
         raise ctx.fail([*path, "speeds"], "must be a list of speed names or m/s values")
     speeds, names = [], []
     for s in speeds_raw:
-        if isinstance(s, bool) or not isinstance(s, str | int | float):
-            raise ctx.fail([*path, "speeds"], f"has {s!r}: use {', '.join(SPEED_PRESETS)} or m/s")
+        if (
+            isinstance(s, bool)
+            or not isinstance(s, str | int | float)
+            or (isinstance(s, int) and abs(s) > 1000)
+            or (isinstance(s, str) and len(s) > validate.MAX_NUMBER_CHARS)
+        ):
+            got = validate.show(s)
+            raise ctx.fail([*path, "speeds"], f"has {got}: use {', '.join(SPEED_PRESETS)} or m/s")
         try:
             v = parse_speed(s)
         except ShotError as exc:
@@ -336,21 +344,23 @@ def parse_drill(text: str, name: str, source: str = "<drill>", path: Path | None
     """Parse and check a pack from its TOML text; any problem is one DrillError line."""
     ctx = _Ctx(source, text)
     try:
-        data = tomllib.loads(text)
+        data = validate.toml_text(text, source)
     except tomllib.TOMLDecodeError as exc:
         m = _TOML_POS.search(str(exc))
         where = f"{source}, line {m.group(1)}" if m else source
         raise DrillError(f"{where}: not valid TOML ({exc})") from None
+    except validate.InputError as exc:
+        raise DrillError(str(exc)) from None
     unknown = sorted(set(data) - _PACK_KEYS)
     if unknown:
         raise ctx.fail(
             [unknown[0]], f"is not a pack field; allowed: {', '.join(sorted(_PACK_KEYS))}"
         )
     title = data.get("title", name)
-    if not isinstance(title, str) or not title.strip():
-        raise ctx.fail(["title"], "must be a non-empty string")
+    if not isinstance(title, str) or not title.strip() or len(title) > 200:
+        raise ctx.fail(["title"], "must be a non-empty string (at most 200 characters)")
     desc = data.get("description", "")
-    if not isinstance(desc, str):
+    if not isinstance(desc, str) or len(desc) > validate.TEXT_MAX:
         raise ctx.fail(["description"], "must be a string")
     count = data.get("count", 20)
     if isinstance(count, bool) or not isinstance(count, int) or not (1 <= count <= MAX_COUNT):
