@@ -133,11 +133,11 @@ def name(value: Any, field: str) -> str:
         raise InputError(f"field {field!r} must be text, got {show(value)}")
     v = value.strip()
     if not v or len(v) > NAME_MAX or not v.isprintable():
-        what = "empty" if not v else (
-            f"{len(v)} characters long" if len(v) > NAME_MAX else "holds control characters"
+        what = "is empty" if not v else (
+            f"is {len(v)} characters long" if len(v) > NAME_MAX else "holds control characters"
         )  # fmt: skip
         raise InputError(
-            f"field {field!r} = {show(value)} is {what} (allowed: 1 to {NAME_MAX} "
+            f"field {field!r} = {show(value)} {what} (allowed: 1 to {NAME_MAX} "
             "printable characters)"
         )
     return v

@@ -287,8 +287,16 @@ def test_start_session_started_time(tmp_path: Path) -> None:
             s.start_session("ann", "9ft", "mixed", started=datetime(2025, 6, 1))
 
 
-def test_a_value_holding_the_key_separator_is_read_field_by_field(tmp_path: Path) -> None:
+def test_a_value_holding_the_key_separator_is_read_field_by_field(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
     # The key fields are joined with char(31) in SQL; a name holding it must not be split.
+    # New names with control characters are refused (issue 15), but a store written before
+    # that may hold them: the write-side check is lifted here to make such a store.
+    import tablecoach.core.store as store_mod
+    from tablecoach.core.records import validate_attempt
+
+    monkeypatch.setattr(store_mod, "_check_attempt", validate_attempt)
     rng = np.random.default_rng(11)
     with Store.open(tmp_path / "sep.sqlite3") as s:
         odd = Attempt(**{**_fields(random_attempt(rng)), "player": "a\x1fb", "drill": "x\x1f"})
