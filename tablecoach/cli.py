@@ -31,6 +31,7 @@ COMMANDS = (
     "history",
     "report",
     "demo",
+    "backup",
 )
 
 

@@ -849,6 +849,22 @@ class Store:
             except sqlite3.Error as exc:
                 raise self._damaged(exc) from None
 
+    @contextmanager
+    def snapshot(self) -> Iterator[sqlite3.Connection]:
+        """One read transaction: every SELECT inside sees the same moment (core/backup.py)."""
+        with self._read() as c:
+            c.execute("BEGIN")
+            try:
+                yield c
+            finally:
+                c.execute("ROLLBACK")
+
+    @contextmanager
+    def transaction(self) -> Iterator[sqlite3.Connection]:
+        """One write transaction, after the integrity check, all or nothing (core/backup.py)."""
+        with self._write() as c:
+            yield c
+
     # ----- players ----------------------------------------------------------------------------
     @staticmethod
     def _check_name(what: str, name: str) -> str:

@@ -109,7 +109,7 @@ def when(value: datetime, field: str = "when") -> datetime:
     return value.astimezone(UTC)
 
 
-def when_text(text: str, field: str = "when") -> datetime:
+def when_text(text: Any, field: str = "when") -> datetime:
     """An ISO-8601 time with a zone, within the allowed years, to an aware UTC datetime."""
     if not isinstance(text, str) or len(text) > 64:
         raise InputError(f"field {field!r} = {show(text)} is not an ISO-8601 time")
