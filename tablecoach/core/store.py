@@ -255,6 +255,9 @@ _KEY_SEP = "\x1f"
 """Joins the key fields in SQL (ASCII unit separator, char(31)); when a value holds it, the
 fields are read one by one instead."""
 
+_FLOOR = f"{validate.YEAR_MIN:04d}-01-01T00:00:00.000000+00:00"
+_CEILING = f"{validate.YEAR_MAX + 1:04d}-01-01T00:00:00.000000+00:00"
+"""Stored times read back lie in [_FLOOR, _CEILING) (``Store._filters``)."""
 _EPOCH_DAY = datetime(1970, 1, 1).toordinal()
 _ISO_LEN = 32
 """Characters in a stored time, e.g. 2026-11-30T21:00:00.000000+00:00 (``iso_utc``)."""
@@ -1023,12 +1026,15 @@ class Store:
             if val is not None:
                 where.append(f"{col} = ?")
                 args.append(val)
-        if since is not None:
-            where.append(f"{plus}at >= ?")
-            args.append(iso_utc(since if since.tzinfo else since.replace(tzinfo=UTC)))
-        if until is not None:
-            where.append(f"{plus}at < ?")
-            args.append(iso_utc(until if until.tzinfo else until.replace(tzinfo=UTC)))
+        # Times outside the years every reader can place in any zone (validate.YEAR_MIN..MAX)
+        # are refused on the way in; an older tablecoach may have stored some: they stay in the
+        # file (and in backups) but are left out of what is read, so one cannot break history.
+        lo = iso_utc(since if since.tzinfo else since.replace(tzinfo=UTC)) if since else _FLOOR
+        hi = iso_utc(until if until.tzinfo else until.replace(tzinfo=UTC)) if until else _CEILING
+        where.append(f"{plus}at >= ?")
+        args.append(max(lo, _FLOOR))
+        where.append(f"{plus}at < ?")
+        args.append(min(hi, _CEILING))
         return (" WHERE " + " AND ".join(where) if where else ""), args
 
     def attempts(

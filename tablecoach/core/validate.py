@@ -22,6 +22,7 @@ from __future__ import annotations
 
 import json
 import math
+import re
 import tomllib
 from datetime import UTC, date, datetime
 from typing import Any
@@ -196,6 +197,14 @@ def _no_constant(text: str) -> float:
     raise InputError(f"{text} is not a number JSON allows (use a finite number)")
 
 
+_LONG_NUMBER = re.compile(
+    r'"([^"\\]{1,60})"\s*:\s*(?:\[\s*(?:[-+0-9.eE]+\s*,\s*)*)?-?[0-9][-+0-9.eE]{'
+    + str(MAX_NUMBER_CHARS)
+    + ",}"
+)
+"""A key whose value (or a member of its list) is a number too long: to name it in the message."""
+
+
 def json_line(line: str) -> Any:
     """Parse one JSON text with bounded nesting and number length; InputError otherwise.
 
@@ -207,6 +216,11 @@ def json_line(line: str) -> Any:
         return json.loads(
             line, parse_int=_parse_int, parse_float=_parse_float, parse_constant=_no_constant
         )
+    except InputError as exc:
+        m = _LONG_NUMBER.search(line)
+        if m is None:
+            raise
+        raise InputError(f"field {m.group(1)!r}: {exc}") from None
     except json.JSONDecodeError as exc:
         raise InputError(f"not valid JSON ({exc.msg} at column {exc.colno})") from None
     except RecursionError:  # pragma: no cover - the depth check comes first
