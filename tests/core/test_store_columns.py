@@ -335,7 +335,8 @@ def test_history_queries_use_an_index(filled: Store) -> None:
     t = T0 + timedelta(days=3)
     first = filled.sessions()[0]
     sid, who = first.id, first.player
-    assert plan(filled) == "SCAN attempts USING INDEX attempts_at"
+    # (a search rather than a scan since reads keep to the years 1900 to 2200: issue 15)
+    assert plan(filled) == "SEARCH attempts USING INDEX attempts_at (at>? AND at<?)"
     for kw, index in (
         ({"player": "ann"}, "attempts_player_at"),
         ({"table": "9ft"}, "attempts_table_at"),
