@@ -563,6 +563,14 @@ def sqlite_error(path: Path, exc: sqlite3.Error) -> StoreError:
     return StoreError(f"the database {path} could not be used ({msg}); try again")
 
 
+def _rollback(c: sqlite3.Connection) -> None:
+    """Roll back if a transaction is still open: after SQLITE_FULL, an I/O error or an
+    interrupt SQLite may have rolled it back already (sqlite.org/lang_transaction.html)."""
+    if c.in_transaction:
+        with contextlib.suppress(sqlite3.Error):
+            c.execute("ROLLBACK")
+
+
 def _create(path: Path) -> None:
     """Make a new, empty store at ``path`` whole or not at all.
 
@@ -617,6 +625,7 @@ class Store:
         self._checked: StoreError | bool = False  # True: passed; an error: failed
         self._checker: threading.Thread | None = None
         self._broken = False  # damage seen: close without folding the WAL into the file
+        self._had_wal = path.with_name(path.name + "-wal").exists()
 
     # ----- opening and closing ---------------------------------------------------------------
     @classmethod
@@ -727,7 +736,7 @@ class Store:
                 version += 1
                 c.execute(f"PRAGMA user_version = {version}")
         except BaseException:
-            c.execute("ROLLBACK")
+            _rollback(c)
             raise
         c.execute("COMMIT")
 
@@ -806,6 +815,11 @@ class Store:
             self._conn.close()
             if guard is not None:
                 guard.close()
+            wal = self.path.with_name(self.path.name + "-wal")
+            with contextlib.suppress(OSError):
+                if not self._had_wal and wal.stat().st_size == 0:  # ours, and empty: tidy up
+                    wal.unlink()
+                    self.path.with_name(self.path.name + "-shm").unlink()
 
     def __enter__(self) -> Store:
         return self
@@ -832,16 +846,15 @@ class Store:
             try:
                 yield c
             except sqlite3.Error as exc:
-                c.execute("ROLLBACK")
+                _rollback(c)
                 raise self._damaged(exc) from None
             except BaseException:
-                c.execute("ROLLBACK")
+                _rollback(c)
                 raise
             try:
                 c.execute("COMMIT")
             except sqlite3.Error as exc:
-                if c.in_transaction:
-                    c.execute("ROLLBACK")
+                _rollback(c)
                 raise self._damaged(exc) from None
 
     @contextmanager
@@ -860,7 +873,7 @@ class Store:
             try:
                 yield c
             finally:
-                c.execute("ROLLBACK")
+                _rollback(c)
 
     @contextmanager
     def transaction(self) -> Iterator[sqlite3.Connection]:
