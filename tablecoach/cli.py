@@ -41,6 +41,8 @@ class Parser(argparse.ArgumentParser):
 
     def error(self, message: str) -> Any:  # argparse's signature says NoReturn
         first = message.splitlines()[0] if message else "bad arguments"
+        if len(first) > 300:  # a huge value quoted back would bury the point
+            first = first[:297] + "..."
         self.exit(2, f"{self.prog}: {first} (see '{self.prog} --help')\n")
 
 

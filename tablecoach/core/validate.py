@@ -103,11 +103,16 @@ def when(value: datetime, field: str = "when") -> datetime:
     """An aware time within years YEAR_MIN to YEAR_MAX, moved to UTC."""
     if value.tzinfo is None or value.utcoffset() is None:
         raise InputError(f"field {field!r} has no time zone (write it in UTC with a Z)")
-    if not (YEAR_MIN <= value.year <= YEAR_MAX):
+    if not (YEAR_MIN <= value.year <= YEAR_MAX):  # first, so that the move below cannot overflow
         raise InputError(
             f"field {field!r} is in the year {value.year} (allowed: {YEAR_MIN} to {YEAR_MAX})"
         )
-    return value.astimezone(UTC)
+    utc = value.astimezone(UTC)
+    if not (YEAR_MIN <= utc.year <= YEAR_MAX):
+        raise InputError(
+            f"field {field!r} is in the year {utc.year} in UTC (allowed: {YEAR_MIN} to {YEAR_MAX})"
+        )
+    return utc
 
 
 def when_text(text: Any, field: str = "when") -> datetime:
