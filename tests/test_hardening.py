@@ -702,3 +702,45 @@ def test_restore_refuses_a_bad_or_cut_backup_and_writes_nothing(
     code, _, err = cli(capsys, "restore", str(backup))
     assert_refused(code, err, "already holds", "--data-dir")
     assert _digest(old) == before
+
+
+def test_windows_creating_the_same_new_store_at_once_all_log(tmp_path: Path) -> None:
+    # Four processes open a store that does not exist yet at the same moment: one builds it,
+    # the others use it (the hard link refuses a second), and every attempt logged is there.
+    db = tmp_path / "race" / "tablecoach.sqlite3"
+    go = tmp_path / "go"
+    worker = textwrap.dedent(
+        f"""
+        import json, sys, time
+        from pathlib import Path
+        from tablecoach.core import formats
+        from tablecoach.core.store import Store
+        rec = json.loads(sys.argv[2])
+        while not Path({str(go)!r}).exists():
+            time.sleep(0.001)
+        with Store.open({str(db)!r}) as s:
+            for i in range(10):
+                rec["speed"] = 1.0 + i / 100
+                s.log(formats.attempt_from_json(dict(rec, player="w" + sys.argv[1])))
+        print("ok")
+        """
+    )
+    procs = [
+        subprocess.Popen(
+            [sys.executable, "-c", worker, str(k), json.dumps(_record())],
+            cwd=REPO,
+            stdout=subprocess.PIPE,
+            stderr=subprocess.PIPE,
+            text=True,
+        )
+        for k in range(4)
+    ]
+    go.touch()
+    results = [p.communicate(timeout=120) for p in procs]
+    assert [p.returncode for p in procs] == [0, 0, 0, 0], results
+    with Store.open(db) as s:
+        assert s.count_attempts() == 40
+        assert sorted(s.players()) == ["w0", "w1", "w2", "w3"]
+    assert sorted(p.name for p in db.parent.iterdir() if not p.name.endswith(("-wal", "-shm"))) == [
+        db.name
+    ]
