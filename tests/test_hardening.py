@@ -160,6 +160,7 @@ def test_a_reading_on_the_rail_still_runs(capsys: pytest.CaptureFixture[str]) ->
         'name = "x"\nlength = ' + "[" * 3000 + "]" * 3000 + "\n",
         'name = "a\\u0000b"\n',
         'name = "' + "n" * 41 + '"\n',
+        'name = "x"\ndescription = "clear \\u001b[2J"\n',  # a terminal escape
     ],
 )
 def test_table_files_of_the_wrong_shape_are_one_line(

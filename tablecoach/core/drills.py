@@ -340,6 +340,15 @@ def _item(ctx: _Ctx, k: int, raw: Any) -> DrillItem:
     )
 
 
+def _plain(text: str) -> bool:
+    """No control characters but tab and newline (validate.text's rule)."""
+    try:
+        validate.text(text, "description")
+    except validate.InputError:
+        return False
+    return True
+
+
 def parse_drill(text: str, name: str, source: str = "<drill>", path: Path | None = None) -> Drill:
     """Parse and check a pack from its TOML text; any problem is one DrillError line."""
     ctx = _Ctx(source, text)
@@ -357,11 +366,18 @@ def parse_drill(text: str, name: str, source: str = "<drill>", path: Path | None
             [unknown[0]], f"is not a pack field; allowed: {', '.join(sorted(_PACK_KEYS))}"
         )
     title = data.get("title", name)
-    if not isinstance(title, str) or not title.strip() or len(title) > 200:
-        raise ctx.fail(["title"], "must be a non-empty string (at most 200 characters)")
+    if (
+        not isinstance(title, str)
+        or not title.strip()
+        or len(title) > 200
+        or not title.strip().isprintable()
+    ):
+        raise ctx.fail(["title"], "must be a non-empty line of printable text (at most 200)")
     desc = data.get("description", "")
-    if not isinstance(desc, str) or len(desc) > validate.TEXT_MAX:
-        raise ctx.fail(["description"], "must be a string")
+    if not isinstance(desc, str) or len(desc) > validate.TEXT_MAX or not _plain(desc):
+        raise ctx.fail(
+            ["description"], "must be text (at most 2000 characters, no control characters)"
+        )
     count = data.get("count", 20)
     if isinstance(count, bool) or not isinstance(count, int) or not (1 <= count <= MAX_COUNT):
         raise ctx.fail(["count"], f"= {count!r} must be a whole number from 1 to {MAX_COUNT}")

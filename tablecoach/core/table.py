@@ -459,8 +459,13 @@ def table_from_mapping(data: dict[str, Any], source: str = "<table>") -> TableSp
     cloth = section("cloth", Cloth, base.cloth)
     cushion = section("cushion", Cushion, base.cushion)
     desc = data.get("description", "")
-    if not isinstance(desc, str) or len(desc) > validate.TEXT_MAX:
-        raise fail("description", f"must be a string of at most {validate.TEXT_MAX} characters")
+    try:
+        validate.text(desc, "description")
+    except validate.InputError:
+        raise fail(
+            "description",
+            f"must be text of at most {validate.TEXT_MAX} characters, no control characters",
+        ) from None
     spec = replace(base, name=name.strip(), cloth=cloth, cushion=cushion, description=desc, **top)
     ratio = spec.length / spec.width
     if not (1.9 <= ratio <= 2.1):
