@@ -153,8 +153,8 @@ def main(argv: Sequence[str] | None = None) -> int:
         if os.environ.get("TABLECOACH_DEBUG"):
             raise
         print(
-            f"tablecoach: internal error ({type(exc).__name__}: {str(exc)[:200]}); nothing was "
-            "changed by it; run again with TABLECOACH_DEBUG=1 for details and report it",
+            f"tablecoach: internal error ({type(exc).__name__}: {str(exc)[:200]}); run again "
+            "with TABLECOACH_DEBUG=1 to see where, and please report it",
             file=sys.stderr,
         )
         return 1

@@ -78,12 +78,13 @@ def _text(data: dict[str, Any], speed: float) -> str:
 
 def run(args: argparse.Namespace) -> int:
     from ..core import shots
+    from ..core.records import rail_length_diamonds
     from .aim import available_model, setup_from_args
 
     table, setup, stroke, _status = setup_from_args(args)
     model = available_model(args.model)
     rail = setup.family.rails[0]
-    top = 8.0 if rail in ("left", "right") else 4.0
+    top = rail_length_diamonds(rail)
     if not (0.0 <= args.reading <= top):
         raise shots.ShotError(
             f"--reading {args.reading:g} is off the {rail} rail's sights: use 0 to {top:g} diamonds"

@@ -9,6 +9,7 @@ never written to: opening it raises a StoreError naming the file and what to do.
 from __future__ import annotations
 
 import contextlib
+import errno
 import gc
 import hashlib
 import json
@@ -599,7 +600,7 @@ def _create(path: Path) -> None:
     except sqlite3.Error as exc:
         raise sqlite_error(path, exc) from None
     except OSError as exc:
-        if exc.errno is not None and exc.errno in (28, 122):  # ENOSPC, EDQUOT
+        if exc.errno in (errno.ENOSPC, errno.EDQUOT):
             raise sqlite_error(path, sqlite3.OperationalError("database or disk is full")) from None
         raise StoreError(
             f"cannot create the database {path} ({exc.strerror or exc}); use --data-dir to pick "
