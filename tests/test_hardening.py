@@ -422,10 +422,9 @@ def test_a_damaged_store_is_refused_and_left_byte_for_byte(
     assert sorted(p.name for p in db.parent.iterdir()) == [db.name]
 
 
-def test_a_truncated_file_beside_a_killed_writers_wal_is_refused(
-    tmp_path: Path, capsys: pytest.CaptureFixture[str], demo_store: Path
-) -> None:
-    db = _copy_store(demo_store, tmp_path / "data")
+def _killed_writer(db: Path) -> Path:
+    """Leave a write-ahead log with 100 committed players beside ``db``, as a writer killed
+    with SIGKILL before its checkpoint does; returns the log's path."""
     writer = textwrap.dedent(
         f"""
         import sqlite3, time
@@ -444,6 +443,14 @@ def test_a_truncated_file_beside_a_killed_writers_wal_is_refused(
     p.wait()
     wal = db.with_name(db.name + "-wal")
     assert wal.exists() and wal.stat().st_size > 0
+    return wal
+
+
+def test_a_truncated_file_beside_a_killed_writers_wal_is_refused(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str], demo_store: Path
+) -> None:
+    db = _copy_store(demo_store, tmp_path / "data")
+    wal = _killed_writer(db)
     os.truncate(db, db.stat().st_size // 2 // _page_size(db) * _page_size(db))
     before = (_digest(db), _digest(wal))
     table_file = tmp_path / "mine.toml"
@@ -451,6 +458,25 @@ def test_a_truncated_file_beside_a_killed_writers_wal_is_refused(
     code, _, err = cli(capsys, "tables", "add", str(table_file))
     assert_refused(code, err, "damaged")
     assert (_digest(db), _digest(wal)) == before  # the log was not folded into the file
+
+
+def test_reading_leaves_a_foreign_log_for_the_next_checked_writer(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str], demo_store: Path
+) -> None:
+    # A session that only reads never runs the check, so it does not fold a log it finds into
+    # the file (a write); the next writer checks, then SQLite folds it in on closing.
+    db = _copy_store(demo_store, tmp_path / "data")
+    wal = _killed_writer(db)
+    before = _digest(db)
+    code, out, err = cli(capsys, "history", "--json")
+    assert code == 0, err
+    assert _digest(db) == before and wal.stat().st_size > 0
+    table_file = tmp_path / "mine.toml"
+    table_file.write_text('name = "mine"\n', encoding="utf-8")
+    assert cli(capsys, "tables", "add", str(table_file))[0] == 0
+    assert not wal.exists()
+    with Store.open(db) as s:
+        assert len(s.players()) == 4 + 100  # the demo's four and the killed writer's hundred
 
 
 def test_an_empty_file_is_refused_not_made_a_store(

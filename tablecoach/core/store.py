@@ -801,12 +801,19 @@ class Store:
     def close(self) -> None:
         """Close the connection (everything is already committed).
 
-        SQLite folds the write-ahead log into the file when its last connection closes. On a
-        damaged file that would be a write, so a read-only connection is held open meanwhile
-        (SQLite then leaves the log beside the file, as it was).
+        SQLite folds the write-ahead log into the file when its last connection closes. That is
+        a write, so it is left to a store that passed the check: on a damaged file, or when a
+        session that only read (and so never ran the check) finds a log left by someone else
+        (a killed writer), a read-only connection is held open meanwhile and SQLite leaves the
+        log beside the file as it was, for the next writer, which checks first.
         """
         with self._lock:
-            if not self._broken:
+            wal = self.path.with_name(self.path.name + "-wal")
+            try:
+                foreign_log = self._checked is not True and wal.stat().st_size > 0
+            except OSError:
+                foreign_log = False
+            if not self._broken and not foreign_log:
                 self._conn.close()
                 return
             guard = None
@@ -816,9 +823,8 @@ class Store:
             self._conn.close()
             if guard is not None:
                 guard.close()
-            wal = self.path.with_name(self.path.name + "-wal")
             with contextlib.suppress(OSError):
-                if not self._had_wal and wal.stat().st_size == 0:  # ours, and empty: tidy up
+                if self._broken and not self._had_wal and wal.stat().st_size == 0:  # ours: tidy
                     wal.unlink()
                     self.path.with_name(self.path.name + "-shm").unlink()
 
