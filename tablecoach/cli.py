@@ -23,6 +23,7 @@ from . import __version__
 COMMANDS = (
     "aim",
     "predict",
+    "speeds",
     "tables",
     "drills",
     "importer",

@@ -112,14 +112,20 @@ NON_FINITE = st.sampled_from(["nan", "-nan", "NaN", "inf", "-inf", "Infinity", "
                               "9" * 400, "-" + "9" * 5000])  # fmt: skip
 NUM = st.one_of(NON_FINITE, NON_FINITE, NUMBER_TEXT)  # non-finite values about half the time
 POINT = st.tuples(NUM, NUM).map(",".join)
+SPEED = st.one_of(
+    NUM,
+    NUM.map(lambda t: t + "L"),
+    NUM.map(lambda t: t + " m/s"),
+    st.sampled_from(["lag", "power"]),
+)
 DATE = st.one_of(
     st.dates().map(str), st.sampled_from(["0001-01-01", "9999-12-31", "1899-12-31"]), WEIRD_TEXT
 )
 OPTIONS = {
-    "aim": {"--english": NUM, "--follow": NUM, "--speed": NUM, "--cue": POINT, "--object": POINT,
+    "aim": {"--english": NUM, "--follow": NUM, "--speed": SPEED, "--cue": POINT, "--object": POINT,
             "--target-ball": POINT, "--table": WEIRD_TEXT, "--player": WEIRD_TEXT,
             "--pocket": WEIRD_TEXT, "--rails": WEIRD_TEXT},
-    "predict": {"--reading": NUM, "--english": NUM, "--follow": NUM, "--speed": NUM,
+    "predict": {"--reading": NUM, "--english": NUM, "--follow": NUM, "--speed": SPEED,
                 "--cue": POINT, "--object": POINT, "--table": WEIRD_TEXT},
     "history": {"--since": DATE, "--until": DATE, "--session": NUM, "--tz": WEIRD_TEXT,
                 "--player": WEIRD_TEXT, "--table": WEIRD_TEXT},
@@ -127,6 +133,7 @@ OPTIONS = {
     "tables show": {},
     "drills show": {"--sample": NUM, "--seed": NUM, "--table": WEIRD_TEXT},
     "export": {"--player": WEIRD_TEXT, "--table": WEIRD_TEXT},
+    "speeds": {"--table": WEIRD_TEXT, "--player": WEIRD_TEXT},
 }  # fmt: skip
 BASE = {
     "aim": ["--family", "cross-corner-bank", "--cue", "3,1", "--object", "4,2", "--model",
@@ -134,6 +141,7 @@ BASE = {
     "predict": ["--family", "cross-corner-bank", "--cue", "3,1", "--object", "4,2", "--model",
                 "ideal", "--reading", "4.5", "--json"],
     "history": ["--json"],
+    "speeds": ["--json"],
     "tables show": ["9ft", "--json"],
     "drills show": ["mixed", "--json"],
 }  # fmt: skip

@@ -26,7 +26,12 @@ def add_shot_options(p: argparse.ArgumentParser) -> None:
     g.add_argument("--cue", default=None, metavar="X,Y", help="cue ball in diamonds")
     g.add_argument("--object", default=None, metavar="X,Y", help="object ball in diamonds")
     s = p.add_argument_group("stroke")
-    s.add_argument("--speed", default="medium", help="slow, medium, fast, power, or m/s")
+    s.add_argument(
+        "--speed",
+        default="medium",
+        help="a stroke (slow, lag, medium, fast, power: see `tablecoach speeds`), lengths of "
+        "travel such as 3L, or m/s",
+    )
     s.add_argument("--english", type=number(), default=0.0, help="side spin in tips (+ right)")
     s.add_argument("--follow", type=number(), default=0.0, help="tips above centre (- for draw)")
     p.add_argument(
@@ -124,7 +129,7 @@ def setup_from_args(args: argparse.Namespace) -> tuple[Any, Any, Any, str]:
             raise ShotError(f"--{name} {v:g} tips is more than a tip: it would miscue")
     # a preset name means this player's own "medium" etc. once the table is calibrated
     if calibration is None:
-        speed = shots.parse_speed(args.speed)
+        speed = shots.parse_speed(args.speed, table)
     else:
         from ..core.calibrate import speed_for
 
@@ -169,7 +174,7 @@ def aim_to_json(table: Any, aim: Any, conv: Any, status: str) -> dict[str, Any]:
         },
         "speed": {
             "m_per_s": aim.stroke.speed,
-            "name": speed_name(aim.stroke.speed),
+            "name": speed_name(aim.stroke.speed, table),
             "table_lengths": round(travel_lengths(table, aim.stroke.speed), 2),
         },
         "english": aim.stroke.english,

@@ -45,18 +45,19 @@ def run(args: argparse.Namespace) -> int:
         cal = calibrate.calibrate_from_store(
             store, args.table, args.player, model=args.model, save=not args.no_save
         )
+        table = store.get_table(args.table)
     player = cal.player
     if args.json:
         out = cal.as_dict()
         out["saved"] = not args.no_save
-        out["sentences"] = cal.sentences()
+        out["sentences"] = cal.sentences(table)
         json.dump(out, sys.stdout, indent=2, sort_keys=True)
         sys.stdout.write("\n")
         return 0
     print(
         f"{args.table} table, {player}: {cal.status}" + ("" if not args.no_save else " (not saved)")
     )
-    for line in cal.sentences():
+    for line in cal.sentences(table):
         print(f"  {line}")
     print(f"  (fit took {cal.seconds:.1f} s, {cal.iterations} steps, {cal.used} attempts used)")
     return 0

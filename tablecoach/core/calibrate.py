@@ -122,17 +122,26 @@ PARAM_BOUNDS: dict[str, tuple[float, float]] = {
 """Hard bounds of each fitted parameter: the ranges table.py validates custom tables against
 (cloth ranges from Alciatore's typical-parameter pages, PHYSICS.md section 2)."""
 
+RESTITUTION_PRIOR_SD = 0.05
+"""Prior sd of the cushion's energetic restitution (a judgement: there is no published range
+inside this model). The coefficient is the energetic one of Mathavan, Jackson and Parkin
+(2010), whose only published value, their fit to measured snooker rebounds, is the default
+0.98; it lies in (0, 1] and 1.0 is its bound. Alciatore's 0.6-0.9 "ball-rail restitution" is a
+ratio of centre speeds, an outcome of the model rather than its coefficient (table.Cushion), so
+it cannot serve as this prior's range. 0.05 lets a dead cushion sit two sd below the default
+(0.88) and keeps the bound 0.4 sd above it."""
+
 PRIOR_SD: dict[str, float] = {
     "cloth.mu_slide": (0.4 - 0.15) / 4.0,
     "cloth.mu_roll": (0.015 - 0.005) / 4.0,
-    "cushion.restitution": (0.9 - 0.6) / 4.0,
+    "cushion.restitution": RESTITUTION_PRIOR_SD,
     "cushion.friction": 0.4 / 4.0,
 }
-"""Prior standard deviations: a published range read as +-2 sd. Sliding friction 0.15-0.4 and
-rolling resistance 0.005-0.015 (Alciatore, PHYSICS.md 2); cushion restitution uses the width of
-the published ball-rail restitution range 0.6-0.9 (Alciatore); cushion friction has no published
-range in the reference sheet, so the validation range 0-0.4 around Mathavan et al.'s 0.14 is
-used (a wide, weak prior)."""
+"""Prior standard deviations. Sliding friction 0.15-0.4 and rolling resistance 0.005-0.015
+are Alciatore's published ranges (PHYSICS.md 2) read as +-2 sd; cushion restitution is
+RESTITUTION_PRIOR_SD (a judgement, see there); cushion friction has no published range in the
+reference sheet, so the validation range 0-0.4 around Mathavan et al.'s 0.14 is used (a wide,
+weak prior)."""
 
 PARAM_WORDS: dict[str, str] = {
     "cloth.mu_slide": "cloth sliding friction",
@@ -141,12 +150,23 @@ PARAM_WORDS: dict[str, str] = {
     "cushion.friction": "cushion friction",
 }
 
+SPEED_PRIOR_FACTOR = 1.3
+"""How far a player's named stroke plausibly lies from the book's m/s: within a factor 1.3
+(about +-30 %) either way, read as +-2 sd in log speed. A judgement, common practice, no
+source. Strokes are named by lengths of travel (shots.STROKE_LENGTHS); on the default table
+(physics/travel.py) a factor 1.3 either side of the book's m/s spans 2.3 to 3.5 lengths for a
+medium (3 lengths), 1.1 to 2.1 for a slow (1.5) and 3.7 to 5.1 for a power stroke (4.25): about
+half a length either way around a medium, reaching toward the neighbouring names."""
+
 
 def speed_prior_sd(preset: str) -> float:
-    """Prior sd of log(the player's m/s for a preset / the book's m/s): the published band
-    (Alciatore, "typical shot speeds") read as +-2 sd in log speed."""
-    lo, hi = shots.SPEED_BANDS[preset]
-    return math.log(hi / lo) / 4.0
+    """Prior sd of log(the player's m/s for a named stroke / the book's m/s): SPEED_PRIOR_FACTOR
+    read as +-2 sd, the same for every stroke (a judgement, see SPEED_PRIOR_FACTOR)."""
+    if preset not in shots.SPEED_PRESETS:
+        raise CalibrationError(
+            f"unknown speed preset {preset!r}: use one of {', '.join(shots.SPEED_PRESETS)}"
+        )
+    return math.log(SPEED_PRIOR_FACTOR) / 2.0
 
 
 def get_param(table: TableSpec, name: str) -> float:
@@ -165,10 +185,9 @@ def with_params(table: TableSpec, values: dict[str, float]) -> TableSpec:
 
 
 def preset_of(speed: float) -> str:
-    """The preset a logged speed belongs to: its published band, soft counted as slow and
-    break as power."""
-    name = shots.speed_name(speed)
-    return {"soft": "slow", "break": "power"}.get(name, name)
+    """The named stroke a logged speed belongs to (shots.speed_name: the band between the
+    neighbouring presets; below the slowest counts as slow, above the hardest as power)."""
+    return shots.speed_name(speed)
 
 
 # ----- results -----------------------------------------------------------------------------------
@@ -338,8 +357,14 @@ class Calibration:
             ) from None
 
     # ----- words -------------------------------------------------------------------------------
-    def sentences(self) -> list[str]:
-        """The calibration in a player's words, most useful first."""
+    def sentences(self, table: TableSpec | None = None) -> list[str]:
+        """The calibration in a player's words, most useful first.
+
+        ``table`` is the table as it is without this calibration (default: the built-in table of
+        that name, if there is one); the player's speeds are also said in lengths of travel on
+        the calibrated table (shots.travel_lengths), beside the book's lengths of each name
+        (shots.STROKE_LENGTHS)."""
+        here = self._words_table(table)
         out: list[str] = []
         head = f"Calibrated from {self.attempts} attempts"
         if self.outliers:
@@ -366,16 +391,17 @@ class Calibration:
             )
         for e in self.speeds:
             book = shots.SPEED_PRESETS[e.name]
+            travel = _travel_words(here, e.value, shots.STROKE_LENGTHS[e.name])
             if abs(e.value - book) < max(e.sd, 0.02 * book):
                 out.append(
                     f"Your {e.name} is about the book's: {e.value:.2f} +- {e.sd:.2f} m/s "
-                    f"(book {book:.2f})."
+                    f"(book {book:.2f}){travel}."
                 )
                 continue
             way = "harder" if e.value > book else "softer"
             out.append(
                 f"Your {e.name} is {e.value:.2f} +- {e.sd:.2f} m/s, {way} than the book's "
-                f"{book:.2f} m/s."
+                f"{book:.2f} m/s{travel}."
             )
         for e in self.params:
             words = PARAM_WORDS[e.name]
@@ -391,6 +417,33 @@ class Calibration:
                 f"{e.prior:.3g}{extra}."
             )
         return out
+
+    def _words_table(self, table: TableSpec | None) -> TableSpec | None:
+        """The calibrated table to say lengths of travel on, or None when it is not known."""
+        if table is None:
+            from .table import builtin_table  # noqa: PLC0415
+
+            try:
+                table = builtin_table(self.table)
+            except ValueError:
+                return None
+        try:
+            return self.apply(table)
+        except ValueError:
+            return None
+
+
+def _travel_words(table: TableSpec | None, speed: float, book_lengths: float) -> str:
+    """``; on this table it travels about 3.4 lengths (the book's: 3)``, or "" without a table."""
+    if table is None:
+        return ""
+    try:
+        lengths = shots.travel_lengths(table, speed)
+    except ValueError:
+        return ""
+    if not math.isfinite(lengths):
+        return ""
+    return f"; on this table it travels about {lengths:.1f} lengths (the book's: {book_lengths:g})"
 
 
 def _cap(s: str) -> str:
@@ -827,13 +880,14 @@ def fit(
     is the signed landing error (diamonds round the table) of attempt i with the aim the player
     used, rho the Cauchy loss (Holland and Welsch 1977) and s the robust noise scale (MAD of
     the residuals, re-estimated between rounds). Gaussian priors come from the published
-    ranges (PRIOR_SD); speeds are fitted in log m/s. The minimiser is Levenberg-Marquardt
-    (K. Levenberg 1944, D. Marquardt 1963) on iteratively reweighted least squares, with a
-    finite-difference Jacobian taken afresh after every accepted step, from the best of a small
-    grid of starts. The search stops after ``max_iter`` steps or ``max_evals`` model runs per
-    attempt, whichever comes first, so a fit on a few hundred attempts takes seconds.
-    Uncertainties are the square roots of the diagonal
-    of the inverse Gauss-Newton Hessian of the MAP objective (a Laplace approximation).
+    ranges where there are any and from stated judgements otherwise (PRIOR_SD,
+    RESTITUTION_PRIOR_SD, SPEED_PRIOR_FACTOR); speeds are fitted in log m/s. The minimiser is
+    Levenberg-Marquardt (K. Levenberg 1944, D. Marquardt 1963) on iteratively reweighted least
+    squares, with a finite-difference Jacobian taken afresh after every accepted step, from the
+    best of a small grid of starts. The search stops after ``max_iter`` steps or ``max_evals``
+    model runs per attempt, whichever comes first, so a fit on a few hundred attempts takes
+    seconds. Uncertainties are the square roots of the diagonal of the inverse Gauss-Newton
+    Hessian of the MAP objective (a Laplace approximation).
 
     ``table`` gives the geometry the attempts were made on; ``prior_table`` (default
     ``table``) the cloth and cushion values the priors are centred on; ``prior_speeds`` the

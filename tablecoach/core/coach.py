@@ -3,8 +3,8 @@
 A zone is a cell of the travelling ball's start position (the cue ball for kicks, the object ball
 for banks) on a grid of 2 x 1 diamonds: ``ZONE_COLS`` = 4 columns along the table (x 0-2, 2-4,
 4-6, 6-8 diamonds from the head rail) and ``ZONE_ROWS`` = 4 rows across it (y 0-1, ..., 3-4
-diamonds from the left rail), 16 cells in all, for one family and one speed band (the published
-bands of ``shots.speed_name``). See docs/coach.md.
+diamonds from the left rail), 16 cells in all, for one family and one speed band (the named
+strokes of ``shots.speed_name``: slow, lag, medium, fast, power). See docs/coach.md.
 
 Make rates are Beta-binomial posteriors (W. R. Thompson 1933 samples from them to trade
 exploration against exploitation), each zone's prior centred on its family's own rate so that a
@@ -43,7 +43,7 @@ class Zone:
     """A cell of the travelling ball's start, for one family and speed band.
 
     ``col`` 0..ZONE_COLS-1 counts 2-diamond strips from the head rail; ``row`` 0..ZONE_ROWS-1
-    counts 1-diamond strips from the left rail; ``speed`` is a band name (slow, medium, ...).
+    counts 1-diamond strips from the left rail; ``speed`` is a band name (slow, lag, medium, ...).
     """
 
     family: str

@@ -307,18 +307,23 @@ def _item(ctx: _Ctx, k: int, raw: Any) -> DrillItem:
             or (isinstance(s, int) and abs(s) > 1000)
             or (isinstance(s, str) and len(s) > validate.MAX_NUMBER_CHARS)
         ):
-            got = validate.show(s)
-            raise ctx.fail([*path, "speeds"], f"has {got}: use {', '.join(SPEED_PRESETS)} or m/s")
+            raise ctx.fail(
+                [*path, "speeds"],
+                f"has {validate.show(s)}: use {', '.join(SPEED_PRESETS)}, lengths or m/s",
+            )
         try:
             v = parse_speed(s)
         except ShotError as exc:
             raise ctx.fail([*path, "speeds"], f"has a bad speed: {exc}") from None
         speeds.append(v)
-        names.append(
-            s.strip().lower()
-            if isinstance(s, str) and s.strip().lower() in SPEED_PRESETS
-            else f"{v:g} m/s"
-        )
+        key = s.strip().lower() if isinstance(s, str) else ""
+        if key in SPEED_PRESETS:
+            names.append(key)
+        elif isinstance(s, str) and key.replace(" ", "").endswith(("l", "length", "lengths")):
+            names.append(key.replace(" ", "").removesuffix("lengths").removesuffix("length"))
+            names[-1] = names[-1].removesuffix("l") + "L"
+        else:
+            names.append(f"{v:g} m/s")
     weight = _num(ctx, [*path, "weight"], raw.get("weight", 1.0))
     if weight <= 0:
         raise ctx.fail([*path, "weight"], f"= {weight:g} must be above 0")
@@ -574,6 +579,11 @@ def deal(
     if not blocked:
         slots = [slots[i] for i in rng.permutation(len(slots))]
     return [_draw(table, drill, k, rng) for k in slots]
+
+
+def deal_item(table: TableSpec, drill: Drill, k: int, rng: np.random.Generator) -> Dealt:
+    """One clean setup of the pack's item ``k`` (as ``deal`` draws them)."""
+    return _draw(table, drill, k, rng)
 
 
 def sample_setups(table: TableSpec, drill: Drill, rng: np.random.Generator, n: int) -> list[Dealt]:

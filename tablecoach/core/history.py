@@ -836,11 +836,12 @@ def weeks_from_day_numbers(
 
 
 def _speed_bands(speed: np.ndarray) -> np.ndarray:
-    """``shots.speed_name`` of each speed, vectorised (same published bands, same edges)."""
+    """``shots.speed_name`` of each speed, vectorised (same bands, same edges: below the
+    slowest band counts as its stroke, above the hardest, or not a number, as the hardest)."""
     names = list(SPEED_BANDS)
     conds = [(speed >= lo) & (speed < hi) for lo, hi in SPEED_BANDS.values()]
     lowest = SPEED_BANDS[names[0]][0]
-    return np.select(conds + [speed < lowest], names + ["soft"], "break")
+    return np.select(conds + [speed < lowest], names + [names[0]], names[-1])
 
 
 def grid_from_zones(

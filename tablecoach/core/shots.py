@@ -30,7 +30,7 @@ from .geometry import (
     unit,
 )
 from .records import ShotRecord
-from .table import RAILS, G, Pocket, RailName, TableError, TableSpec, check_rail
+from .table import RAILS, Pocket, RailName, TableError, TableSpec, check_rail
 
 Travel = Literal["cue", "object"]
 
@@ -110,22 +110,44 @@ def preset(name: str) -> Family:
 
 # ----- strokes -----------------------------------------------------------------------------
 
-SPEED_PRESETS: dict[str, float] = {
-    "slow": 0.67,
-    "medium": 1.40,
-    "fast": 2.55,
-    "power": 3.85,
+STROKE_LENGTHS: dict[str, float] = {
+    "slow": 1.5,
+    "lag": 2.0,
+    "medium": 3.0,
+    "fast": 3.75,
+    "power": 4.25,
 }
-"""Cue-ball speed off the tip in m/s: the middle of each band on D. Alciatore's "typical shot
-speeds" page (slow 0.45-0.89, medium 0.89-1.9, fast 1.9-3.2, power 3.2-4.5 m/s)."""
+"""Named strokes as players say them: table lengths of travel up and down the table, cushions
+counted, of a centre-ball stroke (physics/travel.py). Common practice, no single source: a lag
+is one length up and back (2 lengths); a relaxed, ordinary stroke travels about 3 lengths, which
+is our ``medium``; ``slow`` just carries past the far rail; ``fast`` and ``power`` step up by
+three quarters and half a length, because end cushions take more of a hard ball's speed
+(docs/model.md argues the names and lengths)."""
 
-SPEED_BANDS: dict[str, tuple[float, float]] = {
-    "slow": (0.45, 0.89),
-    "medium": (0.89, 1.9),
-    "fast": (1.9, 3.2),
-    "power": (3.2, 4.5),
+SPEED_PRESETS: dict[str, float] = {
+    "slow": 1.185,
+    "lag": 1.483,
+    "medium": 2.392,
+    "fast": 3.458,
+    "power": 4.352,
 }
-"""The published bands themselves (Alciatore, "typical shot speeds")."""
+"""Cue-ball speed off the tip (m/s) of each named stroke on the default 9-ft table at the
+default cloth and cushion (``stroke_speed`` computes it for any table; a test keeps these in
+step with it). For reference, D. Alciatore's "typical shot speeds" bands: slow 0.45-0.89,
+medium 0.89-1.9, fast 1.9-3.2, power 3.2-4.5 m/s: a lag falls in his medium band and an
+ordinary 3-length stroke in his fast band."""
+
+
+def _bands() -> dict[str, tuple[float, float]]:
+    names = list(SPEED_PRESETS)
+    speeds = [SPEED_PRESETS[n] for n in names]
+    edges = [0.1] + [math.sqrt(a * b) for a, b in zip(speeds, speeds[1:], strict=False)] + [13.0]
+    return {n: (edges[i], edges[i + 1]) for i, n in enumerate(names)}
+
+
+SPEED_BANDS: dict[str, tuple[float, float]] = _bands()
+"""The m/s range filed under each named stroke (edges at the geometric mean of neighbours) on
+the default table: history and the coach group attempts by it."""
 
 
 @dataclass(frozen=True, slots=True)
@@ -141,44 +163,92 @@ class Stroke:
     follow: float = 0.0
 
 
-def parse_speed(text: str | float) -> float:
-    """A preset name or a number of m/s to m/s (0.1 to 13 m/s, the published break speed)."""
+def stroke_speed(table: TableSpec, lengths: float | str) -> float:
+    """The cue-ball speed (m/s) of a stroke of ``lengths`` of travel (or a stroke name) on this
+    table, by the physical model (physics/travel.py)."""
+    from .physics.params import model_of  # noqa: PLC0415  (lazy: physics is heavy)
+    from .physics.travel import speed_for_lengths  # noqa: PLC0415
+
+    if isinstance(lengths, str):
+        lengths = STROKE_LENGTHS[lengths]
+    try:
+        return speed_for_lengths(model_of(table), table, float(lengths))
+    except ValueError as exc:
+        raise ShotError(str(exc)) from None
+
+
+def book_strokes(table: TableSpec) -> dict[str, float]:
+    """Each named stroke's m/s on this table (the cached ``SPEED_PRESETS`` on the default)."""
+    if table == _default_table():
+        return dict(SPEED_PRESETS)
+    return {n: stroke_speed(table, n) for n in STROKE_LENGTHS}
+
+
+def travel_lengths(table: TableSpec, speed: float) -> float:
+    """Lengths of travel, cushions counted, of a centre-ball stroke at ``speed`` m/s on this
+    table (physics/travel.py)."""
+    from .physics.params import model_of  # noqa: PLC0415  (lazy: physics is heavy)
+    from .physics.travel import lengths_for_speed  # noqa: PLC0415
+
+    return lengths_for_speed(model_of(table), table, speed)
+
+
+def _lengths_text(text: str) -> float | None:
+    """``3L``, ``3.5 L``, ``3 lengths`` -> 3.0; None when the text is not in lengths."""
+    t = text.strip().lower().replace(" ", "")
+    for suffix in ("lengths", "length", "l"):
+        if t.endswith(suffix):
+            try:
+                return float(t.removesuffix(suffix))
+            except ValueError:
+                return None
+    return None
+
+
+def parse_speed(text: str | float, table: TableSpec | None = None) -> float:
+    """A stroke name, lengths of travel (``3L``) or a number of m/s to m/s (0.1 to 13 m/s, the
+    published break speed). Names and lengths are turned into m/s for ``table`` (the default
+    9-ft table's figures when None)."""
+    names = ", ".join(SPEED_PRESETS)
     if isinstance(text, int | float):
         v = float(text)
     else:
         key = text.strip().lower()
         if key in SPEED_PRESETS:
-            return SPEED_PRESETS[key]
+            return SPEED_PRESETS[key] if table is None else book_strokes(table)[key]
+        lengths = _lengths_text(key)
+        if lengths is not None:
+            if not (math.isfinite(lengths) and 0.2 <= lengths <= 6.0):
+                raise ShotError(f"speed {text!r}: give 0.2 to 6 table lengths of travel")
+            return stroke_speed(table or _default_table(), lengths)
         try:
             v = float(key.removesuffix("m/s").strip())
         except ValueError:
             raise ShotError(
-                f"speed {text!r} is not a number of m/s or one of {', '.join(SPEED_PRESETS)}"
+                f"speed {text!r} is not a stroke ({names}), lengths of travel such as 3L, "
+                "or a number of m/s"
             ) from None
-    if not (0.1 <= v <= 13.0):
+    if not (math.isfinite(v) and 0.1 <= v <= 13.0):
         raise ShotError(f"speed {v:g} m/s is outside 0.1 to 13 m/s")
     return v
 
 
-def speed_name(speed: float) -> str:
-    """The published band a speed falls in ('soft' below slow, 'break' above power)."""
+def _default_table() -> TableSpec:
+    from .table import DEFAULT_TABLE, builtin_table  # noqa: PLC0415
+
+    return builtin_table(DEFAULT_TABLE)
+
+
+def speed_name(speed: float, table: TableSpec | None = None) -> str:
+    """The named stroke nearest this speed: by lengths of travel on ``table`` when given, else
+    by the default table's bands (``SPEED_BANDS``)."""
+    if table is not None:
+        lengths = math.log(max(travel_lengths(table, speed), 1e-6))
+        return min(STROKE_LENGTHS, key=lambda n: abs(math.log(STROKE_LENGTHS[n]) - lengths))
     for name, (lo, hi) in SPEED_BANDS.items():
         if lo <= speed < hi:
             return name
-    return "soft" if speed < SPEED_BANDS["slow"][0] else "break"
-
-
-def travel_lengths(table: TableSpec, speed: float) -> float:
-    """Table lengths a centre-hit cue ball would roll on open cloth at this speed, no cushions.
-
-    A stun start slides 12 v^2 / (49 mu_s g) and then rolls at 5/7 v, stopping after
-    (5/7 v)^2 / (2 mu_r g) (PHYSICS.md 2, after Alciatore TP 4.1 and Coriolis): the sum divided
-    by the table's length. Instructors state speed this way (Alciatore TP B.6).
-    """
-    mu_s, mu_r = table.cloth.mu_slide, table.cloth.mu_roll
-    slide = 12.0 * speed * speed / (49.0 * mu_s * G)
-    roll = (5.0 / 7.0 * speed) ** 2 / (2.0 * mu_r * G)
-    return (slide + roll) / table.length
+    return "slow" if speed < SPEED_BANDS["slow"][0] else "power"
 
 
 # ----- setups ------------------------------------------------------------------------------
@@ -749,40 +819,49 @@ class StopsShort(ShotError):
     """At this speed the travelling ball stops before it reaches the target."""
 
 
-def _stops_short(exc: ShotError) -> bool:
-    return isinstance(exc, StopsShort)
-
-
 def solve_playable(
-    table: TableSpec, setup: Setup, stroke: Stroke | None = None, model: str = "ideal"
+    table: TableSpec,
+    setup: Setup,
+    stroke: Stroke | None = None,
+    model: str = "ideal",
+    strokes: dict[str, float] | None = None,
 ) -> tuple[Aim, str]:
-    """Solve at the asked speed; if the ball would stop short, at the next firmer preset.
+    """Solve at the asked speed; if the ball would stop short, at the softest firmer named
+    stroke that makes it (``strokes``: name -> m/s, default this table's book strokes).
 
     Returns the aim (its ``stroke`` is the speed to play) and a note for the player, empty when
-    the asked speed works. Raises the first error when no firmer preset reaches either, or when
-    the failure is not one of pace.
+    the asked speed works. Raises the first error when the failure is not one of pace, or when
+    no firmer stroke makes the shot either (saying what stops the firmer ones).
     """
     stroke = stroke or Stroke()
     try:
         return solve_aim(table, setup, stroke, model), ""
-    except ShotError as exc:
-        if not _stops_short(exc):
-            raise
-        first = exc
-    for name, v in SPEED_PRESETS.items():
-        if v <= stroke.speed:
+    except StopsShort as exc:
+        first: ShotError = exc
+    if strokes is None:
+        strokes = book_strokes(table)
+    later: ShotError | None = None
+    for name, v in strokes.items():
+        if v <= stroke.speed * 1.001:
             continue
         try:
             aim = solve_aim(table, setup, Stroke(v, stroke.english, stroke.follow), model)
         except ShotError as exc:
-            if _stops_short(exc):
-                continue
-            raise first from None
-        note = f"at {speed_name(stroke.speed)} pace the ball stops short: play it {name}"
-        if name == "power":
+            if not isinstance(exc, StopsShort):
+                later = later or exc
+            continue
+        note = f"at {speed_name(stroke.speed, table)} pace the ball stops short: play it {name}"
+        if v > POWER_CAUTION:
             note += " (keep the line of the shot clear of people)"
         return aim, note
+    if later is not None:
+        raise ShotError(f"{first}; played firmer: {later}") from None
     raise first
+
+
+POWER_CAUTION = 3.2
+"""Cue-ball speed (m/s) from which the card adds a word of caution: the top of Alciatore's
+published fast band ("typical shot speeds"); above it balls can leave the table."""
 
 
 def predict(

@@ -48,13 +48,18 @@ class TableError(ValueError):
 class Cloth:
     """Ball-on-cloth parameters.
 
-    Defaults are the typical values in D. Alciatore, "pool and billiards physics resources"
-    (Colorado State University): sliding friction 0.2 (range 0.15-0.4), rolling resistance 0.01
-    (0.005-0.015), spin deceleration about the vertical 10 rad/s^2 (5-15).
+    Sliding friction 0.2 and spin deceleration about the vertical 10 rad/s^2 are the typical
+    values in D. Alciatore, "pool and billiards physics resources" (Colorado State University;
+    ranges 0.15-0.4 and 5-15); S. Mathavan et al. (Am. J. Phys. 2009) measured 0.18-0.24 on
+    snooker cloth and Mathavan, Jackson and Parkin (2010) used 0.212. Rolling resistance 0.007
+    sits inside Alciatore's published range 0.005-0.015, toward the fast end that worsted pool
+    cloth plays at (common practice, no source); with it a lag, two lengths of travel, takes
+    1.48 m/s, inside Alciatore's published medium band (docs/model.md). Calibration fits all
+    three per table.
     """
 
     mu_slide: float = 0.2
-    mu_roll: float = 0.01
+    mu_roll: float = 0.007
     spin_decel: float = 10.0
 
 
@@ -63,14 +68,17 @@ class Cushion:
     """Ball-cushion parameters.
 
     ``restitution`` is the energetic coefficient of the Mathavan, Jackson and Parkin (2010)
-    impact model (their snooker value is 0.98). The default 0.75 gives a centre-speed ratio of
-    0.75 for a perpendicular rolling hit in both cushion models (docs/model.md), Alciatore's
-    typical ball-rail restitution (range 0.6-0.9). ``friction`` is the
-    ball-cushion sliding friction (Mathavan et al.: 0.14). ``ball_ball_restitution`` and
-    ``ball_ball_friction`` are Alciatore's typical 0.95 and 0.06.
+    impact model, which also follows the ball's spin through the impact: 0.98 is the only value
+    published inside that model (their fit to measured rebounds, snooker cushions). It is not
+    the 0.6-0.9 "ball-rail restitution" of Alciatore's lists, which is an observed ratio of
+    centre speeds before and after: an outcome the model reproduces (a perpendicular rolling hit
+    keeps 0.62 of its speed once it rolls again, "loses about half", Alciatore's cushion
+    efficiency page; docs/model.md). ``friction`` is the ball-cushion sliding friction
+    (Mathavan et al.: 0.14). ``ball_ball_restitution`` and ``ball_ball_friction`` are
+    Alciatore's typical 0.95 and 0.06. Calibration moves restitution and friction per table.
     """
 
-    restitution: float = 0.75
+    restitution: float = 0.98
     friction: float = 0.14
     ball_ball_restitution: float = 0.95
     ball_ball_friction: float = 0.06

@@ -65,9 +65,8 @@ def describe_aim(table: Any, aim: Any, conv: Any = None) -> list[tuple[str, str]
     rows.append(
         (
             "speed",
-            f"{speed_name(st.speed)} ({st.speed:.2f} m/s, about "
-            f"{travel_lengths(table, st.speed):.1f} table lengths); "
-            + (", ".join(spin) if spin else "centre ball"),
+            f"{speed_name(st.speed, table)}: {travel_lengths(table, st.speed):.1f} lengths of "
+            f"travel, {st.speed:.2f} m/s; " + (", ".join(spin) if spin else "centre ball"),
         )
     )
     if aim.cut_angle is not None:

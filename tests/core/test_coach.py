@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from datetime import UTC, datetime
 
 import numpy as np
@@ -13,9 +14,11 @@ from tablecoach.core.records import Attempt, ShotRecord
 from tablecoach.core.table import builtin_table
 
 T9 = builtin_table("9ft")
+MEDIUM = shots.SPEED_PRESETS["medium"]
+"""A medium stroke as the app deals and logs it: the book's m/s of 3 lengths of travel."""
 
 
-def _attempt(family: str, start: tuple[float, float], hit: bool, speed: float = 1.4) -> Attempt:
+def _attempt(family: str, start: tuple[float, float], hit: bool, speed: float = MEDIUM) -> Attempt:
     fam = shots.PRESETS[family]
     if fam.travel == "object":
         shot = ShotRecord("object", fam.rails, (1.0, 1.0), start, fam.pocket, None, family)
@@ -57,12 +60,23 @@ def test_far_edges_belong_to_the_last_cell() -> None:
 
 def test_zone_of_uses_the_travelling_ball_and_speed_band() -> None:
     bank = ShotRecord("object", ("right",), (1.0, 0.5), (5.0, 1.5), "foot-left", None, "cbk")
-    z = coach.zone_of(bank, 1.4)
+    z = coach.zone_of(bank, MEDIUM)
     assert (z.col, z.row, z.speed) == (2, 1, "medium")
     assert z.label == "cbk x 4-6 y 1-2 medium"
     kick = ShotRecord("cue", ("right",), (1.0, 0.5), None, None, (6.0, 2.0), "k")
-    # 2.55 m/s lies in Alciatore's "fast" band 1.9-3.2 m/s
-    assert coach.zone_of(kick, 2.55) == coach.Zone("k", 0, 0, "fast")
+    # A fast stroke is 3.75 lengths of travel (shots.STROKE_LENGTHS: common practice, no
+    # source); its m/s on the default table comes from the physical model (shots.stroke_speed).
+    fast = shots.stroke_speed(T9, "fast")
+    assert coach.zone_of(kick, fast) == coach.Zone("k", 0, 0, "fast")
+    # A band's edge is the geometric mean of its neighbours' speeds (shots.SPEED_BANDS): a
+    # speed just above medium's and fast's geometric mean is fast, just below it medium.
+    edge = math.sqrt(shots.stroke_speed(T9, "medium") * fast)
+    assert coach.zone_of(kick, 1.001 * edge).speed == "fast"
+    assert coach.zone_of(kick, 0.999 * edge).speed == "medium"
+    # 2.55 m/s, a fast stroke in Alciatore's published bands (1.9-3.2 m/s), travels about
+    # 3.1 lengths here (physics/travel.py): nearer the 3 of a medium than the 3.75 of a fast.
+    assert abs(shots.travel_lengths(T9, 2.55) - 3.0) < abs(shots.travel_lengths(T9, 2.55) - 3.75)
+    assert coach.zone_of(kick, 2.55).speed == "medium"
 
 
 def test_describe_is_in_a_players_words() -> None:
@@ -134,7 +148,7 @@ def _sampler(table, drill, rng, n):  # type: ignore[no-untyped-def]
             s = shots.make_setup(table, KICK, cue, None, None, tb)
         except ValueError:
             continue
-        out.append(_Dealt(s, shots.Stroke(1.4)))
+        out.append(_Dealt(s, shots.Stroke(MEDIUM)))
     return out
 
 
@@ -160,7 +174,7 @@ def _play(sch: coach.Scheduler, n: int, seed: int) -> list[coach.Choice]:
                 "ann",
                 "9ft",
                 rec,
-                1.4,
+                MEDIUM,
                 0.0,
                 0.0,
                 "right",

@@ -12,7 +12,15 @@ from scipy.stats import binomtest
 
 from tablecoach.core import history as h
 from tablecoach.core.records import Attempt, ShotRecord
-from tablecoach.core.shots import direction_of, make_setup, preset, solve_ideal, trace_ideal
+from tablecoach.core.shots import (
+    SPEED_BANDS,
+    SPEED_PRESETS,
+    direction_of,
+    make_setup,
+    preset,
+    solve_ideal,
+    trace_ideal,
+)
 from tablecoach.core.table import builtin_table
 
 
@@ -26,7 +34,8 @@ def att(when, result="hit", family="one-rail-kick", session=1, player="ann", **k
         player=player,
         table="9ft",
         shot=shot,
-        speed=1.4,
+        # a medium stroke as the app logs it: the book's m/s of 3 lengths of travel
+        speed=SPEED_PRESETS["medium"],
         english=0.0,
         follow=0.0,
         aim_rail="right",
@@ -343,11 +352,24 @@ def test_local_days_match_local_date(zone):
 
 
 def test_speed_bands_match_speed_name():
-    from tablecoach.core.shots import SPEED_BANDS, speed_name
+    from tablecoach.core.shots import speed_name
 
     edges = [v for band in SPEED_BANDS.values() for v in band]
-    speeds = np.array(edges + [0.1, 0.3, 1.0, 2.2, 4.0, 5.0, 12.0] + [e - 1e-9 for e in edges])
-    assert list(h._speed_bands(speeds)) == [speed_name(float(s)) for s in speeds]
+    # inside every band, on and just below every edge, and outside them all (below 0.1 m/s,
+    # above 13 m/s, not a number)
+    speeds = np.array(
+        edges
+        + [0.05, 0.1, 0.3, 1.0, 2.2, 4.0, 5.0, 12.0, 14.0, math.nan]
+        + list(SPEED_PRESETS.values())
+        + [e - 1e-9 for e in edges]
+    )
+    got = list(h._speed_bands(speeds))
+    assert got == [speed_name(float(s)) for s in speeds]
+    assert set(got) == set(SPEED_PRESETS)  # every band is a named stroke, none other
+
+
+SPEEDS = [0.05, *SPEED_PRESETS.values(), *(lo for lo, _ in SPEED_BANDS.values()), 14.0]
+"""The named strokes' m/s, every band's lower edge, and speeds outside all bands."""
 
 
 def random_attempts(n, seed):
@@ -371,7 +393,7 @@ def random_attempts(n, seed):
                 session=int(rng.integers(1, 30)) if rng.random() < 0.9 else None,
                 player=["ann", "bo"][int(rng.integers(0, 2))],
                 shot=shot,
-                speed=float(rng.choice([0.5, 0.89, 1.4, 1.9, 2.6, 3.9, 4.6])),
+                speed=float(rng.choice(SPEEDS)),
                 landing_at=float(rng.uniform(0, 8)),
             )
         )

@@ -79,9 +79,12 @@ def test_a_reading_beyond_the_sights_is_logged_at_the_rail_end(session):
 
 def test_next_speed_cycles_the_presets(session):
     session.deal()
-    seen = [session.next_speed()[0] for _ in range(4)]
+    n = len(shots.SPEED_PRESETS)
+    seen = [session.next_speed()[0] for _ in range(n)]
     assert sorted(seen) == sorted(shots.SPEED_PRESETS)
     assert session.stroke.speed == shots.SPEED_PRESETS[seen[-1]]
+    # one more press comes back round to the first named stroke seen
+    assert session.next_speed()[0] == seen[0]
 
 
 def test_the_stores_only_player_is_the_default(data_env):

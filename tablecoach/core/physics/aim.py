@@ -32,9 +32,24 @@ from .roots import first_quadratic_root
 from .simulate import SimResult, _evolve_moving, sample_path, simulate
 from .stick import StrokeError, check_offset, stick_hit
 
-GRID = 40
-"""Readings in the first pass, spread over +-HALF_WINDOW rail diamonds around the ideal."""
-HALF_WINDOW = 2.5
+RIGID_LIMIT = 2.5
+"""Speed square to a cushion (m/s) up to which the rigid-cushion impact model was shown to
+hold (Mathavan, Jackson and Parkin 2010, abstract: "the limiting normal velocity under which
+the rigid cushion assumption is valid is 2.5 m/s")."""
+
+
+def rigid_note(vn: float) -> str:
+    """The player's note for a cushion met faster than RIGID_LIMIT square to it."""
+    return (
+        f"a cushion is met at {vn:.1f} m/s square to it, past the {RIGID_LIMIT:g} m/s the "
+        "cushion model is proven to: the aim is less certain there"
+    )
+
+
+GRID_STEP = 0.125
+"""Spacing (rail diamonds) of the first pass, which covers every reading along the first rail
+(a quarter diamond beyond each end), so a shot whose aim lies far from the mirror line is still
+found; the sign change nearest the ideal reading is taken."""
 REFINE = 15
 """Interior points per bracket in the refining pass."""
 REFINE_EDGE = 47
@@ -316,8 +331,10 @@ def _solve(
     """
     P = pr.start.shape[0]
     unit = table.rail_unit(pr.rail)
-    offs = np.linspace(-HALF_WINDOW, HALF_WINDOW, GRID) * unit
-    grid = pr.centre[:, None] + offs[None, :]
+    span = 8.0 if pr.rail in ("left", "right") else 4.0
+    offs = np.arange(-0.25, span + 0.25 + 1e-9, GRID_STEP) * unit
+    GRID = offs.size
+    grid = np.broadcast_to(offs, (P, GRID)).copy()
     pi = np.repeat(np.arange(P), GRID)
     res, _ = _run(m, table, pr, pi, grid.ravel(), stroke, lean=True)
     mv = res.miss.reshape(P, GRID)
@@ -655,7 +672,7 @@ def predict_physical(
     setup: Setup,
     stroke: Stroke,
     reading: float,
-    cushion: CushionModel = "impulse",
+    cushion: CushionModel = "stepped",
 ) -> Trace:
     """Where a reading (metres along the first rail's line of sights) takes the travelling ball
     under the physical model: the same meaning as shots.trace_ideal."""
@@ -668,8 +685,77 @@ def predict_physical(
     return tr
 
 
+_SHORT, _POCKET, _BALL, _TARGET_FIRST, _OFF, _PASSES = range(6)
+_WHY = {
+    _SHORT: "the lines that would reach the target stop short",
+    _POCKET: "the lines that would reach the target drop in a pocket or rattle in its jaws",
+    _BALL: "another ball stands in the way of the lines that would reach the target",
+    _TARGET_FIRST: "the target ball stands in the way of the rails",
+    _OFF: "the lines that would reach the target leave the order of the rails",
+    _PASSES: "no line at this stroke and spin reaches the target",
+}
+
+
+def _why_nothing_scores(m: BallModel, table: TableSpec, pr: _Problems, stroke: Stroke) -> ShotError:
+    """Why no reading along the first rail scores, in a player's words, with the nearest
+    reading that comes close: every reading of the first pass is run to its end and sorted
+    into what stopped it; the reason given is what stops the readings next to the nearest one
+    on the side where it would come closer (StopsShort when that is pace)."""
+    fam = pr.setups[0].family
+    nf = len(fam.rails)
+    unit = table.rail_unit(pr.rail)
+    span = 8.0 if pr.rail in ("left", "right") else 4.0
+    grid = np.arange(-0.25, span + 0.25 + 1e-9, GRID_STEP) * unit
+    res, ln = _run(m, table, pr, np.zeros(grid.size, dtype=np.int64), grid, stroke)
+    v = f"{stroke.speed:.2f} m/s under the physical model"
+    reach = ln.ok & (res.hits[:, 0] == RAILS.index(pr.rail))
+    stopped = ~np.isnan(res.stop_pos[:, 0]) & (res.ball < 0) & (res.pocket < 0)
+    stopped &= res.landing_rail < 0
+    if not np.count_nonzero(reach):
+        if np.count_nonzero(ln.ok & stopped):
+            return StopsShort(
+                f"no reading scores at {v}: the ball stops before the {pr.rail} rail; "
+                "try a firmer stroke"
+            )
+        why = "no line reaches the first rail"
+        if pr.bank and not np.count_nonzero(ln.ok):
+            why = "the cue ball cannot send the object ball to that rail"
+        return ShotError(f"no reading scores at {v}: {why}")
+    kind = np.full(grid.size, _OFF)
+    kind[res.order_ok & (res.ball < 0) & (res.pocket < 0)] = _PASSES
+    kind[res.pocket >= 0] = _POCKET
+    kind[res.ball > 0] = _BALL
+    kind[(res.ball == 0) & (res.ball_walls < nf)] = _TARGET_FIRST
+    kind[stopped] = _SHORT
+    finite = reach & (kind == _PASSES) & np.isfinite(res.miss)
+    if not np.count_nonzero(finite):
+        counts = np.bincount(kind[reach], minlength=len(_WHY))
+        k = int(np.argmax(counts))
+        if k == _SHORT:
+            return StopsShort(f"no reading scores at {v}: {_WHY[k]}; try a firmer stroke")
+        return ShotError(f"no reading scores at {v}: {_WHY[k]}")
+    j = int(np.flatnonzero(finite)[np.argmin(np.abs(res.miss[finite]))])
+    # the neighbour on the side where the miss would shrink, or the one that is not a plain pass
+    side = [i for i in (j - 1, j + 1) if 0 <= i < grid.size]
+    closer = [i for i in side if not finite[i]]
+    if len(closer) == 2:
+        k = _SHORT if _SHORT in kind[closer] else int(kind[closer[0]])
+    elif closer:
+        k = int(kind[closer[0]])
+    else:
+        k = _PASSES
+    miss = abs(float(res.miss[j])) / table.diamond
+    near = (
+        f"; nearest: {ln.reading[j] / unit:.2f} on the {pr.rail} rail sights passes "
+        f"{miss:.2f} diamond from the target"
+    )
+    if k == _SHORT:
+        return StopsShort(f"no reading scores at {v}: {_WHY[k]}; try a firmer stroke")
+    return ShotError(f"no reading scores at {v}: {_WHY[k]}{near}")
+
+
 def solve_physical(
-    table: TableSpec, setup: Setup, stroke: Stroke, cushion: CushionModel = "impulse"
+    table: TableSpec, setup: Setup, stroke: Stroke, cushion: CushionModel = "stepped"
 ) -> Aim:
     """The reading whose simulated path touches the family's rails in order and reaches the
     target, with the window of readings that still score (margin_minus/plus, metres).
@@ -682,18 +768,17 @@ def solve_physical(
     sol = _solve(m, table, pr, stroke, margins=True, final=True)[0]
     rail = pr.rail
     pi1 = np.zeros(1, dtype=np.int64)
-    if sol.reading is None:
-        res, ln = _run(m, table, pr, pi1, pr.centre[:1], stroke, record=False)
-        _, why = _trace_of(m, table, pr, res, ln)
-        hint = "; try a firmer stroke" if "stops" in why else ""
-        err = StopsShort if "stops" in why else ShotError
-        raise err(
-            f"no reading scores at {stroke.speed:.2f} m/s under the physical model: "
-            f"on the mirror line the ball {why}{hint}"
-        )
-    fast = _read_off(m, table, pr, sol)
+    if sol.reading is None and (sol.scores is None or not sol.scores.any()):
+        raise _why_nothing_scores(m, table, pr, stroke)
+    fast = _read_off(m, table, pr, sol) if sol.reading is not None else None
     edge_readings: np.ndarray | None = None
-    if fast is not None:
+    if sol.reading is None:
+        # readings score but the miss never changes sign (a target ball close to a rail hides
+        # one side): aim at the middle of the scoring window nearest the mirror reading
+        tr = Trace((), (), None, False, "no sign change", ())
+        landing_fast = None
+        ln = _launch(m, table, pr, pi1, pr.centre[:1], stroke)
+    elif fast is not None:
         tr, landing_fast = fast
         # the root and the two window ends in one launch (rows are independent)
         assert sol.lo is not None and sol.hi is not None
@@ -711,7 +796,9 @@ def solve_physical(
         tr, why = _trace_of(m, table, pr, res, ln)
         landing_fast = None
     if not tr.scores:
-        win = _window(m, table, pr, stroke, sol, sol.reading)
+        win = _window(
+            m, table, pr, stroke, sol, float(pr.centre[0]) if sol.reading is None else sol.reading
+        )
         if win is None:
             err = StopsShort if "stops" in tr.outcome else ShotError
             raise err(f"no clean path under the physical model: the best line {tr.outcome}")
@@ -748,6 +835,14 @@ def solve_physical(
         cut = float(ln.cut[0])
         if cut > math.radians(70):
             notes = (f"thin cut ({math.degrees(cut):.0f} degrees): hard to send the object true",)
+    if stroke.speed > RIGID_LIMIT:  # only a stroke this fast can meet a cushion this fast
+        if sol.res is not None and sol.rows is not None and sol.rows.size:
+            vn = float(np.max(sol.res.rail_vn[sol.rows]))  # the rows round the root, recorded
+        else:
+            chk, _ = _run(m, table, pr, pi1, np.array([sol.reading]), stroke)
+            vn = float(chk.rail_vn[0])
+        if vn > RIGID_LIMIT:
+            notes = (*notes, rigid_note(vn))
     d = (float(ln.direction[0, 0]), float(ln.direction[0, 1]))
     return Aim(
         setup,
@@ -773,7 +868,7 @@ def convergence_physical(
     setup: Setup,
     starts: list[Point],
     stroke: Stroke,
-    cushion: CushionModel = "impulse",
+    cushion: CushionModel = "stepped",
 ) -> Convergence:
     """The least-squares point nearest the physical aim lines from several start positions.
 

@@ -7,8 +7,8 @@ from typing import Literal
 
 from ..table import G, TableSpec
 
-CushionModel = Literal["mathavan", "impulse"]
-CUSHION_MODELS: tuple[CushionModel, ...] = ("mathavan", "impulse")
+CushionModel = Literal["stepped", "fine"]
+CUSHION_MODELS: tuple[CushionModel, ...] = ("stepped", "fine")
 
 
 @dataclass(frozen=True, slots=True)
@@ -21,8 +21,9 @@ class BallModel:
     energetic restitution and ``mu_w`` the ball-cushion friction of Mathavan, Jackson and Parkin
     (2010); ``theta`` the cushion contact angle above the equator (TableSpec.contact_angle);
     ``e_ball`` and ``mu_ball`` the ball-ball restitution and friction level (Alciatore 0.95,
-    0.06); ``cushion`` which impact model runs: "mathavan" (their stepped impulse integration)
-    or "impulse" (the closed-form rigid impulse with Coulomb friction, cushion.py).
+    0.06); ``cushion`` which integration of their impact equations runs: "stepped"
+    (``cushion_segments`` held-direction pieces per phase, the default) or "fine"
+    (``fine_steps`` midpoint steps per M vy0 of impulse, the reference); see cushion.py.
     """
 
     radius: float
@@ -36,8 +37,9 @@ class BallModel:
     theta: float
     e_ball: float
     mu_ball: float
-    cushion: CushionModel = "impulse"
-    cushion_steps: int = 200
+    cushion: CushionModel = "stepped"
+    cushion_segments: int = 5
+    fine_steps: int = 200
 
     @property
     def inertia(self) -> float:
@@ -51,7 +53,7 @@ class BallModel:
         return replace(self, cushion=cushion)
 
 
-def model_of(table: TableSpec, cushion: CushionModel = "impulse") -> BallModel:
+def model_of(table: TableSpec, cushion: CushionModel = "stepped") -> BallModel:
     """The BallModel of a table (standard gravity, CGPM 1901)."""
     return BallModel(
         radius=table.ball_radius,

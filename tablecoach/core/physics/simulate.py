@@ -76,6 +76,7 @@ class SimResult:
     events: int
     ball_event: np.ndarray = field(default_factory=lambda: np.zeros(0, dtype=np.int64))
     segments: list[Segment] = field(default_factory=list)
+    rail_vn: np.ndarray = field(default_factory=lambda: np.zeros(0))
 
 
 def _pocket_arrays(table: TableSpec) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
@@ -175,6 +176,7 @@ def simulate(
     stop_pos = np.full((n, 2), np.nan)
     last_dir = np.zeros((n, 2))
     best = np.full(n, np.inf)
+    rail_vn = np.zeros(n)
     miss = np.full(n, np.nan)
     at_rest = np.zeros(n, dtype=bool)
     live = np.ones(n, dtype=bool)
@@ -340,7 +342,12 @@ def simulate(
             live[rows[cush & land]] = False
             if np.count_nonzero(go):
                 gi = wi_rows[go]
-                nv, nw = rail_impact(m, _NORMALS[code[go]], v2[gi], w2[gi])
+                nrm = _NORMALS[code[go]]
+                vin = v2[gi]
+                vn = vin[:, 0] * nrm[:, 0] + vin[:, 1] * nrm[:, 1]
+                rg = rows[go]
+                rail_vn[rg] = np.maximum(rail_vn[rg], vn)
+                nv, nw = rail_impact(m, nrm, vin, w2[gi])
                 v2[gi], w2[gi] = nv, nw
         r[idx], v[idx], w[idx] = r2, v2, w2
     # order and scoring
@@ -385,6 +392,7 @@ def simulate(
         events,
         ball_event,
         segments,
+        rail_vn,
     )
 
 

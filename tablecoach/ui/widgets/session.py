@@ -17,7 +17,8 @@ from tablecoach.core.table import TableSpec
 
 from .wording import landing_diamonds, shown_reading
 
-SPEED_CYCLE = ("slow", "medium", "fast", "power")
+SPEED_CYCLE: tuple[str, ...] = tuple(shots.SPEED_PRESETS)
+"""The named strokes the speed key steps through, softest first (shots.STROKE_LENGTHS)."""
 
 DEAL_MODEL = "ideal"
 """The model the coach checks a dealt setup against. The ideal check is fast; the practice

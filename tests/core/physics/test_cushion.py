@@ -8,11 +8,11 @@ from dataclasses import replace
 import numpy as np
 import pytest
 
-from tablecoach.core.physics.cushion import _rates, impulse_impact, mathavan_impact, rail_impact
+from tablecoach.core.physics.cushion import _rates, fine_impact, rail_impact, stepped_impact
 from tablecoach.core.physics.motion import energy
 from tablecoach.core.physics.params import BallModel
 
-IMPACTS = {"mathavan": mathavan_impact, "impulse": impulse_impact}
+IMPACTS = {"fine": fine_impact, "stepped": stepped_impact}
 
 
 def _rolling(v: np.ndarray, R: float) -> np.ndarray:
@@ -31,7 +31,7 @@ def test_no_friction_at_the_equator_keeps_tangent_and_scales_normal_by_e(
     v = np.stack((rng.normal(0, 1, 50), rng.uniform(0.2, 3.0, 50)), axis=1)
     w = rng.normal(0, 50, (50, 3))
     v2, w2 = IMPACTS[name](m, v, w)
-    tol = 1e-10 if name == "impulse" else 1e-6
+    tol = 1e-10 if name == "stepped" else 1e-6
     np.testing.assert_allclose(v2[:, 1], -0.8 * v[:, 1], rtol=tol, atol=tol)
     np.testing.assert_allclose(v2[:, 0], v[:, 0], atol=tol)
     np.testing.assert_allclose(w2, w, atol=tol)
@@ -94,18 +94,6 @@ def test_recalled_step_equations_match_a_rigid_body_derivation(model: BallModel)
 
 
 @pytest.mark.parametrize("name", list(IMPACTS))
-def test_perpendicular_rolling_hit_centre_speed_ratio_in_published_range(
-    model: BallModel, name: str
-) -> None:
-    # PHYSICS.md 2 (Alciatore): ball-rail restitution as a centre-speed ratio 0.6 to 0.9.
-    v = np.array([[0.0, 1.0]])
-    v2, _ = IMPACTS[name](model, v, _rolling(v, model.radius))
-    ratio = -v2[0, 1]
-    assert 0.6 <= ratio <= 0.9
-    assert abs(v2[0, 0]) < 1e-9  # a straight hit comes straight back
-
-
-@pytest.mark.parametrize("name", list(IMPACTS))
 def test_right_english_throws_a_straight_rebound_to_the_right(model: BallModel, name: str) -> None:
     # Common practice, no source: with right english a ball sent straight into the far (foot)
     # rail comes back off to the shooter's right (+y in the table frame).
@@ -118,17 +106,6 @@ def test_right_english_throws_a_straight_rebound_to_the_right(model: BallModel, 
     v, w = stick_hit(m, np.array([[1.0, 0.0]]), 1.5, english=-0.75)
     v2, _ = rail_impact(m, np.array([[1.0, 0.0]]), v, w)
     assert v2[0, 1] < -0.01
-
-
-def test_the_two_models_agree_on_a_rolling_45_degree_hit(model: BallModel) -> None:
-    # Model comparison (no outside source): the closed form freezes the slip directions, so it
-    # may differ from the stepped model; on a plain rolling hit they agree within 3 degrees.
-    v = np.array([[0.7, 0.7]])
-    w = _rolling(v, model.radius)
-    a, _ = mathavan_impact(model, v, w)
-    b, _ = impulse_impact(model, v, w)
-    ang = [math.degrees(math.atan2(x[0, 0], -x[0, 1])) for x in (a, b)]
-    assert abs(ang[0] - ang[1]) < 3.0
 
 
 @pytest.mark.parametrize("name", list(IMPACTS))

@@ -9,7 +9,7 @@ import numpy as np
 from tablecoach.core import shots
 from tablecoach.core.physics import aim
 from tablecoach.core.physics.collide import strike
-from tablecoach.core.physics.cushion import impulse_impact, rail_impact
+from tablecoach.core.physics.cushion import rail_impact, stepped_impact
 from tablecoach.core.physics.motion import evolve
 from tablecoach.core.physics.params import BallModel
 from tablecoach.core.physics.roots import T_MIN, first_quadratic_root
@@ -76,7 +76,7 @@ def test_rail_impact_turns_into_the_cushion_frame_and_back(model: BallModel) -> 
     ex = np.stack((nrm[:, 1], -nrm[:, 0]), axis=1)
     vc = np.stack((np.sum(v * ex, axis=1), np.sum(v * nrm, axis=1)), axis=1)
     wc = np.stack((np.sum(w[:, :2] * ex, axis=1), np.sum(w[:, :2] * nrm, axis=1), w[:, 2]), axis=1)
-    vo, wo = impulse_impact(model, vc, wc)
+    vo, wo = stepped_impact(model, vc, wc)
     want_v = ex * vo[:, :1] + nrm * vo[:, 1:2]
     want_w = np.concatenate((ex * wo[:, :1] + nrm * wo[:, 1:2], wo[:, 2:]), axis=1)
     got_v, got_w = rail_impact(model, nrm, v, w)

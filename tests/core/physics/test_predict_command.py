@@ -20,10 +20,10 @@ def test_predict_json_lands_and_scores_at_the_solved_reading(
     s = shots.make_setup(
         t, shots.preset("one-rail-kick"), t.to_metres(2, 1), None, None, t.to_metres(5, 1.5)
     )
-    a = aim.solve_physical(t, s, shots.Stroke(shots.parse_speed("fast")))
+    a = aim.solve_physical(t, s, shots.Stroke(shots.parse_speed("medium")))
     reading = round(a.reading / t.diamond, 4)
     base = ["--data-dir", str(tmp_path), "predict", "--family", "one-rail-kick"]
-    base += ["--cue", "2,1", "--target-ball", "5,1.5", "--speed", "fast"]
+    base += ["--cue", "2,1", "--target-ball", "5,1.5", "--speed", "medium"]
     assert cli.main([*base, "--reading", str(reading), "--json"]) == 0
     data = json.loads(capsys.readouterr().out)
     assert data["scores"] is True
