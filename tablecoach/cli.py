@@ -9,10 +9,13 @@ become one line on stderr and exit code 2, never a traceback.
 from __future__ import annotations
 
 import argparse
+import errno
 import importlib
+import math
 import os
 import sys
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
+from typing import Any
 
 from . import __version__
 
@@ -29,7 +32,55 @@ COMMANDS = (
     "history",
     "report",
     "demo",
+    "backup",
 )
+
+
+class Parser(argparse.ArgumentParser):
+    """argparse with a usage error on one line (which command, what is wrong, where to look),
+    like every other refusal; exit code 2 as argparse's own."""
+
+    def error(self, message: str) -> Any:  # argparse's signature says NoReturn
+        first = message.splitlines()[0] if message else "bad arguments"
+        if len(first) > 300:  # a huge value quoted back would bury the point
+            first = first[:297] + "..."
+        self.exit(2, f"{self.prog}: {first} (see '{self.prog} --help')\n")
+
+
+def number(lo: float = -math.inf, hi: float = math.inf, unit: str = "") -> Callable[[str], float]:
+    """An argparse type: a finite number within ``lo`` to ``hi`` (NaN, infinities, numbers
+    too long to be one and out-of-range values refused with the range)."""
+    from .core import validate
+
+    def parse(text: str) -> float:
+        try:
+            return validate.number_text(text, "value", lo, hi, unit)
+        except validate.InputError as exc:
+            raise argparse.ArgumentTypeError(str(exc).removeprefix("field 'value' ")) from None
+
+    parse.__name__ = "number"
+    return parse
+
+
+def whole(lo: int, hi: int) -> Callable[[str], int]:
+    """An argparse type: a whole number from ``lo`` to ``hi``."""
+
+    def parse(text: str) -> int:
+        t = text.strip()
+        try:
+            if len(t) > 20:
+                raise ValueError
+            v = int(t)
+        except ValueError:
+            raise argparse.ArgumentTypeError(
+                f"{text[:24]!r} is not a whole number from {lo} to {hi}"
+            ) from None
+        if not (lo <= v <= hi):
+            raise argparse.ArgumentTypeError(f"{v} is outside {lo} to {hi}")
+        return v
+
+    parse.__name__ = "whole number"
+    return parse
 
 
 def add_common(p: argparse.ArgumentParser, top: bool = False) -> None:
@@ -47,7 +98,7 @@ def add_common(p: argparse.ArgumentParser, top: bool = False) -> None:
 
 
 def build_parser() -> argparse.ArgumentParser:
-    parser = argparse.ArgumentParser(
+    parser = Parser(
         prog="tablecoach",
         description="A practice coach for bank and kick shots. With no command, opens the "
         "practice screen.",
@@ -71,7 +122,10 @@ def build_parser() -> argparse.ArgumentParser:
 
 def fail(message: str) -> int:
     """Print one clear line on stderr and return the usage-error exit code."""
-    print(f"tablecoach: {message}", file=sys.stderr)
+    line = " ".join(message.split())  # a value with a line break in it still gives one line
+    if len(line) > 600:
+        line = line[:597] + "..."
+    print(f"tablecoach: {line}", file=sys.stderr)
     return 2
 
 
@@ -93,6 +147,29 @@ def main(argv: Sequence[str] | None = None) -> int:
     except ValueError as exc:  # domain errors all subclass ValueError
         return fail(str(exc))
     except OSError as exc:
-        name = getattr(exc, "filename", None)
-        where = f" ({name})" if name else ""
-        return fail(f"{exc.strerror or exc}{where}")
+        return fail(os_error_line(exc))
+    except RecursionError:
+        return fail("the input is nested too deeply to read; check the file or arguments")
+    except Exception as exc:  # a bug: still one line, the traceback only when asked for
+        if os.environ.get("TABLECOACH_DEBUG"):
+            raise
+        print(
+            f"tablecoach: internal error ({type(exc).__name__}: {str(exc)[:200]}); run again "
+            "with TABLECOACH_DEBUG=1 to see where, and please report it",
+            file=sys.stderr,
+        )
+        return 1
+
+
+def os_error_line(exc: OSError) -> str:
+    """An operating-system error as one line naming the cause and what to do."""
+    name = getattr(exc, "filename", None)
+    where = f" ({name})" if name else ""
+    if exc.errno in (errno.ENOSPC, errno.EDQUOT):
+        return f"the disk is full{where}: nothing was written; free some space and try again"
+    if exc.errno in (errno.EACCES, errno.EPERM, errno.EROFS):
+        return (
+            f"permission denied{where}: check the file's and folder's permissions, or pick "
+            "another place (--data-dir, --output)"
+        )
+    return f"{exc.strerror or exc}{where}"

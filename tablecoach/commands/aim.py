@@ -8,7 +8,7 @@ import sys
 from dataclasses import replace
 from typing import Any
 
-from ..cli import add_common
+from ..cli import add_common, number
 
 DEFAULT_MODEL = "physical"
 
@@ -32,8 +32,8 @@ def add_shot_options(p: argparse.ArgumentParser) -> None:
         help="a stroke (slow, lag, medium, fast, power: see `tablecoach speeds`), lengths of "
         "travel such as 3L, or m/s",
     )
-    s.add_argument("--english", type=float, default=0.0, help="side spin in tips (+ right)")
-    s.add_argument("--follow", type=float, default=0.0, help="tips above centre (- for draw)")
+    s.add_argument("--english", type=number(), default=0.0, help="side spin in tips (+ right)")
+    s.add_argument("--follow", type=number(), default=0.0, help="tips above centre (- for draw)")
     p.add_argument(
         "--model", choices=("ideal", "physical"), default=DEFAULT_MODEL, help="aim model"
     )
@@ -58,13 +58,19 @@ def parse_point(text: str | None, what: str) -> tuple[float, float] | None:
     """'X,Y' in diamonds to a pair of floats, or a one-line ValueError."""
     if text is None:
         return None
+    from ..core import validate
+
     parts = text.replace(" ", "").split(",")
     try:
         if len(parts) != 2:
             raise ValueError
-        return (float(parts[0]), float(parts[1]))
+        x = validate.number_text(parts[0], what, -100.0, 100.0)  # make_setup: on the table
+        y = validate.number_text(parts[1], what, -100.0, 100.0)
     except ValueError:
-        raise ValueError(f"{what} {text!r} must be X,Y in diamonds, e.g. 2,1.5") from None
+        raise ValueError(
+            f"{what} {validate.show(text)} must be X,Y in finite diamonds, e.g. 2,1.5"
+        ) from None
+    return (x, y)
 
 
 def resolve_table(name: str | None, player: str | None = None) -> tuple[Any, Any, str]:

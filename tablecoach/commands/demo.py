@@ -6,7 +6,7 @@ import argparse
 import json
 from typing import Any
 
-from ..cli import add_common
+from ..cli import add_common, whole
 
 
 def register(sub: Any) -> None:
@@ -18,7 +18,9 @@ def register(sub: Any) -> None:
         "into a folder that already holds attempts: use --data-dir to pick a new folder.",
     )
     add_common(p)
-    p.add_argument("--seed", type=int, default=2026, help="random seed (default 2026)")
+    p.add_argument(
+        "--seed", type=whole(0, 2**63 - 1), default=2026, help="random seed (default 2026)"
+    )
     p.add_argument("--weeks", type=int, default=5, help="weeks of practice to invent (1-26)")
     p.add_argument("--tz", default=None, help="the club's time zone (default: this machine's)")
     p.add_argument("--json", action="store_true", help="print JSON instead of text")

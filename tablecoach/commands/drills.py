@@ -7,7 +7,7 @@ import json
 from pathlib import Path
 from typing import Any
 
-from ..cli import add_common
+from ..cli import add_common, whole
 
 
 def _action_common(p: argparse.ArgumentParser) -> None:
@@ -28,8 +28,12 @@ def register(sub: Any) -> None:
     a = acts.add_parser("show", help="what one pack deals")
     a.add_argument("name", help="pack name, or a path to a .toml file")
     a.add_argument("--table", default="9ft", help="table for the sample setups (default 9ft)")
-    a.add_argument("--sample", type=int, default=0, metavar="N", help="also deal N setups")
-    a.add_argument("--seed", type=int, default=None, help="random seed for --sample")
+    a.add_argument(
+        "--sample", type=whole(0, 1000), default=0, metavar="N", help="also deal N setups"
+    )
+    a.add_argument(
+        "--seed", type=whole(0, 2**63 - 1), default=None, help="random seed for --sample"
+    )
     _action_common(a)
     a = acts.add_parser("validate", help="check a pack file (line and field of any problem)")
     a.add_argument("file", help="the .toml file")

@@ -8,7 +8,7 @@ from dataclasses import dataclass
 from datetime import date, datetime, time, timedelta, tzinfo
 from typing import Any
 
-from ..cli import add_common
+from ..cli import add_common, whole
 
 
 class HistoryError(ValueError):
@@ -57,10 +57,14 @@ def parse_day(text: str | None, what: str) -> date | None:
     """YYYY-MM-DD to a date, or a one-line HistoryError."""
     if not text:
         return None
+    from ..core import validate  # noqa: PLC0415
+
     try:
-        return date.fromisoformat(text.strip())
+        return validate.day(date.fromisoformat(text.strip()), what)
+    except validate.InputError as exc:
+        raise HistoryError(f"{exc}; give a date like 2026-11-30") from None
     except ValueError:
-        raise HistoryError(f"{what} {text!r} must be a date like 2026-11-30") from None
+        raise HistoryError(f"{what} {validate.show(text)} must be a date like 2026-11-30") from None
 
 
 def local_midnight(d: date, tz: tzinfo | None) -> datetime:
@@ -130,7 +134,7 @@ def add_filter_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--family", default=None, help="only this shot family")
     p.add_argument("--since", default=None, metavar="YYYY-MM-DD", help="from this local day")
     p.add_argument("--until", default=None, metavar="YYYY-MM-DD", help="to this local day")
-    p.add_argument("--session", type=int, default=None, help="only this session number")
+    p.add_argument("--session", type=whole(1, 2**62), default=None, help="only this session number")
     p.add_argument(
         "--tz",
         default=None,

@@ -7,7 +7,7 @@ import json
 import sys
 from typing import Any
 
-from ..cli import add_common
+from ..cli import add_common, number
 
 
 def register(sub: Any) -> None:
@@ -25,7 +25,7 @@ def register(sub: Any) -> None:
     p.add_argument(
         "--reading",
         required=True,
-        type=float,
+        type=number(),
         metavar="R",
         help="aim reading in diamonds on the first rail's line of sights",
     )
@@ -78,11 +78,17 @@ def _text(data: dict[str, Any], speed: float) -> str:
 
 def run(args: argparse.Namespace) -> int:
     from ..core import shots
+    from ..core.records import rail_length_diamonds
     from .aim import available_model, setup_from_args
 
     table, setup, stroke, _status = setup_from_args(args)
     model = available_model(args.model)
     rail = setup.family.rails[0]
+    top = rail_length_diamonds(rail)
+    if not (0.0 <= args.reading <= top):
+        raise shots.ShotError(
+            f"--reading {args.reading:g} is off the {rail} rail's sights: use 0 to {top:g} diamonds"
+        )
     reading_m = table.along_to_metres(rail, args.reading)
     trace = shots.predict(table, setup, reading_m, stroke, model)
     data = trace_to_json(table, setup, trace, args.reading, model)

@@ -20,6 +20,7 @@ from typing import Any
 
 import numpy as np
 
+from . import validate
 from .placing import DEFAULT_GRID, GRIDS, snap, spans
 from .shots import (
     PRESETS,
@@ -190,9 +191,10 @@ class _Ctx:
 
 
 def _num(ctx: _Ctx, path: list[str | int], v: Any) -> float:
-    if isinstance(v, bool) or not isinstance(v, int | float) or not math.isfinite(v):
-        raise ctx.fail(path, f"must be a number, got {v!r}")
-    return float(v)
+    try:
+        return validate.finite(v, "value")
+    except validate.InputError:
+        raise ctx.fail(path, f"must be a finite number, got {validate.show(v)}") from None
 
 
 def _span(ctx: _Ctx, path: list[str | int], v: Any, top: float) -> tuple[float, float]:
@@ -306,9 +308,15 @@ def _item(ctx: _Ctx, k: int, raw: Any) -> DrillItem:
         raise ctx.fail([*path, "speeds"], "must be a list of speed names or m/s values")
     speeds, names = [], []
     for s in speeds_raw:
-        if isinstance(s, bool) or not isinstance(s, str | int | float):
+        if (
+            isinstance(s, bool)
+            or not isinstance(s, str | int | float)
+            or (isinstance(s, int) and abs(s) > 1000)
+            or (isinstance(s, str) and len(s) > validate.MAX_NUMBER_CHARS)
+        ):
             raise ctx.fail(
-                [*path, "speeds"], f"has {s!r}: use {', '.join(SPEED_PRESETS)}, lengths or m/s"
+                [*path, "speeds"],
+                f"has {validate.show(s)}: use {', '.join(SPEED_PRESETS)}, lengths or m/s",
             )
         try:
             v = parse_speed(s)
@@ -344,26 +352,44 @@ def _item(ctx: _Ctx, k: int, raw: Any) -> DrillItem:
     )
 
 
+def _plain(text: str) -> bool:
+    """No control characters but tab and newline (validate.text's rule)."""
+    try:
+        validate.text(text, "description")
+    except validate.InputError:
+        return False
+    return True
+
+
 def parse_drill(text: str, name: str, source: str = "<drill>", path: Path | None = None) -> Drill:
     """Parse and check a pack from its TOML text; any problem is one DrillError line."""
     ctx = _Ctx(source, text)
     try:
-        data = tomllib.loads(text)
+        data = validate.toml_text(text, source)
     except tomllib.TOMLDecodeError as exc:
         m = _TOML_POS.search(str(exc))
         where = f"{source}, line {m.group(1)}" if m else source
         raise DrillError(f"{where}: not valid TOML ({exc})") from None
+    except validate.InputError as exc:
+        raise DrillError(str(exc)) from None
     unknown = sorted(set(data) - _PACK_KEYS)
     if unknown:
         raise ctx.fail(
             [unknown[0]], f"is not a pack field; allowed: {', '.join(sorted(_PACK_KEYS))}"
         )
     title = data.get("title", name)
-    if not isinstance(title, str) or not title.strip():
-        raise ctx.fail(["title"], "must be a non-empty string")
+    if (
+        not isinstance(title, str)
+        or not title.strip()
+        or len(title) > 200
+        or not title.strip().isprintable()
+    ):
+        raise ctx.fail(["title"], "must be a non-empty line of printable text (at most 200)")
     desc = data.get("description", "")
-    if not isinstance(desc, str):
-        raise ctx.fail(["description"], "must be a string")
+    if not isinstance(desc, str) or len(desc) > validate.TEXT_MAX or not _plain(desc):
+        raise ctx.fail(
+            ["description"], "must be text (at most 2000 characters, no control characters)"
+        )
     count = data.get("count", 20)
     if isinstance(count, bool) or not isinstance(count, int) or not (1 <= count <= MAX_COUNT):
         raise ctx.fail(["count"], f"= {count!r} must be a whole number from 1 to {MAX_COUNT}")

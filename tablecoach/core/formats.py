@@ -10,11 +10,11 @@ from __future__ import annotations
 
 import csv
 import json
-import math
 from collections.abc import Iterable
 from datetime import UTC, datetime
 from typing import IO, Any
 
+from . import validate
 from .records import (
     FLAT_FIELDS,
     SCHEMA_VERSION,
@@ -129,9 +129,12 @@ class _Line:
         if default is not None and key not in obj:
             return default
         v = self.get(obj, key, where)
-        if not isinstance(v, str):
-            raise self.err(f"field {where + key!r} must be text, got {v!r}")
-        return v
+        try:
+            if key in ("player", "table") and not where:
+                return validate.name(v, key)
+            return validate.text(v, where + key)
+        except validate.InputError as exc:
+            raise self.err(str(exc)) from None
 
     def num(
         self, obj: dict[str, Any], key: str, where: str = "", default: float | None = None
@@ -139,23 +142,20 @@ class _Line:
         if default is not None and key not in obj:
             return default
         v = self.get(obj, key, where)
-        if isinstance(v, bool) or not isinstance(v, int | float) or not math.isfinite(v):
-            raise self.err(f"field {where + key!r} must be a finite number, got {v!r}")
-        return float(v)
+        try:
+            return validate.finite(v, where + key)
+        except validate.InputError as exc:
+            raise self.err(str(exc)) from None
 
     def point(self, v: Any, name: str, optional: bool = False) -> tuple[float, float] | None:
         if v is None and optional:
             return None
-        if (
-            not isinstance(v, list)
-            or len(v) != 2
-            or not all(
-                isinstance(c, int | float) and not isinstance(c, bool) and math.isfinite(c)
-                for c in v
-            )
-        ):
-            raise self.err(f"field {name!r} must be [x, y] in diamonds, got {v!r}")
-        return (float(v[0]), float(v[1]))
+        if not isinstance(v, list) or len(v) != 2:
+            raise self.err(f"field {name!r} must be [x, y] in diamonds, got {validate.show(v)}")
+        try:
+            return (validate.finite(v[0], name), validate.finite(v[1], name))
+        except validate.InputError as exc:
+            raise self.err(f"{exc}; it must be [x, y] in diamonds") from None
 
     def table(self, obj: dict[str, Any], key: str) -> dict[str, Any]:
         v = self.get(obj, key)
@@ -183,27 +183,25 @@ def attempt_from_json(obj: Any, line_no: int = 1) -> Attempt:
         raise ln.err("field 'miss_kind' is not part of version 1 records (write v 2)")
     if unknown:
         raise ln.err(f"field {unknown[0]!r} is not part of the record format")
-    when_s = ln.text(obj, "when")
     try:
-        when = datetime.fromisoformat(when_s)
-    except ValueError:
-        raise ln.err(f"field 'when' = {when_s!r} is not an ISO-8601 time") from None
-    if when.tzinfo is None:
-        raise ln.err(f"field 'when' = {when_s!r} has no time zone (write it in UTC with a Z)")
-    when = when.astimezone(UTC)
+        when = validate.when_text(ln.get(obj, "when"))
+    except validate.InputError as exc:
+        raise ln.err(str(exc)) from None
     shot = ln.table(obj, "shot")
     unknown = sorted(set(shot) - _SHOT)
     if unknown:
         raise ln.err(f"field 'shot.{unknown[0]}' is not part of the record format")
     rails = ln.get(shot, "rails", "shot.")
     if not isinstance(rails, list) or not all(isinstance(r, str) for r in rails):
-        raise ln.err(f"field 'shot.rails' must be a list of rail names, got {rails!r}")
+        raise ln.err(f"field 'shot.rails' must be a list of rail names, got {validate.show(rails)}")
     target = ln.get(shot, "target", "shot.")
     if not isinstance(target, dict) or len(target) != 1 or not ({"pocket", "ball"} & set(target)):
         raise ln.err('field \'shot.target\' must be {"pocket": name} or {"ball": [x, y]}')
     pocket = target.get("pocket")
     if pocket is not None and not isinstance(pocket, str):
-        raise ln.err(f"field 'shot.target.pocket' must be a pocket name, got {pocket!r}")
+        raise ln.err(
+            f"field 'shot.target.pocket' must be a pocket name, got {validate.show(pocket)}"
+        )
     ball = ln.point(target["ball"], "shot.target.ball") if "ball" in target else None
     travel: Any = ln.text(shot, "travel", "shot.")  # validate_attempt checks the value
     cue: Any = ln.point(ln.get(shot, "cue", "shot."), "shot.cue")
@@ -279,9 +277,9 @@ def read_jsonl(fh: IO[str]) -> tuple[list[Attempt], list[tuple[int, str]]]:
         if not line.strip():
             continue
         try:
-            obj = json.loads(line.rstrip("\r\n"))
-        except json.JSONDecodeError as exc:
-            errors.append((n, f"line {n}: not valid JSON ({exc.msg} at column {exc.colno})"))
+            obj = validate.json_line(line.rstrip("\r\n"))
+        except validate.InputError as exc:
+            errors.append((n, f"line {n}: {exc}"))
             continue
         try:
             out.append(attempt_from_json(obj, n))
@@ -321,9 +319,9 @@ def _row_to_obj(row: dict[str, str], ln: _Line) -> dict[str, Any]:
         if not t:
             return None
         try:
-            return float(t)
-        except ValueError:
-            raise ln.err(f"column {key!r} = {t!r} is not a number") from None
+            return validate.number_text(t, key)
+        except validate.InputError as exc:
+            raise ln.err(f"column {str(exc).removeprefix('field ')}") from None
 
     def pair(kx: str, ky: str) -> list[float] | None:
         x, y = num(kx), num(ky)

@@ -8,12 +8,16 @@ never written to: opening it raises a StoreError naming the file and what to do.
 
 from __future__ import annotations
 
+import contextlib
+import errno
 import gc
 import hashlib
 import json
 import math
+import os
 import sqlite3
 import threading
+import uuid
 from collections.abc import Iterator, Sequence
 from contextlib import contextmanager
 from dataclasses import dataclass, replace
@@ -24,6 +28,7 @@ from typing import Any
 
 import numpy as np
 
+from . import validate
 from .records import FLAT_FIELDS, Attempt, ShotRecord, flatten, utc_now, validate_attempt
 from .table import BUILTIN_TABLES, TableError, TableSpec, table_from_mapping, table_to_mapping
 
@@ -44,6 +49,10 @@ _IMPORT_CHUNK = 2000
 
 class StoreError(ValueError):
     """The database cannot be used as asked; the message names the file and what to do."""
+
+
+class DamagedStoreError(StoreError):
+    """The file is damaged (SQLite says so, or fails the integrity check)."""
 
 
 @dataclass(frozen=True, slots=True)
@@ -323,6 +332,9 @@ _KEY_SEP = "\x1f"
 """Joins the key fields in SQL (ASCII unit separator, char(31)); when a value holds it, the
 fields are read one by one instead."""
 
+_FLOOR = f"{validate.YEAR_MIN:04d}-01-01T00:00:00.000000+00:00"
+_CEILING = f"{validate.YEAR_MAX + 1:04d}-01-01T00:00:00.000000+00:00"
+"""Stored times read back lie in [_FLOOR, _CEILING) (``Store._filters``)."""
 _EPOCH_DAY = datetime(1970, 1, 1).toordinal()
 _ISO_LEN = 32
 """Characters in a stored time, e.g. 2026-11-30T21:00:00.000000+00:00 (``iso_utc``)."""
@@ -549,7 +561,11 @@ def _precheck(path: Path) -> None:
         raise StoreError(f"{path} is a folder, not a database file; remove it or pick another")
     size = path.stat().st_size
     if size == 0:
-        return
+        raise StoreError(
+            f"the database {path} is an empty file (0 bytes), not a practice store; it was left "
+            f"untouched: restore your backup ('tablecoach restore FILE'), or remove {path.name} "
+            "to start a new store"
+        )
     with path.open("rb") as fh:
         head = fh.read(100)
     if len(head) < 100 or not head.startswith(_SQLITE_MAGIC):
@@ -569,6 +585,110 @@ def _precheck(path: Path) -> None:
         )
 
 
+def _check_attempt(a: Attempt) -> Attempt:
+    """The record checks plus what the store itself needs: a time within the years every
+    reader can place in any time zone, names of 1 to 40 printable characters, bounded text."""
+    try:
+        validate.when(a.when)
+        validate.name(a.player, "player")
+        validate.name(a.table, "table")
+        for key in ("note", "model", "drill", "zone"):
+            validate.text(getattr(a, key), key)
+    except validate.InputError as exc:
+        raise StoreError(str(exc)) from None
+    return validate_attempt(a)
+
+
+def sqlite_error(path: Path, exc: sqlite3.Error) -> StoreError:
+    """An SQLite error on ``path`` as one line that names the cause and what to do.
+
+    The cause comes from SQLite's result code (``sqlite_errorname``, Python 3.11+), else from
+    its message: a full disk, a permission problem, a failing disk, a lock held by another
+    window, or a damaged file. Only the last says to restore a backup.
+    """
+    code = str(getattr(exc, "sqlite_errorname", "") or "")
+    msg = str(exc)
+    low = msg.lower()
+    if code == "SQLITE_FULL" or "disk is full" in low:
+        return StoreError(
+            f"the disk holding {path} is full: nothing more was written and what was saved "
+            "before is safe; free some space and try again"
+        )
+    if code.startswith(("SQLITE_READONLY", "SQLITE_PERM", "SQLITE_CANTOPEN", "SQLITE_AUTH")) or any(
+        w in low for w in ("readonly", "read-only", "permission", "unable to open")
+    ):
+        return StoreError(
+            f"cannot write {path}: permission denied or a read-only place ({msg}); check the "
+            "file's and folder's permissions, or use --data-dir for a folder you can write to"
+        )
+    if code.startswith(("SQLITE_BUSY", "SQLITE_LOCKED")) or "locked" in low or "busy" in low:
+        return StoreError(
+            f"the database {path} is busy (another tablecoach window is writing); "
+            "try again in a moment"
+        )
+    if code.startswith("SQLITE_IOERR") or "disk i/o" in low:
+        return StoreError(
+            f"reading or writing {path} failed (a disk input/output error: {msg}); check that "
+            "the disk is attached and healthy, then try again"
+        )
+    if code.startswith(("SQLITE_CORRUPT", "SQLITE_NOTADB")) or any(
+        w in low for w in ("malformed", "not a database", "corrupt")
+    ):
+        return DamagedStoreError(
+            f"the database {path} is damaged or not a tablecoach database ({msg}); "
+            f"{_fix_hint(path)}, or restore it from a backup ('tablecoach restore FILE')"
+        )
+    return StoreError(f"the database {path} could not be used ({msg}); try again")
+
+
+def _rollback(c: sqlite3.Connection) -> None:
+    """Roll back if a transaction is still open: after SQLITE_FULL, an I/O error or an
+    interrupt SQLite may have rolled it back already (sqlite.org/lang_transaction.html)."""
+    if c.in_transaction:
+        with contextlib.suppress(sqlite3.Error):
+            c.execute("ROLLBACK")
+
+
+def _create(path: Path) -> None:
+    """Make a new, empty store at ``path`` whole or not at all.
+
+    The schema is built in a private file beside it, then hard-linked into place, which fails
+    if another window made one first (theirs is kept). So a file at ``path`` is never a
+    half-made store, and an empty file there is never one of ours.
+    """
+    tmp = path.with_name(f".{path.name}.new-{os.getpid()}-{uuid.uuid4().hex[:8]}")
+    try:
+        conn = sqlite3.connect(str(tmp), isolation_level=None)
+        try:
+            fresh = Store(conn, tmp)
+            fresh._checked = True  # nothing in it to check
+            fresh._migrate()
+        finally:
+            conn.close()
+        with tmp.open("rb") as fh:
+            os.fsync(fh.fileno())
+        try:
+            os.link(tmp, path)
+        except FileExistsError:
+            pass  # another window created it meanwhile: use theirs
+        except OSError:  # no hard links here (some network or FAT disks)
+            if not path.exists():
+                os.replace(tmp, path)
+    except sqlite3.Error as exc:
+        raise sqlite_error(path, exc) from None
+    except OSError as exc:
+        if exc.errno in (errno.ENOSPC, errno.EDQUOT):
+            raise sqlite_error(path, sqlite3.OperationalError("database or disk is full")) from None
+        raise StoreError(
+            f"cannot create the database {path} ({exc.strerror or exc}); use --data-dir to pick "
+            "a folder you can write to"
+        ) from None
+    finally:
+        tmp.unlink(missing_ok=True)
+        for extra in ("-journal", "-wal", "-shm"):
+            tmp.with_name(tmp.name + extra).unlink(missing_ok=True)
+
+
 # ----- the store ----------------------------------------------------------------------------
 
 
@@ -579,6 +699,11 @@ class Store:
         self._conn = conn
         self.path = path
         self._lock = threading.RLock()
+        self._check_lock = threading.Lock()
+        self._checked: StoreError | bool = False  # True: passed; an error: failed
+        self._checker: threading.Thread | None = None
+        self._broken = False  # damage seen: close without folding the WAL into the file
+        self._had_wal = path.with_name(path.name + "-wal").exists()
 
     # ----- opening and closing ---------------------------------------------------------------
     @classmethod
@@ -598,6 +723,7 @@ class Store:
                     f"cannot create the data folder {path.parent} ({exc.strerror}); "
                     "use --data-dir to pick a folder you can write to"
                 ) from None
+            _create(path)
         try:
             conn = sqlite3.connect(
                 str(path),
@@ -611,26 +737,19 @@ class Store:
         try:
             store._setup()
         except sqlite3.DatabaseError as exc:
-            conn.close()
-            raise store._damaged(exc) from None
+            err = store._damaged(exc)
+            store.close()
+            raise err from None
         except BaseException:
-            conn.close()
+            store.close()
             raise
         return store
 
     def _damaged(self, exc: sqlite3.Error) -> StoreError:
-        msg = str(exc)
-        if "locked" in msg or "busy" in msg:
-            return StoreError(
-                f"the database {self.path} is busy (another tablecoach window is writing); "
-                "try again in a moment"
-            )
-        if "readonly" in msg or "read-only" in msg:
-            return StoreError(f"the database {self.path} is read-only; check its permissions")
-        return StoreError(
-            f"the database {self.path} is damaged or not a tablecoach database ({msg}); "
-            f"{_fix_hint(self.path)}, or restore it from a backup"
-        )
+        err = sqlite_error(self.path, exc)
+        if isinstance(err, DamagedStoreError):
+            self._broken = True
+        return err
 
     def _inspect(self) -> tuple[int, int, set[str]]:
         c = self._conn
@@ -669,11 +788,14 @@ class Store:
         c = self._conn
         c.execute(f"PRAGMA busy_timeout = {BUSY_TIMEOUT_MS}")
         self._check_kind(*self._inspect())
+        if str(c.execute("PRAGMA journal_mode").fetchone()[0]).lower() != "wal":
+            self.check()  # switching to WAL writes the header: never into a damaged file
         c.execute("PRAGMA journal_mode = WAL")
         # FULL: a committed attempt survives a power cut too, not only a crash of the program.
         c.execute("PRAGMA synchronous = FULL")
         c.execute("PRAGMA foreign_keys = ON")
         if self._inspect()[1] < SCHEMA_VERSION:
+            self.check()  # a migration writes: never into a damaged file
             self._migrate()
 
     def _migrate(self) -> None:
@@ -692,9 +814,61 @@ class Store:
                 version += 1
                 c.execute(f"PRAGMA user_version = {version}")
         except BaseException:
-            c.execute("ROLLBACK")
+            _rollback(c)
             raise
         c.execute("COMMIT")
+
+    # ----- the integrity check ------------------------------------------------------------------
+    def check(self) -> None:
+        """Raise StoreError if the file fails SQLite's quick integrity check.
+
+        Run once per open store (the result is kept), before the first write: every write
+        calls it, so nothing is ever written into a damaged file. It reads the file through a
+        connection of its own, so reads on this one go on meanwhile (``start_check``).
+        """
+        with self._check_lock:
+            if self._checked is False:
+                self._checked = self._quick_check()
+            result = self._checked
+        if isinstance(result, StoreError):
+            self._broken = True
+            raise DamagedStoreError(str(result))
+
+    def start_check(self) -> None:
+        """Begin ``check`` on a background thread (the app calls this on opening, so that the
+        first write rarely waits and the screen is drawn meanwhile)."""
+        if self._checker is None and self._checked is False:
+            self._checker = threading.Thread(
+                target=self._check_quietly, name="tablecoach-store-check", daemon=True
+            )
+            self._checker.start()
+
+    def _check_quietly(self) -> None:
+        with contextlib.suppress(StoreError):  # kept in self._checked: the first write raises it
+            self.check()
+
+    def _quick_check(self) -> StoreError | bool:
+        """PRAGMA quick_check on a read-only connection of its own: True if "ok"."""
+        uri = self.path.resolve().as_uri() + "?mode=ro"
+        try:
+            conn = sqlite3.connect(uri, uri=True, timeout=BUSY_TIMEOUT_MS / 1000.0)
+        except sqlite3.Error as exc:
+            return sqlite_error(self.path, exc)
+        try:
+            rows = conn.execute("PRAGMA quick_check(1)").fetchall()
+        except sqlite3.Error as exc:
+            return sqlite_error(self.path, exc)
+        finally:
+            conn.close()
+        if rows == [("ok",)]:
+            return True
+        said = [ln for r in rows for ln in str(r[0]).splitlines() if not ln.startswith("***")]
+        first = said[0] if said else "no answer"
+        return DamagedStoreError(
+            f"the database {self.path} is damaged (SQLite's integrity check: "
+            f"{validate.show(first, 80)}); {_fix_hint(self.path)}, or restore it from a backup "
+            "('tablecoach restore FILE')"
+        )
 
     def schema_version(self) -> int:
         """The file's schema version (PRAGMA user_version)."""
@@ -702,9 +876,34 @@ class Store:
             return int(c.execute("PRAGMA user_version").fetchone()[0])
 
     def close(self) -> None:
-        """Close the connection (everything is already committed)."""
+        """Close the connection (everything is already committed).
+
+        SQLite folds the write-ahead log into the file when its last connection closes. That is
+        a write, so it is left to a store that passed the check: on a damaged file, or when a
+        session that only read (and so never ran the check) finds a log left by someone else
+        (a killed writer), a read-only connection is held open meanwhile and SQLite leaves the
+        log beside the file as it was, for the next writer, which checks first.
+        """
         with self._lock:
+            wal = self.path.with_name(self.path.name + "-wal")
+            try:
+                foreign_log = self._checked is not True and wal.stat().st_size > 0
+            except OSError:
+                foreign_log = False
+            if not self._broken and not foreign_log:
+                self._conn.close()
+                return
+            guard = None
+            with contextlib.suppress(sqlite3.Error):
+                guard = sqlite3.connect(self.path.resolve().as_uri() + "?mode=ro", uri=True)
+                guard.execute("PRAGMA user_version").fetchone()
             self._conn.close()
+            if guard is not None:
+                guard.close()
+            with contextlib.suppress(OSError):
+                if self._broken and not self._had_wal and wal.stat().st_size == 0:  # ours: tidy
+                    wal.unlink()
+                    self.path.with_name(self.path.name + "-shm").unlink()
 
     def __enter__(self) -> Store:
         return self
@@ -721,6 +920,7 @@ class Store:
     @contextmanager
     def _write(self) -> Iterator[sqlite3.Connection]:
         """One short write transaction, committed on exit (rolled back on any error)."""
+        self.check()
         with self._lock:
             c = self._conn
             try:
@@ -730,16 +930,15 @@ class Store:
             try:
                 yield c
             except sqlite3.Error as exc:
-                c.execute("ROLLBACK")
+                _rollback(c)
                 raise self._damaged(exc) from None
             except BaseException:
-                c.execute("ROLLBACK")
+                _rollback(c)
                 raise
             try:
                 c.execute("COMMIT")
             except sqlite3.Error as exc:
-                if c.in_transaction:
-                    c.execute("ROLLBACK")
+                _rollback(c)
                 raise self._damaged(exc) from None
 
     @contextmanager
@@ -750,12 +949,31 @@ class Store:
             except sqlite3.Error as exc:
                 raise self._damaged(exc) from None
 
+    @contextmanager
+    def snapshot(self) -> Iterator[sqlite3.Connection]:
+        """One read transaction: every SELECT inside sees the same moment (core/backup.py)."""
+        with self._read() as c:
+            c.execute("BEGIN")
+            try:
+                yield c
+            finally:
+                _rollback(c)
+
+    @contextmanager
+    def transaction(self) -> Iterator[sqlite3.Connection]:
+        """One write transaction, after the integrity check, all or nothing (core/backup.py)."""
+        with self._write() as c:
+            yield c
+
     # ----- players ----------------------------------------------------------------------------
     @staticmethod
     def _check_name(what: str, name: str) -> str:
-        if not isinstance(name, str) or not name.strip() or len(name.strip()) > 40:
-            raise StoreError(f"a {what} name must be 1 to 40 characters, got {name!r}")
-        return name.strip()
+        try:
+            return validate.name(name, what)
+        except validate.InputError:
+            raise StoreError(
+                f"a {what} name must be 1 to 40 printable characters, got {validate.show(name)}"
+            ) from None
 
     def players(self) -> list[str]:
         """Every player name, sorted."""
@@ -842,7 +1060,7 @@ class Store:
         """Validate and save several attempts in one transaction (all or none); returns them
         with their ids. Each is exactly as if logged alone (sessions kept, undo works)."""
         for a in items:
-            validate_attempt(a)
+            _check_attempt(a)
         prepared = [(a, _to_row(a), attempt_identity(a)) for a in items]
         out: list[Attempt] = []
         insert = _INSERT
@@ -905,12 +1123,15 @@ class Store:
             if val is not None:
                 where.append(f"{col} = ?")
                 args.append(val)
-        if since is not None:
-            where.append(f"{plus}at >= ?")
-            args.append(iso_utc(since if since.tzinfo else since.replace(tzinfo=UTC)))
-        if until is not None:
-            where.append(f"{plus}at < ?")
-            args.append(iso_utc(until if until.tzinfo else until.replace(tzinfo=UTC)))
+        # Times outside the years every reader can place in any zone (validate.YEAR_MIN..MAX)
+        # are refused on the way in; an older tablecoach may have stored some: they stay in the
+        # file (and in backups) but are left out of what is read, so one cannot break history.
+        lo = iso_utc(since if since.tzinfo else since.replace(tzinfo=UTC)) if since else _FLOOR
+        hi = iso_utc(until if until.tzinfo else until.replace(tzinfo=UTC)) if until else _CEILING
+        where.append(f"{plus}at >= ?")
+        args.append(max(lo, _FLOOR))
+        where.append(f"{plus}at < ?")
+        args.append(min(hi, _CEILING))
         return (" WHERE " + " AND ".join(where) if where else ""), args
 
     def attempts(
@@ -1029,7 +1250,7 @@ class Store:
         attempts belong to no session. Work is committed in chunks of a few thousand, so a
         window logging meanwhile waits only briefly; an interrupted import can be run again.
         """
-        checked = [validate_attempt(a) for a in items]
+        checked = [_check_attempt(a) for a in items]
         added = dups = 0
         seen: set[str] = set()
         insert = _INSERT

@@ -408,20 +408,27 @@ def table_from_mapping(data: dict[str, Any], source: str = "<table>") -> TableSp
         raise fail(
             sorted(unknown)[0], f"is not a table field; allowed: {', '.join(sorted(_TOP_FIELDS))}"
         )
+    from . import validate
+
     name = data.get("name")
-    if not isinstance(name, str) or not name.strip() or len(name) > 40:
+    if not isinstance(name, str) or not name.strip() or len(name.strip()) > 40:
         raise fail("name", "must be a non-empty string of at most 40 characters")
+    if not name.strip().isprintable():
+        raise fail("name", "must be printable characters only (1 to 40)")
     base_name = data.get("base", data.get("size", DEFAULT_TABLE))
-    if base_name not in BUILTIN_TABLES:
+    if not isinstance(base_name, str) or base_name not in BUILTIN_TABLES:
         key = "base" if "base" in data else "size"
         raise fail(key, f"must be one of {', '.join(BUILTIN_TABLES)}")
     base = BUILTIN_TABLES[base_name]
 
     def num(key: str, value: Any) -> float:
-        if isinstance(value, bool) or not isinstance(value, int | float):
-            raise fail(key, f"must be a number, got {value!r}")
         lo, hi = _RANGES[key]
-        v = float(value)
+        if isinstance(value, bool) or not isinstance(value, int | float):
+            raise fail(key, f"must be a number, got {validate.show(value)}")
+        try:
+            v = validate.finite(value, key)
+        except validate.InputError:
+            raise fail(key, f"is {validate.show(value)}, allowed range {lo:g} to {hi:g}") from None
         if not (lo <= v <= hi):
             raise fail(key, f"is {v:g}, allowed range {lo:g} to {hi:g}")
         return v
@@ -460,8 +467,13 @@ def table_from_mapping(data: dict[str, Any], source: str = "<table>") -> TableSp
     cloth = section("cloth", Cloth, base.cloth)
     cushion = section("cushion", Cushion, base.cushion)
     desc = data.get("description", "")
-    if not isinstance(desc, str):
-        raise fail("description", "must be a string")
+    try:
+        validate.text(desc, "description")
+    except validate.InputError:
+        raise fail(
+            "description",
+            f"must be text of at most {validate.TEXT_MAX} characters, no control characters",
+        ) from None
     spec = replace(base, name=name.strip(), cloth=cloth, cushion=cushion, description=desc, **top)
     ratio = spec.length / spec.width
     if not (1.9 <= ratio <= 2.1):
@@ -478,10 +490,16 @@ def load_table_file(path: str | Path) -> TableSpec:
         text = p.read_text(encoding="utf-8")
     except OSError as exc:
         raise TableError(f"{p}: cannot read the table file ({exc.strerror})") from None
+    except UnicodeDecodeError:
+        raise TableError(f"{p}: not a text file (a table file is UTF-8 TOML)") from None
+    from . import validate
+
     try:
-        data = tomllib.loads(text)
+        data = validate.toml_text(text, str(p))
     except tomllib.TOMLDecodeError as exc:
         raise TableError(f"{p}: not valid TOML ({exc})") from None
+    except validate.InputError as exc:
+        raise TableError(str(exc)) from None
     return table_from_mapping(data, str(p))
 
 

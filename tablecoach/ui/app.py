@@ -257,6 +257,7 @@ def build_app(
     """
     saved = load_settings()
     store = Store.open(paths.db_path())
+    store.start_check()  # the integrity check, beside the rest of the opening (Store.check)
     try:
         t = table or saved.get("table") or DEFAULT_TABLE
         d = drill or saved.get("drill") or drills_mod.DEFAULT_DRILL

@@ -487,11 +487,14 @@ def test_truncated_on_page_boundary_refused(db: Path) -> None:
     _assert_refused(db, "truncated")
 
 
-def test_empty_file_becomes_a_database(db: Path) -> None:
+def test_empty_file_is_refused_and_left_empty(db: Path) -> None:
+    # Issue 15: a 0-byte file is not taken as a new store (a new store is made whole in a
+    # private file and linked into place, so an empty file is never one of ours).
     db.parent.mkdir(parents=True)
     db.touch()
-    with Store.open(db) as s:
-        assert s.schema_version() == SCHEMA_VERSION
+    with pytest.raises(StoreError, match="empty file"):
+        Store.open(db)
+    assert db.stat().st_size == 0
 
 
 # ----- two windows ----------------------------------------------------------------------------

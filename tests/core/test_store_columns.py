@@ -287,8 +287,16 @@ def test_start_session_started_time(tmp_path: Path) -> None:
             s.start_session("ann", "9ft", "mixed", started=datetime(2025, 6, 1))
 
 
-def test_a_value_holding_the_key_separator_is_read_field_by_field(tmp_path: Path) -> None:
+def test_a_value_holding_the_key_separator_is_read_field_by_field(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
     # The key fields are joined with char(31) in SQL; a name holding it must not be split.
+    # New names with control characters are refused (issue 15), but a store written before
+    # that may hold them: the write-side check is lifted here to make such a store.
+    import tablecoach.core.store as store_mod
+    from tablecoach.core.records import validate_attempt
+
+    monkeypatch.setattr(store_mod, "_check_attempt", validate_attempt)
     rng = np.random.default_rng(11)
     with Store.open(tmp_path / "sep.sqlite3") as s:
         odd = Attempt(**{**_fields(random_attempt(rng)), "player": "a\x1fb", "drill": "x\x1f"})
@@ -327,7 +335,8 @@ def test_history_queries_use_an_index(filled: Store) -> None:
     t = T0 + timedelta(days=3)
     first = filled.sessions()[0]
     sid, who = first.id, first.player
-    assert plan(filled) == "SCAN attempts USING INDEX attempts_at"
+    # (a search rather than a scan since reads keep to the years 1900 to 2200: issue 15)
+    assert plan(filled) == "SEARCH attempts USING INDEX attempts_at (at>? AND at<?)"
     for kw, index in (
         ({"player": "ann"}, "attempts_player_at"),
         ({"table": "9ft"}, "attempts_table_at"),
