@@ -399,7 +399,7 @@ def test_a_damaged_store_is_refused_and_left_byte_for_byte(
     writes = [
         ["import", str(good)],
         ["tables", "add", str(table_file)],
-        ["calibrate", "--table", "harbour-9", "--player", "Nadia", "--model", "ideal"],
+        ["calibrate", "--table", "harbour-9", "--player", "Nadia"],
     ]
     monkeypatch.setenv("TABLECOACH_DATA_DIR", str(healthy.parent))
     for args in writes:
@@ -662,8 +662,7 @@ def test_backup_and_restore_reproduce_the_store_exactly(
     monkeypatch.setenv("TABLECOACH_DATA_DIR", str(old.parent))
     monkeypatch.setenv("TABLECOACH_CONFIG_DIR", str(tmp_path / "old" / "config"))
     # a calibration, a table of one's own, a session and a drill pack of one's own
-    assert cli(capsys, "calibrate", "--table", "harbour-9", "--player", "Nadia",
-               "--model", "ideal")[0] == 0  # fmt: skip
+    assert cli(capsys, "calibrate", "--table", "harbour-9", "--player", "Nadia")[0] == 0
     (tmp_path / "mine.toml").write_text('name = "mine"\nsize = "8ft"\n', encoding="utf-8")
     assert cli(capsys, "tables", "add", str(tmp_path / "mine.toml"))[0] == 0
     packs = tmp_path / "old" / "config" / "drills"

@@ -86,11 +86,11 @@ def resolve_table(name: str | None, player: str | None = None) -> tuple[Any, Any
     path = db_path()
     if not path.exists():  # no practice yet: skip loading the store and calibration code
         return builtin_table(name), None, "not calibrated yet"
-    from ..core import calibrate
+    from ..core.calibration.use import resolve
     from ..core.store import Store
 
     with Store.open(path) as store:
-        r = calibrate.resolve(store, name, player)
+        r = resolve(store, name, player)
     return r.table, r.calibration, r.status
 
 
@@ -131,7 +131,7 @@ def setup_from_args(args: argparse.Namespace) -> tuple[Any, Any, Any, str]:
     if calibration is None:
         speed = shots.parse_speed(args.speed, table)
     else:
-        from ..core.calibrate import speed_for
+        from ..core.calibration.use import speed_for
 
         speed = speed_for(calibration, args.speed)
     stroke = shots.Stroke(speed, args.english, args.follow)

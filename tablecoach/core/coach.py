@@ -211,7 +211,7 @@ def zone_stats(
     """Made, tried, the shrunk posterior and the landing bias of every zone with attempts.
 
     The landing bias is the mean signed long/short error (diamonds) of the observed landing
-    against the landing the model predicts for the aim used (calibrate.landing_errors), on
+    against the landing the model predicts for the aim used (calibration.model.landing_errors), on
     ``table`` (with ``calibration``'s speeds if given), or else on each attempt's built-in
     table by name; attempts on a table it cannot find get no bias. ``landing_error`` replaces
     that with a function of one attempt.
@@ -241,7 +241,7 @@ def zone_stats(
 def _batch_errors(
     attempts: Sequence[Attempt], table: TableSpec | None, model: str, calibration: Any
 ) -> list[float | None]:
-    from .calibrate import landing_errors  # noqa: PLC0415  (calibrate imports this module)
+    from .calibration.model import landing_errors  # noqa: PLC0415  (loads the physics)
 
     out: list[float | None] = [None] * len(attempts)
     by_table: dict[str, list[int]] = {}

@@ -31,7 +31,7 @@ MIN_BIAS_LANDINGS = 3
 
 SMALL_BIAS = 0.1
 """A zone's bias below this many diamonds is "on the model" (about what a player reads a landing
-to: calibrate.NOISE_FLOOR is of this size)."""
+to: calibration.likelihood.NOISE_FLOOR is of this size)."""
 
 
 def new_landings(store: Any, table: str, player: str) -> int:
@@ -82,9 +82,10 @@ def zone_bias(
 ) -> tuple[float, int] | None:
     """The mean landing error (diamonds round the table, + long) of the latest observed
     landings (RECENT_LANDINGS at most) logged in ``zone`` (the zone label stored with each
-    attempt), against the model's landing for the aim used (calibrate.landing_errors), and how
-    many it averages. None with fewer than MIN_BIAS_LANDINGS."""
-    from .calibrate import landing_errors  # noqa: PLC0415  (calibrate is heavy; load lazily)
+    attempt), against the model's landing for the aim used
+    (calibration.model.landing_errors), and how many it averages. None with fewer than
+    MIN_BIAS_LANDINGS."""
+    from .calibration.model import landing_errors  # noqa: PLC0415  (heavy: load lazily)
 
     mine = [a for a in attempts if a.zone == zone and a.landed][-RECENT_LANDINGS:]
     if len(mine) < MIN_BIAS_LANDINGS:

@@ -671,7 +671,7 @@ def landing_offsets(
 ) -> np.ndarray:
     """Signed landing offset (diamonds, + long) of each attempt, in the order given, from the
     ideal landing of its ``aim_used``; NaN where the table is unknown or the aim rail is not
-    the family's first. The quantity of calibrate.landing_error under the ideal model,
+    the family's first. The quantity of calibration.model.landing_error under the ideal model,
     vectorised per rail sequence (``ideal_landings``)."""
     cols = columns(attempts)
     out = np.full(len(cols), np.nan)

@@ -17,8 +17,8 @@ from textual.binding import Binding
 from textual.screen import Screen
 
 from tablecoach import paths
-from tablecoach.core import calibrate
 from tablecoach.core import drills as drills_mod
+from tablecoach.core.calibration import use as calibration_use
 from tablecoach.core.store import Store, StoreError
 from tablecoach.core.summary import by_family
 from tablecoach.core.table import BUILTIN_TABLES, DEFAULT_TABLE, TableSpec
@@ -99,7 +99,7 @@ def resolve(store: Store, table: str, drill: str, player: str) -> Resolved:
     player = player.strip()
     if not player or len(player) > 40:
         raise ValueError(f"a player name must be 1 to 40 characters, got {player!r}")
-    r = calibrate.resolve(store, table, player)
+    r = calibration_use.resolve(store, table, player)
     pack = drills_mod.find_drill(drill, paths.user_drills_dir())
     return Resolved(r.table, r.status, pack, player, r.calibration)
 

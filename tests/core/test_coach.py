@@ -270,6 +270,8 @@ def test_scheduler_with_a_builtin_drill() -> None:
 
 def test_zone_stats_default_bias_is_long_or_short_on_the_ideal_model() -> None:
     # A one-rail kick logged 0.25 diamond past the mirror landing (law of reflection) is long.
+    # It is a miss: a hit's stored landing is the model's own prediction, no measurement, and
+    # gives no bias (calibration.evidence).
     from dataclasses import replace
 
     s = shots.make_setup(T9, KICK, T9.to_metres(1, 1), None, None, T9.to_metres(3, 1))
@@ -282,9 +284,11 @@ def test_zone_stats_default_bias_is_long_or_short_on_the_ideal_model() -> None:
         shot=shots.record_of(T9, s),
         aim_given=reading,
         aim_used=reading,
+        result="miss",
         landing_rail=aim.landing.rail,
         landing_at=at + 0.25,
     )
     st = coach.zone_stats([a, a])
     (z,) = st
     assert st[z].bias == pytest.approx(0.25, abs=1e-4) and st[z].bias_n == 2
+    assert coach.zone_stats([replace(a, result="hit")])[z].bias is None

@@ -10,7 +10,7 @@ from types import SimpleNamespace
 import pytest
 
 from tablecoach.core import feedback, shots
-from tablecoach.core.calibrate import Estimate
+from tablecoach.core.calibration.value import Estimate
 from tablecoach.core.records import Attempt, utc_now
 from tablecoach.core.store import Store
 from tablecoach.core.table import builtin_table

@@ -152,10 +152,10 @@ def test_aim_shift_by_hand_for_a_one_rail_kick() -> None:
 
 
 def test_table_check_positions_sit_on_the_quarter_grid() -> None:
-    from tablecoach.core import calibrate
+    from tablecoach.core.calibration.check import table_check_setups
 
     for table in BUILTIN_TABLES.values():
-        for d in calibrate.table_check_setups(table):
+        for d in table_check_setups(table):
             for p in (d.setup.cue, d.setup.object, d.setup.target_ball):
                 if p is not None:
                     x, y = table.to_diamonds(*p)

@@ -717,8 +717,8 @@ async def test_v_opens_history_and_escape_returns(make_app):
 
 
 async def test_table_check_from_the_palette(make_app):
-    """The palette's table check deals calibrate.table_check_setups' reference shots first."""
-    from tablecoach.core.calibrate import table_check_setups
+    """The palette's table check deals the table check's reference shots first."""
+    from tablecoach.core.calibration.check import table_check_setups
 
     app = make_app()
     async with app.run_test(size=SIZE) as pilot:

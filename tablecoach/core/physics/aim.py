@@ -915,3 +915,82 @@ def convergence_physical(
         tuple((float(a), float(b)) for a, b in dirs),
         "physical",
     )
+
+
+# ----- a public seam for logged shots in batches (calibration) -------------------------------
+
+ShotBatch = _Problems
+"""The per-setup arrays of many setups of one family (``shot_batch``)."""
+
+
+@dataclass(frozen=True, slots=True)
+class _Strokes:
+    """One speed, english and follow per row (the launch takes arrays as well as numbers)."""
+
+    speed: np.ndarray
+    english: np.ndarray
+    follow: np.ndarray
+
+
+def shot_batch(table: TableSpec, setups: Sequence[Setup], balls: bool = True) -> ShotBatch:
+    """Many setups of one family as arrays, for ``run_shots``. The arrays hold geometry only,
+    so a batch serves every cloth and cushion value of a table of the same size. With
+    ``balls`` False the still balls are taken off the table (the path, the landing and the
+    closest approach of the target point are then those of the travelling ball alone)."""
+    pr = _problems(table, setups)
+    if not balls:
+        pr = _Problems(
+            pr.setups,
+            pr.rail,
+            pr.start,
+            pr.cue,
+            pr.target,
+            np.full_like(pr.balls, np.nan),
+            pr.ball_from,
+            pr.pocket,
+            pr.centre,
+            pr.bank,
+        )
+    return pr
+
+
+def run_shots(
+    table: TableSpec,
+    batch: ShotBatch,
+    readings: np.ndarray,
+    speed: np.ndarray,
+    english: np.ndarray,
+    follow: np.ndarray,
+    cushion: CushionModel = "stepped",
+) -> tuple[SimResult, np.ndarray]:
+    """Every row of a batch struck at its reading (metres along the first rail's sights, the
+    reported reading: for a bank, the object's thrown launch line, turned back into the line
+    of centres as ``predict_physical`` does) with its own speed and spin. Returns the
+    simulation and whether each row was launched (a bank whose cue ball stops before the
+    object ball, or cannot send it along the line, is not)."""
+    m = _model(table, cushion)
+    n = len(batch.setups)
+    pi = np.arange(n, dtype=np.int64)
+    reading = np.asarray(readings, dtype=float)
+    stroke = _Strokes(
+        np.asarray(speed, dtype=float),
+        np.asarray(english, dtype=float),
+        np.asarray(follow, dtype=float),
+    )
+    sv = reading.copy()
+    if batch.bank:
+        for _ in range(6):
+            ln = _launch(m, table, batch, pi, sv, stroke)  # type: ignore[arg-type]
+            good = ln.ok & np.isfinite(ln.reading)
+            step = np.where(good, reading - ln.reading, 0.0)
+            sv = sv + step
+            if float(np.max(np.abs(step), initial=0.0)) < 1e-9:
+                break
+    res, ln = _run(m, table, batch, pi, sv, stroke)  # type: ignore[arg-type]
+    return res, ln.ok
+
+
+def wall_crossing(table: TableSpec, p: np.ndarray, d: np.ndarray) -> RailPoint | None:
+    """Where the straight line from ``p`` along ``d`` first crosses a wall of the box one
+    radius inside the noses (how a ball at rest has its last line of travel read off)."""
+    return _extend(table, p, d)

@@ -53,7 +53,9 @@ class SimResult:
     entered (POCKETS index); ``landing_rail``/``landing_at`` the crossing after the family's
     rails; ``stop_pos`` where a row came to rest; ``miss`` the signed closest approach of the
     target point after the family's rails (left of travel positive); ``order_ok`` the family's
-    rails were the first crossings, in order, all on cushion; ``scores`` the shot made it.
+    rails were the first crossings, in order, all on cushion; ``scores`` the shot made it;
+    ``end_speed`` the row's speed where it ended (at its landing crossing, a pocket mouth, a
+    ball in lean mode, or 0 at rest).
     """
 
     walls: np.ndarray
@@ -77,6 +79,7 @@ class SimResult:
     ball_event: np.ndarray = field(default_factory=lambda: np.zeros(0, dtype=np.int64))
     segments: list[Segment] = field(default_factory=list)
     rail_vn: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    end_speed: np.ndarray = field(default_factory=lambda: np.zeros(0))
 
 
 def _pocket_arrays(table: TableSpec) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
@@ -393,6 +396,7 @@ def simulate(
         ball_event,
         segments,
         rail_vn,
+        np.hypot(v[:, 0], v[:, 1]),
     )
 
 

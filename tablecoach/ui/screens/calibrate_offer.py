@@ -62,10 +62,11 @@ class CalibrationOffer:
 
     @work(thread=True, group="calibrate", exit_on_error=False)
     def _calibrate_worker(self, table: str, player: str, model: str, before: Any) -> None:
-        from tablecoach.core.calibrate import calibrate_from_store  # noqa: PLC0415
+        from tablecoach.core.calibration.use import calibrate_from_store  # noqa: PLC0415
 
         try:
-            cal = calibrate_from_store(self.session.store, table, player, model=model)
+            cals = calibrate_from_store(self.session.store, table, player)
+            cal = next((c for c in cals if c.player == player), cals[0])
         except ValueError as exc:
             self.post_message(CalibrationDone(error=str(exc)))
             return

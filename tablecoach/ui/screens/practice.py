@@ -458,7 +458,7 @@ class PracticeScreen(ShotKeys, StrokeKeys, CalibrationOffer, Screen[None]):
 
     def action_table_check(self) -> None:
         try:
-            from tablecoach.core.calibrate import table_check_setups  # noqa: PLC0415
+            from tablecoach.core.calibration.check import table_check_setups  # noqa: PLC0415
 
             shots_ = table_check_setups(self.session.table)
         except ValueError as exc:

@@ -251,7 +251,7 @@ class Session:
         self.preset = SPEED_CYCLE[(i + 1) % len(SPEED_CYCLE)]
         speed = shots.SPEED_PRESETS[self.preset]
         if self.calibration is not None:
-            from tablecoach.core.calibrate import stroke_for  # noqa: PLC0415
+            from tablecoach.core.calibration.use import stroke_for  # noqa: PLC0415
 
             speed = stroke_for(self.calibration, self.preset).speed
         self.stroke = replace(self.stroke, speed=speed)
