@@ -13,6 +13,7 @@ import numpy as np
 from . import shots
 from .records import Attempt
 from .shots import RailPoint, Trace
+from .store.query import AttemptQuery
 from .table import RAILS, TableSpec
 
 
@@ -1203,7 +1204,7 @@ def calibrate_from_store(
             raise CalibrationError("no attempts logged yet: practise first")
         raise CalibrationError(f"name the player: --player NAME (players: {', '.join(names)})")
     table = store.get_table(table_name)
-    attempts = store.attempts(player=who, table=table_name)
+    attempts = store.attempts(AttemptQuery(player=who, table=table_name))
     if not attempts:
         raise CalibrationError(
             f"{who} has no attempts logged on the {table_name} table yet; the table check in "

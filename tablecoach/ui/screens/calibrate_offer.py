@@ -62,7 +62,7 @@ class CalibrationOffer:
 
     @work(thread=True, group="calibrate", exit_on_error=False)
     def _calibrate_worker(self, table: str, player: str, model: str, before: Any) -> None:
-        from tablecoach.core.calibrate import calibrate_from_store  # noqa: PLC0415
+        from tablecoach.core.calibrate import calibrate_from_store
 
         try:
             cal = calibrate_from_store(self.session.store, table, player, model=model)

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import importlib.util
 from functools import partial
 from typing import Any
 
@@ -14,11 +13,11 @@ from textual.screen import Screen
 from textual.widgets import Footer
 
 from tablecoach.core import shots
+from tablecoach.core.practice import REDRAWS, Session
 from tablecoach.core.shots import Aim, Convergence, Stroke
 
 from ..messages import AimSolved, ConvergenceFound, DealerRefreshed, SetupDealt
 from ..widgets.info import InfoCard, MessageLine, NotesPanel, SessionBar, card, notes, session_line
-from ..widgets.session import REDRAWS, Session
 from ..widgets.table_panel import TablePanel, draw, picture_of
 from .calibrate_offer import CalibrationOffer
 from .shot_keys import ShotKeys
@@ -30,11 +29,6 @@ without solving it again."""
 
 SOLVING_SHOWN_AFTER = 0.08
 """Seconds an aim solve may take before the screen says it is working on it."""
-
-
-def history_available() -> bool:
-    """True once the history screen (ui/screens/history.py) is installed."""
-    return importlib.util.find_spec("tablecoach.ui.screens.history") is not None
 
 
 class PracticeScreen(ShotKeys, StrokeKeys, CalibrationOffer, Screen[None]):
@@ -393,10 +387,6 @@ class PracticeScreen(ShotKeys, StrokeKeys, CalibrationOffer, Screen[None]):
 
     # ----- keys --------------------------------------------------------------------------------
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
-        if action == "history":
-            return history_available()
-        if action == "pin":
-            return self.session.dealer.coached
         return True
 
     def _ready(self) -> Aim | None:
@@ -426,9 +416,6 @@ class PracticeScreen(ShotKeys, StrokeKeys, CalibrationOffer, Screen[None]):
 
     def action_pin(self) -> None:
         dealer = self.session.dealer
-        if not dealer.coached:
-            self.say("pinning needs the coach, which is not installed")
-            return
         if self._pinned_text():
             with self.session.lock:
                 dealer.unpin()
@@ -458,7 +445,7 @@ class PracticeScreen(ShotKeys, StrokeKeys, CalibrationOffer, Screen[None]):
 
     def action_table_check(self) -> None:
         try:
-            from tablecoach.core.calibrate import table_check_setups  # noqa: PLC0415
+            from tablecoach.core.calibrate import table_check_setups
 
             shots_ = table_check_setups(self.session.table)
         except ValueError as exc:
@@ -471,21 +458,16 @@ class PracticeScreen(ShotKeys, StrokeKeys, CalibrationOffer, Screen[None]):
         self._deal()
 
     def action_history(self) -> None:
-        if not history_available():
-            self.say("the history screen is not installed")
-            return
-        from . import history  # noqa: PLC0415
+        from .history import HistoryScreen
 
-        screen = history.HistoryScreen(
-            self.session.store, self.session.player, ascii_only=self.ascii_only
-        )
+        screen = HistoryScreen(self.session.store, self.session.player, ascii_only=self.ascii_only)
         self.app.push_screen(screen)
 
     def action_setup(self) -> None:
         self.app.action_open_setup()  # type: ignore[attr-defined]
 
     def action_help(self) -> None:
-        from .help import HelpScreen  # noqa: PLC0415
+        from .help import HelpScreen
 
         self.app.push_screen(HelpScreen())
 

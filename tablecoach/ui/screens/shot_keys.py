@@ -9,7 +9,7 @@ from __future__ import annotations
 from typing import TYPE_CHECKING, Any
 
 from tablecoach.core.records import Attempt
-from tablecoach.core.store import StoreError
+from tablecoach.core.store.errors import StoreError
 
 from ..widgets import wording as w
 from ..widgets.landing import LandingPrompt, MissReport

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from tablecoach.core import placing
+from tablecoach.core.practice import shown_reading
 from tablecoach.core.shots import (
     Aim,
     Convergence,
@@ -74,11 +75,6 @@ def contact_text(table: TableSpec, aim: Aim) -> str:
     if first is None:
         return "not found"
     return f"{num(table.along_to_diamonds(first.rail, first.at))} on the {first.rail} rail"
-
-
-def shown_reading(table: TableSpec, aim: Aim) -> float:
-    """The reading as shown and logged: diamonds along the first rail, to 0.01."""
-    return round(table.along_to_diamonds(aim.rail, aim.reading), 2)
 
 
 def landing_diamonds(table: TableSpec, p: RailPoint) -> float:

@@ -7,7 +7,7 @@ import json
 import sys
 from typing import Any
 
-from ..cli import add_common
+from .options import add_common
 
 
 class ImportFileError(ValueError):

@@ -9,7 +9,7 @@ import tempfile
 from pathlib import Path
 from typing import Any
 
-from ..cli import add_common
+from .options import add_common
 
 
 def register(sub: Any) -> None:
@@ -36,6 +36,7 @@ def register(sub: Any) -> None:
 def run(args: argparse.Namespace) -> int:
     from ..core import formats
     from ..core.store import Store
+    from ..core.store.query import AttemptQuery
     from ..paths import db_path
 
     fmt = args.format or ("csv" if (args.output or "").lower().endswith(".csv") else "jsonl")
@@ -43,7 +44,8 @@ def run(args: argparse.Namespace) -> int:
     attempts = []
     if path.exists():  # nothing logged yet: an empty export, and no database created for it
         with Store.open(path) as s:
-            attempts = s.attempts(player=args.player, table=args.table, family=args.family)
+            query = AttemptQuery(player=args.player, table=args.table, family=args.family)
+            attempts = s.attempts(query)
     if args.output is None:
         formats.write_any(attempts, sys.stdout, fmt)
         sys.stdout.flush()

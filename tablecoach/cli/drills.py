@@ -7,7 +7,7 @@ import json
 from pathlib import Path
 from typing import Any
 
-from ..cli import add_common, whole
+from .options import add_common, whole
 
 
 def _action_common(p: argparse.ArgumentParser) -> None:

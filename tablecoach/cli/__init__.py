@@ -1,9 +1,10 @@
-"""The command line: argparse, one module a subcommand in tablecoach/commands/.
+"""The command line: the parser and ``main``; one module a subcommand beside this one.
 
 ``tablecoach`` with no subcommand opens the practice app. Each subcommand module exposes
 ``register(subparsers) -> None`` (adds its parser, sets ``func``) and keeps heavy imports inside
-its run function, so that a plain command starts fast. Domain errors (ValueError subclasses)
-become one line on stderr and exit code 2, never a traceback.
+its run function, so that a plain command starts fast; the options several share are in
+``options``. Domain errors (ValueError subclasses) become one line on stderr and exit code 2,
+never a traceback.
 """
 
 from __future__ import annotations
@@ -11,15 +12,14 @@ from __future__ import annotations
 import argparse
 import errno
 import importlib
-import math
 import os
 import sys
-from collections.abc import Callable, Sequence
+from collections.abc import Sequence
 from typing import Any
 
-from . import __version__
+from .. import __version__
+from .options import add_common
 
-# Subcommand modules in help order; a module that is not there yet is skipped.
 COMMANDS = (
     "aim",
     "predict",
@@ -34,6 +34,7 @@ COMMANDS = (
     "demo",
     "backup",
 )
+"""The subcommand modules (tablecoach/cli/NAME.py), in help order."""
 
 
 class Parser(argparse.ArgumentParser):
@@ -45,56 +46,6 @@ class Parser(argparse.ArgumentParser):
         if len(first) > 300:  # a huge value quoted back would bury the point
             first = first[:297] + "..."
         self.exit(2, f"{self.prog}: {first} (see '{self.prog} --help')\n")
-
-
-def number(lo: float = -math.inf, hi: float = math.inf, unit: str = "") -> Callable[[str], float]:
-    """An argparse type: a finite number within ``lo`` to ``hi`` (NaN, infinities, numbers
-    too long to be one and out-of-range values refused with the range)."""
-    from .core import validate
-
-    def parse(text: str) -> float:
-        try:
-            return validate.number_text(text, "value", lo, hi, unit)
-        except validate.InputError as exc:
-            raise argparse.ArgumentTypeError(str(exc).removeprefix("field 'value' ")) from None
-
-    parse.__name__ = "number"
-    return parse
-
-
-def whole(lo: int, hi: int) -> Callable[[str], int]:
-    """An argparse type: a whole number from ``lo`` to ``hi``."""
-
-    def parse(text: str) -> int:
-        t = text.strip()
-        try:
-            if len(t) > 20:
-                raise ValueError
-            v = int(t)
-        except ValueError:
-            raise argparse.ArgumentTypeError(
-                f"{text[:24]!r} is not a whole number from {lo} to {hi}"
-            ) from None
-        if not (lo <= v <= hi):
-            raise argparse.ArgumentTypeError(f"{v} is outside {lo} to {hi}")
-        return v
-
-    parse.__name__ = "whole number"
-    return parse
-
-
-def add_common(p: argparse.ArgumentParser, top: bool = False) -> None:
-    """Options every subcommand takes.
-
-    On a subcommand the default is SUPPRESS, so a --data-dir given before the command name is
-    not overwritten by the subparser's own default.
-    """
-    p.add_argument(
-        "--data-dir",
-        default=None if top else argparse.SUPPRESS,
-        help="where the practice database lives (default: your user data folder; "
-        "also the TABLECOACH_DATA_DIR environment variable)",
-    )
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -110,13 +61,7 @@ def build_parser() -> argparse.ArgumentParser:
     parser.add_argument("--player", default=None, help="player name (practice screen)")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     for name in COMMANDS:
-        try:
-            mod = importlib.import_module(f"tablecoach.commands.{name}")
-        except ModuleNotFoundError as exc:
-            if exc.name == f"tablecoach.commands.{name}":
-                continue
-            raise
-        mod.register(sub)
+        importlib.import_module(f"tablecoach.cli.{name}").register(sub)
     return parser
 
 
@@ -136,7 +81,7 @@ def main(argv: Sequence[str] | None = None) -> int:
         os.environ["TABLECOACH_DATA_DIR"] = args.data_dir
     try:
         if args.command is None:
-            from .ui.app import run_app  # lazy: only the practice screen needs textual
+            from ..ui.app import run_app  # lazy: only the practice screen needs textual
 
             return run_app(args)
         return int(args.func(args) or 0)

@@ -7,8 +7,15 @@ import json
 from pathlib import Path
 from typing import Any
 
-from ..cli import add_common
-from .history import HistoryError, add_filter_options
+from .options import (
+    FilterError,
+    add_common,
+    add_filter_options,
+    describe,
+    open_store,
+    parse_tz,
+    query_from,
+)
 
 
 def register(sub: Any) -> None:
@@ -40,19 +47,19 @@ def pick_format(output: str | None, fmt: str | None) -> str:
             return suffix
         if suffix == "htm":
             return "html"
-        raise HistoryError(f"--output {output!r} must end in .svg or .html (or give --format)")
+        raise FilterError(f"--output {output!r} must end in .svg or .html (or give --format)")
     return "html"
 
 
 def render_report(console: Any, h: Any, title: str, tz: Any, items: Any, ascii_only: bool) -> None:
     """Print the report's parts onto a (recording) Rich console."""
-    from rich.rule import Rule  # noqa: PLC0415
-    from rich.table import Table  # noqa: PLC0415
-    from rich.text import Text  # noqa: PLC0415
+    from rich.rule import Rule
+    from rich.table import Table
+    from rich.text import Text
 
-    from ..core import history  # noqa: PLC0415
-    from ..render.heatmap import HeatMap, legend_text  # noqa: PLC0415
-    from .history import pct, spark  # noqa: PLC0415
+    from ..core.stats.zones import grid_rates
+    from ..render.heatmap import HeatMap, legend_text
+    from ..render.rates import pct, spark
 
     console.print(Text(title, style="bold"))
     if h.rate.attempts == 0:
@@ -77,11 +84,11 @@ def render_report(console: Any, h: Any, title: str, tz: Any, items: Any, ascii_o
         )
     console.print(fam)
     console.print(Rule("Make rate by where the travelling ball started (all families)"))
-    console.print(HeatMap(history.grid_rates(items), ascii_only=ascii_only))
+    console.print(HeatMap(grid_rates(items), ascii_only=ascii_only))
     console.print(legend_text())
     for f in sorted(h.families) if len(h.families) > 1 else ():
         console.print(Rule(f"{f}"))
-        console.print(HeatMap(history.grid_rates(items, family=f), ascii_only=ascii_only))
+        console.print(HeatMap(grid_rates(items, family=f), ascii_only=ascii_only))
     if h.bias:
         bias = Table(title="Landing against ideal reflection of the aim used (+ long, - short)")
         for col in ("family", "speed", "attempts", "mean (diamonds)", "long", "short"):
@@ -112,34 +119,32 @@ def render_report(console: Any, h: Any, title: str, tz: Any, items: Any, ascii_o
 
 
 def run(args: argparse.Namespace) -> int:
-    import io  # noqa: PLC0415
+    import io
 
-    from rich.console import Console  # noqa: PLC0415
+    from rich.console import Console
 
-    from ..core import history  # noqa: PLC0415
-    from .history import filters_from, open_store, parse_tz, query, table_resolver  # noqa: PLC0415
+    from ..core.stats.frame import ordered
+    from ..core.stats.history import summarize
 
     fmt = pick_format(args.output, args.format)
     if not (60 <= args.width <= 200):
-        raise HistoryError(f"--width {args.width} must be between 60 and 200 characters")
-    f = filters_from(args)
+        raise FilterError(f"--width {args.width} must be between 60 and 200 characters")
+    query, first, last = query_from(args)
     tz = parse_tz(args.tz)
     store = open_store()
     items: list[Any] = []
-    look = None
     if store is not None:
         try:
-            items = query(store, f, tz)
-            look = table_resolver(store)
-            h = history.summarize(items, tz=tz, table_of=look)
+            items = store.attempts(query)
+            h = summarize(items, tz=tz, table_of=store.table_lookup())
         finally:
             store.close()
     else:
-        h = history.summarize([], tz=tz)
-    if f.session is not None:
-        title = f"tablecoach report: session {f.session}"
+        h = summarize([], tz=tz)
+    if query.session is not None:
+        title = f"tablecoach report: session {query.session}"
     else:
-        title = f"tablecoach report: {f.describe()}"
+        title = f"tablecoach report: {describe(query, first, last)}"
     console = Console(
         record=True,
         width=args.width,
@@ -147,7 +152,7 @@ def run(args: argparse.Namespace) -> int:
         force_terminal=True,
         color_system="truecolor",
     )
-    render_report(console, h, title, tz, history.ordered(items), args.ascii)
+    render_report(console, h, title, tz, ordered(items), args.ascii)
     text = console.export_svg(title=title) if fmt == "svg" else console.export_html()
     out = Path(args.output) if args.output else Path(f"tablecoach-report.{fmt}")
     tmp = out.with_name(out.name + ".part")

@@ -7,12 +7,10 @@ import json
 import sys
 from typing import Any
 
-from ..cli import add_common, number
+from .options import add_common, add_shot_options, number, setup_from_args
 
 
 def register(sub: Any) -> None:
-    from .aim import add_shot_options
-
     p = sub.add_parser(
         "predict",
         help="where a given aim reading lands and whether it scores",
@@ -79,10 +77,9 @@ def _text(data: dict[str, Any], speed: float) -> str:
 def run(args: argparse.Namespace) -> int:
     from ..core import shots
     from ..core.records import rail_length_diamonds
-    from .aim import available_model, setup_from_args
 
     table, setup, stroke, _status = setup_from_args(args)
-    model = available_model(args.model)
+    model = args.model
     rail = setup.family.rails[0]
     top = rail_length_diamonds(rail)
     if not (0.0 <= args.reading <= top):

@@ -6,7 +6,7 @@ import argparse
 import json
 from typing import Any
 
-from ..cli import add_common
+from .options import add_common
 
 
 def _action_common(p: argparse.ArgumentParser) -> None:

@@ -6,7 +6,7 @@ import argparse
 import json
 from typing import Any
 
-from ..cli import add_common, whole
+from .options import add_common, open_store, parse_tz, whole
 
 
 def register(sub: Any) -> None:
@@ -28,11 +28,10 @@ def register(sub: Any) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    import numpy as np  # noqa: PLC0415
+    import numpy as np
 
-    from ..core import demo  # noqa: PLC0415
-    from ..core.records import utc_now  # noqa: PLC0415
-    from .history import open_store, parse_tz  # noqa: PLC0415
+    from ..core import demo
+    from ..core.records import utc_now
 
     if not (1 <= args.weeks <= 26):
         raise demo.DemoError(f"--weeks {args.weeks} must be between 1 and 26")

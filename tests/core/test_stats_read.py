@@ -1,8 +1,8 @@
-"""Tests for the store's columnar read (Store.columns) against the slow way (attempts + flatten)."""
+"""Tests for the store's columnar read and the stats frame read from it (core/stats/read.py),
+against the slow way (Store.attempts, records.flatten and stats.frame.frame_of)."""
 
 from __future__ import annotations
 
-import math
 import sqlite3
 from datetime import UTC, datetime, timedelta
 from pathlib import Path
@@ -11,9 +11,16 @@ from zoneinfo import ZoneInfo
 import numpy as np
 import pytest
 
-from tablecoach.core import demo, history
+from tablecoach.core import demo
 from tablecoach.core.records import FLAT_FIELDS, Attempt, ShotRecord, flatten, validate_attempt
-from tablecoach.core.store import AttemptColumns, Store, StoreError, _parse_times
+from tablecoach.core.stats.frame import Frame, frame_of
+from tablecoach.core.stats.history import history_dict, summarize
+from tablecoach.core.stats.read import JOINED_FIELDS, read_frame, split_keys
+from tablecoach.core.stats.stamps import parse_times
+from tablecoach.core.store import Store
+from tablecoach.core.store import attempts as store_attempts
+from tablecoach.core.store.errors import StoreError
+from tablecoach.core.store.query import EVERYTHING, AttemptQuery
 from tablecoach.core.table import POCKETS, RAILS
 
 T0 = datetime(2024, 2, 27, 22, 59, 58, 999999, tzinfo=UTC)  # spans a leap day and midnights
@@ -103,30 +110,43 @@ def _same(x: object, y: object) -> bool:
     return x == y and type(x) is type(y)
 
 
-def assert_columns_equal(cols: AttemptColumns, ref: list[Attempt]) -> None:
-    """The columns hold exactly what flatten() gives for each reference attempt, in order."""
-    assert len(cols) == len(ref)
-    assert cols.id.tolist() == [a.id for a in ref]
-    assert cols.session.tolist() == [-1 if a.session is None else a.session for a in ref]
-    for i, a in enumerate(ref):
-        flat = flatten(a)
-        got = cols.flat(i)
-        assert len(got) == len(FLAT_FIELDS)
-        for name, want, have in zip(FLAT_FIELDS, flat, got, strict=True):
-            assert _same(want, have), (i, name, want, have)
-    # the raw arrays themselves, field by field
+def stored_form(name: str, value: object) -> object:
+    """A flattened field as the attempts table keeps it (store.rows.to_row)."""
+    if name == "when":  # the instant; its text is iso_utc's but a hand-made row may differ
+        return value
+    if name == "rails":
+        return ",".join(value)  # type: ignore[arg-type]
+    return value
+
+
+def assert_raw_columns_equal(s: Store, query: AttemptQuery, ref: list[Attempt]) -> None:
+    """Store.attempt_columns holds exactly what flatten() gives for each reference attempt,
+    in order, in the stored form."""
+    cols = s.attempt_columns(query, FLAT_FIELDS)
+    assert list(cols[-2]) == [a.id for a in ref]
+    assert list(cols[-1]) == [a.session for a in ref]
     for k, name in enumerate(FLAT_FIELDS):
-        col = getattr(cols, name)
-        want = [flatten(a)[k] for a in ref]
-        if name == "when":
-            assert col.dtype == np.dtype("datetime64[us]")
-            naive = [w.astimezone(UTC).replace(tzinfo=None) for w in want]
-            assert col.tolist() == naive
-        elif isinstance(col, np.ndarray):
-            assert col.dtype == np.float64
-            assert [None if math.isnan(v) else v for v in col.tolist()] == want
+        want = [stored_form(name, flatten(a)[k]) for a in ref]
+        got = list(cols[k]) if name != "when" else [datetime.fromisoformat(t) for t in cols[k]]
+        assert len(got) == len(want)
+        for i, (x, y) in enumerate(zip(want, got, strict=True)):
+            assert _same(x, y), (i, name, x, y)
+
+
+def assert_frames_equal(fast: Frame, slow: Frame) -> None:
+    """A frame read from the store equals the frame of the same Attempt objects, field by
+    field; times to the microsecond (``when``), the float seconds to a microsecond."""
+    assert len(fast) == len(slow)
+    for name in Frame.__dataclass_fields__:
+        if name in ("attempts", "us", "ts"):
+            continue
+        x, y = getattr(fast, name), getattr(slow, name)
+        if isinstance(x, np.ndarray):
+            assert x.shape == y.shape and np.array_equal(x, y, equal_nan=True), name
         else:
-            assert list(col) == want
+            assert x == y, name
+    assert np.allclose(fast.ts, slow.ts, rtol=0.0, atol=1e-6)
+    assert [fast.when(i) for i in range(len(fast))] == [slow.when(i) for i in range(len(slow))]
 
 
 def filter_cases(s: Store) -> list[dict[str, object]]:
@@ -151,44 +171,41 @@ def filter_cases(s: Store) -> list[dict[str, object]]:
 def test_columns_equal_flattened_attempts_for_every_filter(filled: Store) -> None:
     # Reference: the slow path, Attempt objects from Store.attempts laid flat by records.flatten.
     for kw in filter_cases(filled):
-        ref = filled.attempts(**kw)  # type: ignore[arg-type]
-        assert_columns_equal(filled.columns(**kw), ref)  # type: ignore[arg-type]
-    assert len(filled.columns(player="nobody")) == 0
+        q = AttemptQuery(**kw)  # type: ignore[arg-type]
+        assert_raw_columns_equal(filled, q, filled.attempts(q))
+    assert filled.attempt_columns(AttemptQuery(player="nobody"), ["when"]) == [(), (), ()]
+
+
+def test_frame_read_equals_frame_of_attempts_for_every_filter(filled: Store) -> None:
+    # Reference: stats.frame.frame_of over the Attempt objects of the same query.
+    for kw in filter_cases(filled):
+        q = AttemptQuery(**kw)  # type: ignore[arg-type]
+        assert_frames_equal(read_frame(filled, q), frame_of(filled.attempts(q)))
+    assert len(read_frame(filled, AttemptQuery(player="nobody"))) == 0
 
 
 def test_random_data_has_absent_positions_and_both_orders(filled: Store) -> None:
     # The data must exercise what the test claims: absent object balls and target balls.
-    cols = filled.columns()
-    assert np.isnan(cols.object_x).any() and not np.isnan(cols.object_x).all()
-    assert np.isnan(cols.target_x).any() and not np.isnan(cols.target_x).all()
-    assert None in cols.pocket
-    assert (cols.session == -1).any() and (cols.session > 0).any()
-    w = cols.when.astype(np.int64)
+    names = ("object_x", "target_x", "pocket", "when")
+    ox, tx, pocket, when, _ids, sessions = filled.attempt_columns(EVERYTHING, names)
+    assert None in ox and any(v is not None for v in ox)
+    assert None in tx and any(v is not None for v in tx)
+    assert None in pocket
+    assert None in sessions and any(v is not None for v in sessions)
+    w = parse_times(when).astype(np.int64)
     assert (np.diff(w) == 0).any()  # the twins share a time; ids keep them in order
     assert (np.diff(w) >= 0).all()
 
 
-def test_columns_back_to_attempts(filled: Store) -> None:
-    assert filled.columns().to_attempts() == filled.attempts()
-
-
 def test_field_subset_reads_only_those(filled: Store) -> None:
-    cols = filled.columns(player="cy", fields=("result", "when"))
-    ref = filled.attempts(player="cy")
-    assert cols.result == tuple(a.result for a in ref)
-    assert cols.player is None and cols.speed is None
-    assert cols.id.tolist() == [a.id for a in ref]
-    with pytest.raises(StoreError, match="not read"):
-        cols.flat(0)
+    q = AttemptQuery(player="cy")
+    cols = filled.attempt_columns(q, ("result", "when"))
+    ref = filled.attempts(q)
+    assert len(cols) == 4
+    assert cols[0] == tuple(a.result for a in ref)
+    assert list(cols[2]) == [a.id for a in ref]
     with pytest.raises(StoreError, match="unknown attempt field 'colour'"):
-        filled.columns(fields=("colour",))
-
-
-def test_take_reorders_every_field(filled: Store) -> None:
-    cols = filled.columns(table="7ft")
-    idx = np.arange(len(cols))[::-1]
-    back = cols.take(idx)
-    assert [back.flat(i) for i in range(len(back))] == [cols.flat(i) for i in idx.tolist()]
+        filled.attempt_columns(EVERYTHING, ("colour",))
 
 
 def test_time_parser_matches_fromisoformat() -> None:
@@ -200,7 +217,7 @@ def test_time_parser_matches_fromisoformat() -> None:
     whens = [epoch + timedelta(microseconds=u) for u in us]
     whens += [datetime(2024, 2, 29, 23, 59, 59, 999999, tzinfo=UTC), epoch]
     texts = [w.isoformat(timespec="microseconds") for w in whens]
-    got = _parse_times(texts).tolist()
+    got = parse_times(texts).tolist()
     assert got == [datetime.fromisoformat(t).replace(tzinfo=None) for t in texts]
 
 
@@ -212,7 +229,7 @@ def test_time_parser_falls_back_for_other_forms() -> None:
         "2026-03-14T18:30:00.000001+00:00",
     ]
     want = [datetime.fromisoformat(t).astimezone(UTC).replace(tzinfo=None) for t in texts]
-    assert _parse_times(texts).tolist() == want
+    assert parse_times(texts).tolist() == want
 
 
 def test_odd_stored_time_is_read_as_attempts_reads_it(tmp_path: Path) -> None:
@@ -226,37 +243,38 @@ def test_odd_stored_time_is_read_as_attempts_reads_it(tmp_path: Path) -> None:
     conn.commit()
     conn.close()
     with Store.open(path) as s:
-        assert_columns_equal(s.columns(), s.attempts())
+        assert_raw_columns_equal(s, EVERYTHING, s.attempts())
+        assert_frames_equal(read_frame(s), frame_of(s.attempts()))
 
 
 def test_summarize_columns_equals_summarize_attempts(filled: Store) -> None:
-    # Reference: history.summarize over Attempt objects (itself held to the one-concept
+    # Reference: stats.history.summarize over Attempt objects (itself held to the one-concept
     # functions in test_history.py); the columnar read must give the identical History.
     for tz in (UTC, ZoneInfo("Europe/Lisbon")):
         for kw in filter_cases(filled):
-            slow = history.summarize(
-                filled.attempts(**kw),  # type: ignore[arg-type]
+            slow = summarize(
+                filled.attempts(AttemptQuery(**kw)),  # type: ignore[arg-type]
                 tz=tz,
                 today=T0.date() + timedelta(days=30),
             )
-            fast = history.summarize(
-                filled.columns(**kw, fields=history.HISTORY_FIELDS),  # type: ignore[arg-type]
+            fast = summarize(
+                read_frame(filled, AttemptQuery(**kw)),  # type: ignore[arg-type]
                 tz=tz,
                 today=T0.date() + timedelta(days=30),
             )
             assert fast == slow, kw
-            assert history.history_dict(fast) == history.history_dict(slow)
+            assert history_dict(fast) == history_dict(slow)
 
 
 def test_summarize_columns_with_a_custom_zone_key(filled: Store) -> None:
     def zone(a: Attempt) -> str:
         return a.table
 
-    slow = history.summarize(filled.attempts(), tz=UTC, zone_fn=zone)
-    fast = history.summarize(filled.columns(), tz=UTC, zone_fn=zone)
+    slow = summarize(filled.attempts(), tz=UTC, zone_fn=zone)
+    fast = summarize(frame_of(filled.attempts()), tz=UTC, zone_fn=zone)
     assert fast == slow and set(fast.zones) == set(TABLES)
-    with pytest.raises(ValueError, match="needs the attempt field"):
-        history.summarize(filled.columns(fields=("when",)), tz=UTC)
+    with pytest.raises(ValueError, match="needs the attempts themselves"):
+        summarize(read_frame(filled), tz=UTC, zone_fn=zone)
 
 
 def test_demo_club_history_same_both_ways(tmp_path: Path) -> None:
@@ -270,8 +288,8 @@ def test_demo_club_history_same_both_ways(tmp_path: Path) -> None:
         infos = s.sessions()
         assert [i.started for i in infos] == [x.attempts[0].when for x in club.sessions]
         look = {t.name: t for t in club.tables}.get
-        slow = history.summarize(s.attempts(), tz=UTC, today=now.date(), table_of=look)
-        fast = history.summarize(s.columns(), tz=UTC, today=now.date(), table_of=look)
+        slow = summarize(s.attempts(), tz=UTC, today=now.date(), table_of=look)
+        fast = summarize(read_frame(s), tz=UTC, today=now.date(), table_of=look)
         assert fast == slow and len(fast.bias) > 0
 
 
@@ -293,39 +311,39 @@ def test_a_value_holding_the_key_separator_is_read_field_by_field(
     # The key fields are joined with char(31) in SQL; a name holding it must not be split.
     # New names with control characters are refused (issue 15), but a store written before
     # that may hold them: the write-side check is lifted here to make such a store.
-    import tablecoach.core.store as store_mod
-    from tablecoach.core.records import validate_attempt
-
-    monkeypatch.setattr(store_mod, "_check_attempt", validate_attempt)
+    monkeypatch.setattr(store_attempts, "check_attempt", validate_attempt)
     rng = np.random.default_rng(11)
     with Store.open(tmp_path / "sep.sqlite3") as s:
         odd = Attempt(**{**_fields(random_attempt(rng)), "player": "a\x1fb", "drill": "x\x1f"})
         s.log_many([random_attempt(rng), odd, random_attempt(rng)])
-        cols = s.columns()
-        assert cols.key is None  # the joined read was refused
-        assert "a\x1fb" in cols.player
-        assert_columns_equal(cols, s.attempts())
-        keyed = s.columns(player="a\x1fb", fields=("player", "table", "result"))
-        assert keyed.player == ("a\x1fb",) and keyed.key is None
+        joined = s.attempt_columns(EVERYTHING, (), JOINED_FIELDS)[0]
+        assert split_keys(joined, JOINED_FIELDS) is None  # the joined read is refused
+        frame = read_frame(s)
+        assert "a\x1fb" in frame.players
+        assert_frames_equal(frame, frame_of(s.attempts()))
+        one = read_frame(s, AttemptQuery(player="a\x1fb"))
+        assert one.players == ("a\x1fb",) and len(one) == 1
 
 
 def test_keyed_columns_group_like_the_tuples(filled: Store) -> None:
-    cols = filled.columns(fields=history.HISTORY_FIELDS)
-    assert cols.key is not None and set(cols.key_fields) <= set(history.HISTORY_FIELDS)
-    for j, name in enumerate(cols.key_fields):
-        assert tuple(cols.key_values[k][j] for k in cols.key.tolist()) == getattr(cols, name)
-    firsts = [cols.key.tolist().index(k) for k in range(len(cols.key_values))]
+    cols = filled.attempt_columns(EVERYTHING, JOINED_FIELDS, JOINED_FIELDS)
+    split = split_keys(cols[len(JOINED_FIELDS)], JOINED_FIELDS)
+    assert split is not None
+    key, combos = split
+    for j, name in enumerate(JOINED_FIELDS):
+        per_row = tuple(combos[k][j] for k in key.tolist())
+        want = cols[j] if name != "rails" else tuple(tuple(r.split(",")) for r in cols[j])
+        assert per_row == want, name
+    firsts = [key.tolist().index(k) for k in range(len(combos))]
     assert firsts == sorted(firsts)  # numbered in order of first appearance
 
 
 def plan(s: Store, **kw: object) -> str:
-    where, args = s._filters(  # noqa: SLF001  (the store's own WHERE clause)
-        kw.get("player"), kw.get("table"), kw.get("family"),  # type: ignore[arg-type]
-        kw.get("since"), kw.get("until"), kw.get("session"),  # type: ignore[arg-type]
-    )  # fmt: skip
-    rows = s._conn.execute(  # noqa: SLF001
-        f"EXPLAIN QUERY PLAN SELECT cue_x FROM attempts{where} ORDER BY at, id", args
-    ).fetchall()
+    where, args = AttemptQuery(**kw).where()  # type: ignore[arg-type]
+    with s.reading() as c:
+        rows = c.execute(
+            f"EXPLAIN QUERY PLAN SELECT cue_x FROM attempts{where} ORDER BY at, id", args
+        ).fetchall()
     return "; ".join(r[3] for r in rows)
 
 
@@ -352,8 +370,8 @@ def test_history_queries_use_an_index(filled: Store) -> None:
         if "session" not in kw:
             assert "TEMP B-TREE" not in p, (kw, p)
     # and the session filter still returns the same attempts with the other terms present
-    ref = filled.attempts(session=sid)
+    ref = filled.attempts(AttemptQuery(session=sid))
     assert len(ref) == first.attempts > 0
-    assert filled.attempts(player=who, session=sid) == ref
-    assert filled.attempts(player=who + "x", session=sid) == []
-    assert_columns_equal(filled.columns(player=who, session=sid), ref)
+    assert filled.attempts(AttemptQuery(player=who, session=sid)) == ref
+    assert filled.attempts(AttemptQuery(player=who + "x", session=sid)) == []
+    assert_raw_columns_equal(filled, AttemptQuery(player=who, session=sid), ref)

@@ -1,21 +1,21 @@
-"""The practice session without the screen: dealing setups, building and logging attempts."""
+"""The practice session, headless: dealing setups, the stroke and spin, logging, undo, repeats."""
 
 from __future__ import annotations
 
-import importlib.util
 import threading
 from dataclasses import dataclass, replace
 from typing import Any
 
 import numpy as np
 
-from tablecoach.core import shots
-from tablecoach.core.records import Attempt, rail_length_diamonds, utc_now
-from tablecoach.core.shots import Aim, Setup, Stroke
-from tablecoach.core.store import Store
-from tablecoach.core.table import TableSpec
-
-from .wording import shown_reading
+from . import feedback, shots
+from .coach import Scheduler, zone_of
+from .records import Attempt, rail_length_diamonds, utc_now
+from .shots import Aim, Setup, Stroke
+from .spin import SPIN_STEPS, spin_for
+from .store import Store
+from .store.query import AttemptQuery
+from .table import TableSpec
 
 SPEED_CYCLE: tuple[str, ...] = tuple(shots.SPEED_PRESETS)
 """The named strokes the speed key steps through, softest first (shots.STROKE_LENGTHS)."""
@@ -30,12 +30,9 @@ REDRAWS = 3
 can solve, before it shows the ideal aim with a note."""
 
 
-def physical_available() -> bool:
-    """True once the physical aim model (core/physics/aim.py) is installed."""
-    try:
-        return importlib.util.find_spec("tablecoach.core.physics.aim") is not None
-    except ModuleNotFoundError:
-        return False
+def shown_reading(table: TableSpec, aim: Aim) -> float:
+    """The reading as shown and logged: diamonds along the first rail, to 0.01."""
+    return round(table.along_to_diamonds(aim.rail, aim.reading), 2)
 
 
 def zone_label(zone: Any) -> str:
@@ -86,7 +83,7 @@ def stats_of(attempts: list[Attempt]) -> Stats:
 
 
 class Dealer:
-    """The next setup: the coach's scheduler when installed, else the drill pack in dealt order."""
+    """The next setup: a reference shot of the table check, else the coach's scheduler's pick."""
 
     def __init__(
         self,
@@ -100,21 +97,9 @@ class Dealer:
         self.drill = drill
         self.rng = rng
         self.model = model
-        self.scheduler: Any = None
-        try:
-            from tablecoach.core.coach import Scheduler  # noqa: PLC0415
-        except ImportError:
-            Scheduler = None  # noqa: N806
-        if Scheduler is not None:
-            self.scheduler = Scheduler(table, drill, list(attempts), rng, model=DEAL_MODEL)
-        self._queue: list[Any] = []
-        self._size = 0
+        self.scheduler = Scheduler(table, drill, list(attempts), rng, model=DEAL_MODEL)
         self._check: list[Any] = []
         self._check_size = 0
-
-    @property
-    def coached(self) -> bool:
-        return self.scheduler is not None
 
     def queue_check(self, dealt: list[Any]) -> None:
         """Deal these reference shots (the table check) before anything else."""
@@ -132,41 +117,27 @@ class Dealer:
             n = self._check_size - len(self._check)
             why = f"table check, reference shot {n} of {self._check_size}: it calibrates the table"
             return Pick(d.setup, d.stroke, d.label, "", why)
-        if self.scheduler is not None:
-            choice = self.scheduler.next()
-            d = choice.dealt
-            return Pick(d.setup, d.stroke, d.label, choice.zone, str(choice.why))
-        from tablecoach.core.drills import deal  # noqa: PLC0415
-
-        if not self._queue:
-            self._queue = list(deal(self.table, self.drill, self.rng))
-            self._size = len(self._queue)
-            if not self._queue:
-                raise shots.ShotError("this drill pack deals no setups on this table")
-        d = self._queue.pop(0)
-        n = self._size - len(self._queue)
-        return Pick(d.setup, d.stroke, d.label, "", f"next in the pack ({n} of {self._size})")
+        choice = self.scheduler.next()
+        d = choice.dealt
+        return Pick(d.setup, d.stroke, d.label, choice.zone, str(choice.why))
 
     def record(self, attempt: Attempt) -> None:
-        if self.scheduler is not None:
-            self.scheduler.record(attempt)
+        """Tell the coach about a logged attempt."""
+        self.scheduler.record(attempt)
 
     def rebuild(self, attempts: list[Attempt]) -> None:
         """Start the scheduler again from these attempts (after an undo)."""
-        if self.scheduler is not None:
-            from tablecoach.core.coach import Scheduler  # noqa: PLC0415
-
-            self.scheduler = Scheduler(
-                self.table, self.drill, list(attempts), self.rng, model=DEAL_MODEL
-            )
+        self.scheduler = Scheduler(
+            self.table, self.drill, list(attempts), self.rng, model=DEAL_MODEL
+        )
 
     def pin(self, zone: Any = None, family: str | None = None, count: int = 10) -> None:
-        if self.scheduler is not None:
-            self.scheduler.pin(zone=zone, family=family, count=count)
+        """Keep dealing one zone or family for ``count`` setups."""
+        self.scheduler.pin(zone=zone, family=family, count=count)
 
     def unpin(self) -> None:
-        if self.scheduler is not None:
-            self.scheduler.unpin()
+        """Let the coach pick again."""
+        self.scheduler.unpin()
 
 
 def drill_name(drill: Any) -> str:
@@ -198,7 +169,7 @@ class Session:
         self.player = player
         self.rng = rng
         self.model = model
-        self.earlier = store.attempts(player=player, table=table.name)
+        self.earlier = store.attempts(AttemptQuery(player=player, table=table.name))
         self.dealer = Dealer(table, drill, self.earlier, rng, model)
         self.id = store.start_session(player, table.name, drill_name(drill))
         self.logged: list[Attempt] = []
@@ -251,7 +222,7 @@ class Session:
         self.preset = SPEED_CYCLE[(i + 1) % len(SPEED_CYCLE)]
         speed = shots.SPEED_PRESETS[self.preset]
         if self.calibration is not None:
-            from tablecoach.core.calibrate import stroke_for  # noqa: PLC0415
+            from .calibrate import stroke_for  # calibrate is heavy: loaded lazily
 
             speed = stroke_for(self.calibration, self.preset).speed
         self.stroke = replace(self.stroke, speed=speed)
@@ -259,25 +230,15 @@ class Session:
 
     def played_zone(self, aim: Aim | None) -> Any:
         """The coach's zone of the shown setup at the stroke to be played (the dealt zone when
-        nothing is solved yet or the coach is not installed): a pin follows the stroke played."""
+        nothing is solved yet): a pin follows the stroke played."""
         if self.pick is None or aim is None or not self.pick.zone:
             return self.pick.zone if self.pick is not None else None
-        try:
-            from tablecoach.core.coach import zone_of  # noqa: PLC0415
-        except ImportError:
-            return self.pick.zone
         return zone_of(shots.record_of(self.table, aim.setup), aim.stroke.speed)
 
     def bias_text(self, setup: Setup, stroke: Stroke) -> str:
         """The player's landing bias in the zone of this setup at this stroke, as advice ("you
-        land 0.3 long here (6 landings): aim to land 0.3 shorter"); "" with too few landings
-        or no coach. Slow under the physical model: call it from a worker."""
-        try:
-            from tablecoach.core.coach import zone_of  # noqa: PLC0415
-        except ImportError:
-            return ""
-        from tablecoach.core import feedback  # noqa: PLC0415
-
+        land 0.3 long here (6 landings): aim to land 0.3 shorter"); "" with too few landings.
+        Slow under the physical model: call it from a worker."""
         label = zone_label(zone_of(shots.record_of(self.table, setup), stroke.speed))
         seen = [*self.earlier, *self.logged]
         got = feedback.zone_bias(self.table, seen, label, self.model, self.calibration)
@@ -286,8 +247,6 @@ class Session:
     def next_spin(self, aim: Aim | None) -> Stroke:
         """The next spin of core.spin.SPIN_STEPS for this attempt (running and reverse english
         turned into a side with the shown aim); the speed is kept."""
-        from tablecoach.core.spin import SPIN_STEPS, spin_for  # noqa: PLC0415
-
         self.spin_step = (self.spin_step + 1) % len(SPIN_STEPS)
         english, follow = spin_for(self.spin_step, aim)
         self.stroke = replace(self.stroke, english=english, follow=follow)
@@ -331,18 +290,10 @@ class Session:
             model=aim.model,
             drill=drill_name(self.drill),
             note=note,
-            zone=self._zone_of(shot, aim.stroke.speed),
+            zone=zone_label(zone_of(shot, aim.stroke.speed)),  # as played: speed moves it
             miss_kind=miss_kind,  # type: ignore[arg-type]
             session=self.id,
         )
-
-    def _zone_of(self, shot: Any, speed: float) -> str:
-        """The coach's zone of the shot as played (a speed change moves it to another zone)."""
-        try:
-            from tablecoach.core.coach import zone_of  # noqa: PLC0415
-        except ImportError:
-            return zone_label(self.pick.zone if self.pick else None)
-        return zone_label(zone_of(shot, speed))
 
     def log_hit(self, aim: Aim, rail: str | None = None, at: float | None = None) -> Attempt:
         """Log a hit; it carries a landing only when the player gave one."""

@@ -7,7 +7,7 @@ import json
 import sys
 from typing import Any
 
-from ..cli import add_common
+from .options import add_common, resolve_table
 
 
 def register(sub: Any) -> None:
@@ -48,8 +48,6 @@ def speeds_table(table: Any, calibration: Any) -> list[dict[str, Any]]:
 
 
 def run(args: argparse.Namespace) -> int:
-    from .aim import resolve_table
-
     table, calibration, status = resolve_table(args.table, args.player)
     rows = speeds_table(table, calibration)
     if args.json:
