@@ -12,8 +12,8 @@ from tablecoach.core import shots
 from tablecoach.core.store import Store
 from tablecoach.core.store.errors import StoreError
 from tablecoach.core.store.query import AttemptQuery
+from tablecoach.ui.screens.landing import LandingPrompt
 from tablecoach.ui.screens.practice import PracticeScreen
-from tablecoach.ui.widgets.landing import LandingPrompt
 
 SIZE = (100, 30)
 

@@ -7,8 +7,8 @@ import pytest
 from tablecoach.core.records import RecordError
 from tablecoach.core.store import Store
 from tablecoach.core.table import BUILTIN_TABLES
-from tablecoach.ui.widgets import wording as w
-from tablecoach.ui.widgets.landing import accepts, parse_landing, ruler
+from tablecoach.render import words as w
+from tablecoach.ui.screens.landing import accepts, parse_landing, ruler
 
 T9 = BUILTIN_TABLES["9ft"]
 

@@ -12,8 +12,8 @@ from tablecoach.core import placing
 from tablecoach.core.practice import Pick, Stats, shown_reading
 from tablecoach.core.shots import Aim, Convergence, Stroke, speed_name, travel_lengths
 from tablecoach.core.table import TableSpec
+from tablecoach.render import words as w
 
-from . import wording as w
 from .bigtype import big
 
 POWER_CAUTION = (

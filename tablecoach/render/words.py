@@ -1,4 +1,4 @@
-"""Plain words for the practice screen: ball placement, aims, speeds and landings in diamonds."""
+"""The words a player reads, in the app and on the command line: placement, aim, speed, spin."""
 
 from __future__ import annotations
 

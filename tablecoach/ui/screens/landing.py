@@ -13,8 +13,7 @@ from textual.screen import ModalScreen
 from textual.widgets import Footer, Static
 
 from tablecoach.core.records import RecordError, check_rail_point, rail_length_diamonds
-
-from .wording import RAIL_ORDER, num
+from tablecoach.render.words import RAIL_ORDER, num
 
 STEP = 0.25
 """Arrow keys move the landing a quarter diamond."""
