@@ -15,6 +15,7 @@ from textual.containers import Horizontal, Vertical
 from textual.message import Message
 from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Static
+from textual.worker import Worker, get_current_worker
 
 from tablecoach.core.stats.history import History, summarize
 from tablecoach.core.stats.rates import wilson
@@ -41,18 +42,18 @@ SESSION_COLUMNS = ("#", "started", "player", "table", "made", "rate", "best", "f
 class SessionsListed(Message):
     """The store's session list arrived (a fast first look, before the full history)."""
 
-    def __init__(self, token: int, sessions: list[Any]) -> None:
+    def __init__(self, worker: Worker[None], sessions: list[Any]) -> None:
         super().__init__()
-        self.token = token
+        self.worker = worker
         self.sessions = sessions
 
 
 class HistoryLoaded(Message):
     """The history worker finished (``result`` set) or failed (``error`` set)."""
 
-    def __init__(self, token: int, result: Any = None, error: str = "") -> None:
+    def __init__(self, worker: Worker[None], result: Any = None, error: str = "") -> None:
         super().__init__()
-        self.token = token
+        self.worker = worker
         self.result = result
         self.error = error
 
@@ -124,9 +125,8 @@ class HistoryScreen(Screen[None]):
         self.filters = AttemptQuery(player=player)
         self.date_index = 0
         self.date_back = 0  # how many whole windows back from today the date filter is
-        self.token = 0
         self.loaded: Loaded | None = None
-        self.loaded_token = 0
+        self.loaded_by: Worker[None] | None = None
         self.players: tuple[str, ...] = (player,) if player else ()
         self.tables: tuple[str, ...] = ()
         self.families: tuple[str, ...] = ()
@@ -201,17 +201,17 @@ class HistoryScreen(Screen[None]):
 
     def reload(self) -> None:
         """Query and summarise in a worker thread; the screen stays live meanwhile."""
-        self.token += 1
         self.query_one("#history-status", Static).update("loading the history...")
         self._show_filters()
-        self._load(self.token, self.current_query())
+        self._load(self.current_query())  # exclusive: cancels a load still running
 
     @work(thread=True, exclusive=True, group="history", exit_on_error=False)
-    def _load(self, token: int, q: AttemptQuery) -> None:
+    def _load(self, q: AttemptQuery) -> None:
+        me: Worker[None] = get_current_worker()
         try:
             if q.family is None and q.since is None and q.session is None:
                 # the store counts sessions in SQL: show them while the full history is built
-                self.post_message(SessionsListed(token, self.store.sessions(q.player, q.table)))
+                self.post_message(SessionsListed(me, self.store.sessions(q.player, q.table)))
             frame = read_frame(self.store, q)  # columns, not Attempt objects
             h = summarize(
                 frame, tz=self.tz, today=self.local_today(), table_of=self.store.table_lookup()
@@ -219,12 +219,13 @@ class HistoryScreen(Screen[None]):
             players = tuple(self.store.players())
             result = Loaded(h, players, h.tables, tuple(sorted(h.families)))
         except ValueError as exc:
-            self.post_message(HistoryLoaded(token, error=str(exc)))
+            self.post_message(HistoryLoaded(me, error=str(exc)))
             return
-        self.post_message(HistoryLoaded(token, result))
+        self.post_message(HistoryLoaded(me, result))
 
     def on_sessions_listed(self, message: SessionsListed) -> None:
-        if message.token != self.token or self.loaded_token == message.token:
+        # a newer load cancelled this one, or this one's full history is already shown
+        if message.worker.is_cancelled or self.loaded_by is message.worker:
             return
         table = self._reset_sessions()
         for s in reversed(message.sessions):  # start times follow with the attempts
@@ -239,7 +240,7 @@ class HistoryScreen(Screen[None]):
         )
 
     def on_history_loaded(self, message: HistoryLoaded) -> None:
-        if message.token != self.token:
+        if message.worker.is_cancelled:
             return  # a newer filter is already loading
         status = self.query_one("#history-status", Static)
         if message.error:
@@ -247,7 +248,7 @@ class HistoryScreen(Screen[None]):
             return
         res: Loaded = message.result
         self.loaded = res
-        self.loaded_token = message.token
+        self.loaded_by = message.worker
         self.players = res.players
         if self.filters.table is None:
             self.tables = res.tables
