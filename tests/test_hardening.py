@@ -284,10 +284,10 @@ def test_skip_bad_skips_exactly_the_bad_lines(
 
 
 def test_csv_cells_get_the_same_checks(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
-    from tablecoach.core import formats
+    from tablecoach.core import attempt_json, formats
     from tablecoach.core.records import Attempt, ShotRecord
 
-    a = formats.attempt_from_json(_record())
+    a = attempt_json.attempt_from_json(_record())
     assert isinstance(a, Attempt) and isinstance(a.shot, ShotRecord)
     header = ",".join(formats.CSV_COLUMNS)
     row = formats.attempt_to_row(a)
@@ -321,10 +321,10 @@ def test_a_store_holding_out_of_span_times_still_shows_history(
     # The write-side check is lifted to make that store, then history must still work.
     from datetime import datetime, timedelta, timezone
 
-    from tablecoach.core import formats
+    from tablecoach.core import attempt_json
     from tablecoach.core.records import validate_attempt
 
-    good = formats.attempt_from_json(_record())
+    good = attempt_json.attempt_from_json(_record())
     strict = store_attempts.check_attempt
     monkeypatch.setattr(store_attempts, "check_attempt", validate_attempt)
     with Store.open(tmp_path / "data" / "tablecoach.sqlite3") as s:
@@ -516,10 +516,10 @@ def test_a_full_disk_is_named_and_nothing_is_lost(
     tmp_path: Path, capsys: pytest.CaptureFixture[str], monkeypatch: pytest.MonkeyPatch
 ) -> None:
     # A real SQLITE_FULL: PRAGMA max_page_count caps the file (sqlite.org/pragma.html).
-    from tablecoach.core import formats
+    from tablecoach.core import attempt_json
 
     db = tmp_path / "data" / "tablecoach.sqlite3"
-    first = formats.attempt_from_json(_record())
+    first = attempt_json.attempt_from_json(_record())
     with Store.open(db) as s:
         s.import_attempts([first])
     setup = Store._setup
@@ -742,7 +742,7 @@ def test_windows_creating_the_same_new_store_at_once_all_log(tmp_path: Path) -> 
         f"""
         import json, sys, time
         from pathlib import Path
-        from tablecoach.core import formats
+        from tablecoach.core import attempt_json, formats
         from tablecoach.core.store import Store
         rec = json.loads(sys.argv[2])
         while not Path({str(go)!r}).exists():
@@ -750,7 +750,7 @@ def test_windows_creating_the_same_new_store_at_once_all_log(tmp_path: Path) -> 
         with Store.open({str(db)!r}) as s:
             for i in range(10):
                 rec["speed"] = 1.0 + i / 100
-                s.log(formats.attempt_from_json(dict(rec, player="w" + sys.argv[1])))
+                s.log(attempt_json.attempt_from_json(dict(rec, player="w" + sys.argv[1])))
         print("ok")
         """
     )

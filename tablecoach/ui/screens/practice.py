@@ -20,6 +20,7 @@ from ..messages import AimSolved, ConvergenceFound, DealerRefreshed, SetupDealt
 from ..widgets.info import InfoCard, MessageLine, NotesPanel, SessionBar, card, notes, session_line
 from ..widgets.table_panel import TablePanel, draw, picture_of
 from .calibrate_offer import CalibrationOffer
+from .coach_keys import CoachKeys
 from .shot_keys import ShotKeys
 from .stroke_keys import StrokeKeys
 
@@ -31,7 +32,7 @@ SOLVING_SHOWN_AFTER = 0.08
 """Seconds an aim solve may take before the screen says it is working on it."""
 
 
-class PracticeScreen(ShotKeys, StrokeKeys, CalibrationOffer, Screen[None]):
+class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[None]):
     """One session of practice. Every key is in the footer and in the command palette."""
 
     BINDINGS = [
@@ -147,7 +148,7 @@ class PracticeScreen(ShotKeys, StrokeKeys, CalibrationOffer, Screen[None]):
             ),
             layout=False,
         )
-        pinned = self._pinned_text()
+        pinned = self.pinned_text()
         self.query_one(NotesPanel).update(
             notes(s.table, pick, self.aim, self.status + self.offer_hint, pinned), layout=False
         )
@@ -161,16 +162,6 @@ class PracticeScreen(ShotKeys, StrokeKeys, CalibrationOffer, Screen[None]):
             ),
             layout=False,
         )
-
-    def _pinned_text(self) -> str:
-        """What the coach has pinned, in words ("" when nothing is, or the pin has run out)."""
-        sched = self.session.dealer.scheduler
-        if not self.pinned or sched is None:
-            return ""
-        text = str(getattr(sched, "pinned", "") or "")
-        if not text:
-            self.pinned = False
-        return text
 
     def _table_note(self) -> str:
         if self.aim is None:
@@ -386,9 +377,6 @@ class PracticeScreen(ShotKeys, StrokeKeys, CalibrationOffer, Screen[None]):
         self._refresh()
 
     # ----- keys --------------------------------------------------------------------------------
-    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
-        return True
-
     def _ready(self) -> Aim | None:
         if self.aim is None:
             self.say(self.error or "the aim is still being worked out; a moment", bool(self.error))
@@ -413,49 +401,6 @@ class PracticeScreen(ShotKeys, StrokeKeys, CalibrationOffer, Screen[None]):
             "large reading on (b again for the usual size)" if self.large else "large reading off"
         )
         self._refresh()
-
-    def action_pin(self) -> None:
-        dealer = self.session.dealer
-        if self._pinned_text():
-            with self.session.lock:
-                dealer.unpin()
-            self.pinned = False
-            self._forget_ahead()
-            self._refresh()
-            self.say("unpinned: the coach picks setups again")
-            return
-        pick = self.session.pick
-        if pick is None:
-            return
-        try:
-            with self.session.lock:
-                zone = self.session.played_zone(self.aim)
-                if zone:
-                    dealer.pin(zone=zone)
-                else:
-                    dealer.pin(family=pick.setup.family.name)
-        except ValueError as exc:
-            self.say(str(exc), True)
-            return
-        self.pinned = True
-        self._forget_ahead()
-        self._refresh()
-        what = self._pinned_text() or "this zone for 10 setups"
-        self.say(f"pinned: {what} (p again to unpin)")
-
-    def action_table_check(self) -> None:
-        try:
-            from tablecoach.core.calibrate import table_check_setups
-
-            shots_ = table_check_setups(self.session.table)
-        except ValueError as exc:
-            self.say(f"no table check here: {exc}", True)
-            return
-        with self.session.lock:
-            self.session.dealer.queue_check(shots_)
-        self._forget_ahead()
-        self.say(f"table check: {len(shots_)} reference shots come next; log each as usual")
-        self._deal()
 
     def action_history(self) -> None:
         from .history import HistoryScreen
