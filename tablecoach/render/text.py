@@ -12,7 +12,7 @@ from rich.text import Text
 from ..core.shots import Aim, Convergence
 from ..core.table import TableSpec
 from . import words
-from .table_view import Picture, TableView, legend_text, picture_for_aim
+from .table_view import TableView, legend_text, picture_for_aim
 
 
 def describe_aim(
@@ -41,11 +41,6 @@ def describe_aim(
     return rows
 
 
-def aim_picture(table: Any, aim: Any, conv: Any = None) -> Picture:
-    """The Picture for a solved aim."""
-    return picture_for_aim(table, aim, conv)
-
-
 def aim_report(
     table: Any,
     aim: Any,
@@ -60,7 +55,7 @@ def aim_report(
     if ascii_only or not _unicode_ok(console):
         ascii_only = True
     if diagram:
-        view = TableView(aim_picture(table, aim, conv), ascii_only=ascii_only)
+        view = TableView(picture_for_aim(table, aim, conv), ascii_only=ascii_only)
         console.print(view, crop=False)
         console.print(legend_text(ascii_only))
         console.print()
