@@ -37,6 +37,7 @@ def run(args: argparse.Namespace) -> int:
         raise demo.DemoError(f"--weeks {args.weeks} must be between 1 and 26")
     tz = parse_tz(args.tz)
     store = open_store(create=True)
+    assert store is not None  # create=True always opens one
     try:
         held = store.count_attempts()
         if held:

@@ -62,7 +62,7 @@ def _list(args: argparse.Namespace) -> int:
     errors: list[str] = []
     found = drills.all_drills(_user_dir(), errors)
     builtin = drills.builtin_dir()
-    rows = []
+    rows: list[dict[str, Any]] = []
     for name in sorted(found):
         d = found[name]
         own = d.source is not None and d.source.parent != builtin
@@ -93,7 +93,7 @@ def _show(args: argparse.Namespace) -> int:
 
     d = drills.find_drill(args.name, _user_dir())
     data = drills.describe(d)
-    sample = []
+    sample: list[dict[str, Any]] = []
     if args.sample > 0:
         import numpy as np
 
@@ -147,10 +147,10 @@ def _show(args: argparse.Namespace) -> int:
                 f"x {r['x'][0]:g}-{r['x'][1]:g}, y {r['y'][0]:g}-{r['y'][1]:g}" for r in rects
             )
             print(f"       {ball}: {where}")
-    for x in sample:
-        ob = x["object"] or x["target_ball"]
-        aim = f", aim {x['aim']['rail']} {x['aim']['reading']:.2f}" if x["aim"] else ""
-        print(f"  - {x['label']}: cue {x['cue']}, ball {ob}{aim}")
+    for shown in sample:
+        ob = shown["object"] or shown["target_ball"]
+        aim = f", aim {shown['aim']['rail']} {shown['aim']['reading']:.2f}" if shown["aim"] else ""
+        print(f"  - {shown['label']}: cue {shown['cue']}, ball {ob}{aim}")
     return 0
 
 

@@ -53,9 +53,9 @@ def text_report(h: History, said: str, tz: tzinfo | None, tz_name: str) -> str:
     lines.append("")
     lines.append(f"{'family':<20} {'made':>9}  {'rate (95% Wilson)':<18} streak  weeks")
     for fam, r in sorted(h.families.items(), key=lambda kv: -kv[1].attempts):
-        s = h.family_streaks[fam]
+        fs = h.family_streaks[fam]
         lines.append(
-            f"{fam:<20} {r.hits:>4}/{r.attempts:<4}  {pct(r):<18} {s.current:>2}/{s.best:<3}  "
+            f"{fam:<20} {r.hits:>4}/{r.attempts:<4}  {pct(r):<18} {fs.current:>2}/{fs.best:<3}  "
             f"|{spark(h.family_weeks[fam])}|"
         )
     lines.append("")

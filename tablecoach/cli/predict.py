@@ -30,7 +30,7 @@ def register(sub: Any) -> None:
     p.set_defaults(func=run)
 
 
-def trace_to_json(table: Any, setup: Any, trace: Any, reading: float, model: str) -> dict:
+def trace_to_json(table: Any, setup: Any, trace: Any, reading: float, model: str) -> dict[str, Any]:
     """The JSON shape of a prediction (positions in diamonds)."""
 
     def rp(p: Any) -> dict[str, Any]:
