@@ -21,7 +21,7 @@ from .test_store import make_attempt
 DATA = Path(__file__).resolve().parents[1] / "data"
 
 
-def _random_attempts(n: int, seed: int) -> list[Attempt]:
+def random_attempts(n: int, seed: int) -> list[Attempt]:
     """Attempts with random full-precision doubles (numpy's generator) and awkward notes."""
     rng = np.random.default_rng(seed)
     notes = ["", "plain", 'quote " and, comma', "two\nlines", "tab\tünïcode ✓", " spaced "]
@@ -74,7 +74,7 @@ def _same(a: Attempt, b: Attempt) -> None:
 
 
 def test_jsonl_round_trip_exact() -> None:
-    items = _random_attempts(200, 1)
+    items = random_attempts(200, 1)
     buf = io.StringIO()
     assert formats.write_jsonl(items, buf) == 200
     lines = buf.getvalue().splitlines()
@@ -88,7 +88,7 @@ def test_jsonl_round_trip_exact() -> None:
 
 
 def test_csv_round_trip_exact() -> None:
-    items = _random_attempts(200, 2)
+    items = random_attempts(200, 2)
     buf = io.StringIO(newline="")
     assert formats.write_csv(items, buf) == 200
     # the stdlib csv reader (RFC 4180 quoting) sees the documented header and one row each
@@ -260,7 +260,7 @@ def test_csv_errors() -> None:
 
 def test_export_import_through_store(tmp_path: Path) -> None:
     """Export, then import into an empty data dir: the same attempts, in both formats."""
-    items = _random_attempts(60, 3)
+    items = random_attempts(60, 3)
     with Store.open(tmp_path / "a" / "db.sqlite3") as s:
         sid = s.start_session("ann", "9ft", "mixed")
         for a in items:

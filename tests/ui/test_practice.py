@@ -337,14 +337,14 @@ async def test_large_reading_toggles(make_app):
 async def test_calibration_offer_after_30_new_landings(make_app):
     import numpy as np
 
-    from ..core.test_feedback import _kick_attempt
+    from ..core.test_feedback import kick_attempt
 
     app = make_app()
     # 29 observed landings already on this table (invented, scattered about the ideal landing
     # with numpy's generator), and hits without a landing, which do not count
     rng = np.random.default_rng(4)
     seen = [
-        replace(_kick_attempt(float(x)), player="tester", note=str(i))
+        replace(kick_attempt(float(x)), player="tester", note=str(i))
         for i, x in enumerate(rng.normal(0.2, 0.1, 29))
     ]
     blind = replace(seen[0], result="hit", landing_rail=None, landing_at=None, miss_kind=None)
