@@ -1,7 +1,7 @@
 """Benchmark: history over 100,000 attempts (goal < 0.5 s) and the history screen (goal < 1 s).
 
-The screen and ``tablecoach history`` read the store's columns (``Store.columns``) and
-summarise them directly; the Attempt-list figures are kept for comparison.
+The screen and ``tablecoach history`` read the statistics' frame straight from the store
+(``stats.read.read_frame``) and summarise it; the Attempt-list figures are kept for comparison.
 
 Run: python benchmarks/bench_history.py [--attempts N] [--repeat R]. Prints figures; asserts
 nothing (the machines are shared and noisy, so goals are read, not enforced).
@@ -20,8 +20,14 @@ from pathlib import Path
 
 import numpy as np
 
-from tablecoach.core import demo, history
+from tablecoach.core import demo
+from tablecoach.core.stats.bias import offsets_of
+from tablecoach.core.stats.frame import frame_of
+from tablecoach.core.stats.history import history_dict, summarize
+from tablecoach.core.stats.read import read_frame
+from tablecoach.core.stats.zones import zone_codes_of
 from tablecoach.core.store import Store
+from tablecoach.core.store.query import AttemptQuery
 
 NOW = datetime(2026, 11, 30, 21, 0, tzinfo=UTC)
 
@@ -100,21 +106,21 @@ def main() -> None:
     r = args.repeat
     show(
         "summarize (everything, landing bias too)",
-        timed(lambda: history.summarize(items, tz=UTC, today=NOW.date(), table_of=tables), r),
+        timed(lambda: summarize(items, tz=UTC, today=NOW.date(), table_of=tables), r),
         0.5,
     )
     show(
         "summarize, local zone Europe/Lisbon",
-        timed(lambda: history.summarize(items, tz=_lisbon(), today=NOW.date(), table_of=tables), r),
+        timed(lambda: summarize(items, tz=_lisbon(), today=NOW.date(), table_of=tables), r),
         0.5,
     )
-    show("  columns (one pass over the attempts)", timed(lambda: history.columns(items), r))
-    cols = history.columns(items)
-    show("  zones (coach grid)", timed(lambda: history.zone_codes_of(cols), r))
-    show("  landing offsets (ideal reflection)", timed(lambda: history.offsets_of(cols, tables), r))
+    show("  columns (one pass over the attempts)", timed(lambda: frame_of(items), r))
+    cols = frame_of(items)
+    show("  zones (coach grid)", timed(lambda: zone_codes_of(cols), r))
+    show("  landing offsets (ideal reflection)", timed(lambda: offsets_of(cols, tables), r))
     show(
         "  history_dict (the --json output)",
-        timed(lambda: history.history_dict(history.summarize(items, tz=UTC, today=NOW.date())), 1),
+        timed(lambda: history_dict(summarize(items, tz=UTC, today=NOW.date())), 1),
     )
     with tempfile.TemporaryDirectory() as d:
         store = Store.open(Path(d) / "bench.sqlite3")
@@ -125,35 +131,27 @@ def main() -> None:
             added, _ = store.import_attempts(items)
             print(f"stored {added} attempts in {time.perf_counter() - t0:.1f} s (set-up)")
             show("store.attempts() of all (Attempt objects)", timed(store.attempts, 3))
-            fields = history.HISTORY_FIELDS
-            show("store.columns() of all, every field", timed(store.columns, r))
+            show("read_frame of all (one SELECT -> the frame)", timed(lambda: read_frame(store), r))
+            frame = read_frame(store)
             show(
-                "store.columns() of all, the history's fields",
-                timed(lambda: store.columns(fields=fields), r),
-            )
-            ac = store.columns(fields=fields)
-            show("  columns_of (store columns -> engine)", timed(lambda: history.columns_of(ac), r))
-            show(
-                "summarize(store columns), landing bias too",
-                timed(lambda: history.summarize(ac, tz=UTC, today=NOW.date(), table_of=tables), r),
+                "summarize(frame read), landing bias too",
+                timed(lambda: summarize(frame, tz=UTC, today=NOW.date(), table_of=tables), r),
                 0.5,
             )
             show(
-                "store.columns + summarize (the command's path)",
+                "read_frame + summarize (the command's path)",
                 timed(
-                    lambda: history.summarize(
-                        store.columns(fields=fields), tz=UTC, today=NOW.date(), table_of=tables
-                    ),
+                    lambda: summarize(read_frame(store), tz=UTC, today=NOW.date(), table_of=tables),
                     r,
                 ),
                 0.5,
             )
             player = items[0].player
             show(
-                f"  the same for one player ({store.count_attempts(player=player)})",
+                f"  the same for one player ({store.count_attempts(AttemptQuery(player=player))})",
                 timed(
-                    lambda: history.summarize(
-                        store.columns(player=player, fields=fields),
+                    lambda: summarize(
+                        read_frame(store, AttemptQuery(player=player)),
                         tz=UTC,
                         today=NOW.date(),
                         table_of=tables,

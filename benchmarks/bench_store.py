@@ -1,7 +1,7 @@
 """Store speed: time to log one attempt (goal under 5 ms) and to query 100,000 attempts.
 
-``attempts`` builds Attempt objects; ``columns`` reads the same rows as numpy columns (the
-history's path), either every field or only those the history reads.
+``attempts`` builds Attempt objects; ``read_frame`` (core/stats/read.py) reads the same rows as
+the statistics' columnar frame (the history's path).
 
 Run: python benchmarks/bench_store.py [--n 100000]. Prints figures; asserts nothing, since the
 machines are shared and noisy.
@@ -22,9 +22,10 @@ sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
 import numpy as np  # noqa: E402
 
-from tablecoach.core.history import HISTORY_FIELDS  # noqa: E402
 from tablecoach.core.records import Attempt, ShotRecord  # noqa: E402
+from tablecoach.core.stats.read import read_frame  # noqa: E402
 from tablecoach.core.store import Store  # noqa: E402
+from tablecoach.core.store.query import AttemptQuery as Q  # noqa: E402
 
 FAMILIES = [
     ShotRecord("cue", ("right",), (1.5, 1.0), None, None, (3.0, 2.0), "one-rail-kick"),
@@ -110,18 +111,17 @@ def main() -> None:
             since = start + timedelta(days=60, hours=100)
             cases = [
                 ("count all", lambda: s.count_attempts()),
-                ("count player", lambda: s.count_attempts(player="player1")),
+                ("count player", lambda: s.count_attempts(Q(player="player1"))),
                 ("all attempts", lambda: s.attempts()),
-                ("player", lambda: s.attempts(player="player1")),
-                ("table", lambda: s.attempts(table="8ft")),
-                ("family", lambda: s.attempts(family="cross-corner-bank")),
-                ("player+since", lambda: s.attempts(player="player2", since=since)),
-                ("session", lambda: s.attempts(session=sid)),
-                ("player+session", lambda: s.attempts(player="player0", session=sid)),
+                ("player", lambda: s.attempts(Q(player="player1"))),
+                ("table", lambda: s.attempts(Q(table="8ft"))),
+                ("family", lambda: s.attempts(Q(family="cross-corner-bank"))),
+                ("player+since", lambda: s.attempts(Q(player="player2", since=since))),
+                ("session", lambda: s.attempts(Q(session=sid))),
+                ("player+session", lambda: s.attempts(Q(player="player0", session=sid))),
                 ("sessions list", lambda: s.sessions()),
-                ("columns all", lambda: s.columns()),
-                ("columns hist.", lambda: s.columns(fields=HISTORY_FIELDS)),
-                ("columns player", lambda: s.columns(player="player1", fields=HISTORY_FIELDS)),
+                ("frame all", lambda: read_frame(s)),
+                ("frame player", lambda: read_frame(s, Q(player="player1"))),
             ]
             for name, fn in cases:
                 t, res = timed(fn)

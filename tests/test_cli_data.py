@@ -17,7 +17,7 @@ from tablecoach import paths
 from tablecoach.cli import main
 from tablecoach.core.store import Store
 
-from .core.test_formats import _random_attempts
+from .core.test_formats import random_attempts
 
 REPO = Path(__file__).resolve().parents[1]
 DATA = Path(__file__).resolve().parent / "data"
@@ -71,7 +71,7 @@ def test_importing_paths_creates_nothing(tmp_path: Path) -> None:
 def _fill(db: Path, n: int = 40) -> list:  # type: ignore[type-arg]
     with Store.open(db) as s:
         sid = s.start_session("ann", "9ft", "mixed")
-        for a in _random_attempts(n, 9):
+        for a in random_attempts(n, 9):
             s.log(replace(a, session=sid))
         return s.attempts()
 

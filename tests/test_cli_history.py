@@ -11,6 +11,7 @@ import pytest
 from tablecoach import cli
 from tablecoach.core.records import Attempt, ShotRecord
 from tablecoach.core.store import Store
+from tablecoach.core.store.query import AttemptQuery
 
 
 @pytest.fixture
@@ -39,7 +40,7 @@ def brute(seq):
 
 def stored(d, **filters):
     with Store.open(d / "tablecoach.sqlite3") as s:
-        return s.attempts(**filters)
+        return s.attempts(AttemptQuery(**filters))
 
 
 def test_history_json_counts_and_streaks(demo_dir, capsys):

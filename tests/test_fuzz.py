@@ -25,7 +25,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from tablecoach.core import formats
+from tablecoach.core import attempt_json, formats
 
 from .clihelp import cli
 
@@ -310,7 +310,7 @@ CELL = st.one_of(NUMBER_TEXT, WEIRD_TEXT, JSON_LEAF.map(str))
 
 @st.composite
 def csv_texts(draw: st.DrawFn) -> tuple[str, int]:
-    a = formats.attempt_from_json(_good())
+    a = attempt_json.attempt_from_json(_good())
     header = list(formats.CSV_COLUMNS)
     n = draw(st.integers(1, 3))
     buf = io.StringIO()
@@ -450,8 +450,8 @@ def small_backup(tmp_path_factory: pytest.TempPathFactory) -> list[str]:
 
     folder = tmp_path_factory.mktemp("small")
     with Store.open(folder / "s.sqlite3") as s:
-        good = formats.attempt_from_json(_good())
-        s.import_attempts([good, formats.attempt_from_json(dict(_good(), speed=3.0))])
+        good = attempt_json.attempt_from_json(_good())
+        s.import_attempts([good, attempt_json.attempt_from_json(dict(_good(), speed=3.0))])
         sid = s.start_session("ann", "9ft", "mixed")
         s.end_session(sid)
         s.save_calibration("9ft", "ann", {"mu_roll": 0.01}, 2)

@@ -27,8 +27,10 @@ from pathlib import Path
 
 import pytest
 
-from tablecoach.core import store as store_mod
-from tablecoach.core.store import Store, StoreError, sqlite_error
+from tablecoach.core.store import Store
+from tablecoach.core.store import attempts as store_attempts
+from tablecoach.core.store.errors import StoreError, sqlite_error
+from tablecoach.core.store.schema import SCHEMA_VERSION
 
 from .clihelp import assert_refused, cli
 
@@ -282,10 +284,10 @@ def test_skip_bad_skips_exactly_the_bad_lines(
 
 
 def test_csv_cells_get_the_same_checks(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
-    from tablecoach.core import formats
+    from tablecoach.core import attempt_json, formats
     from tablecoach.core.records import Attempt, ShotRecord
 
-    a = formats.attempt_from_json(_record())
+    a = attempt_json.attempt_from_json(_record())
     assert isinstance(a, Attempt) and isinstance(a.shot, ShotRecord)
     header = ",".join(formats.CSV_COLUMNS)
     row = formats.attempt_to_row(a)
@@ -319,12 +321,12 @@ def test_a_store_holding_out_of_span_times_still_shows_history(
     # The write-side check is lifted to make that store, then history must still work.
     from datetime import datetime, timedelta, timezone
 
-    from tablecoach.core import formats
+    from tablecoach.core import attempt_json
     from tablecoach.core.records import validate_attempt
 
-    good = formats.attempt_from_json(_record())
-    strict = store_mod._check_attempt
-    monkeypatch.setattr(store_mod, "_check_attempt", validate_attempt)
+    good = attempt_json.attempt_from_json(_record())
+    strict = store_attempts.check_attempt
+    monkeypatch.setattr(store_attempts, "check_attempt", validate_attempt)
     with Store.open(tmp_path / "data" / "tablecoach.sqlite3") as s:
         s.import_attempts(
             [
@@ -333,7 +335,7 @@ def test_a_store_holding_out_of_span_times_still_shows_history(
                 replace(good, when=datetime(1, 1, 1, 0, 0, tzinfo=timezone(timedelta(hours=-1)))),
             ]
         )
-    monkeypatch.setattr(store_mod, "_check_attempt", strict)
+    monkeypatch.setattr(store_attempts, "check_attempt", strict)
     for args in (
         ["history"],
         ["history", "--tz", "Europe/Lisbon"],
@@ -502,7 +504,7 @@ def test_a_new_store_appears_whole(tmp_path: Path) -> None:
     # no half-made file is ever at the store's path: the schema is built aside and linked in
     db = tmp_path / "new" / "tablecoach.sqlite3"
     with Store.open(db) as s:
-        assert s.schema_version() == store_mod.SCHEMA_VERSION
+        assert s.schema_version() == SCHEMA_VERSION
     assert sorted(p.name for p in db.parent.iterdir()) == [db.name]
     assert not _sqlite_says_damaged(db)
 
@@ -514,10 +516,10 @@ def test_a_full_disk_is_named_and_nothing_is_lost(
     tmp_path: Path, capsys: pytest.CaptureFixture[str], monkeypatch: pytest.MonkeyPatch
 ) -> None:
     # A real SQLITE_FULL: PRAGMA max_page_count caps the file (sqlite.org/pragma.html).
-    from tablecoach.core import formats
+    from tablecoach.core import attempt_json
 
     db = tmp_path / "data" / "tablecoach.sqlite3"
-    first = formats.attempt_from_json(_record())
+    first = attempt_json.attempt_from_json(_record())
     with Store.open(db) as s:
         s.import_attempts([first])
     setup = Store._setup
@@ -590,12 +592,12 @@ def test_a_full_disk_through_a_connection_is_named(
             return real_connect(*a, **kw)  # type: ignore[arg-type]
         return real_connect(*a, factory=FullOnCommit, **kw)  # type: ignore[arg-type]
 
-    monkeypatch.setattr(store_mod.sqlite3, "connect", connect)
+    monkeypatch.setattr(sqlite3, "connect", connect)
     f = tmp_path / "t.toml"
     f.write_text('name = "mine"\n', encoding="utf-8")
     code, _, err = cli(capsys, "tables", "add", str(f))
     assert_refused(code, err, "full")
-    monkeypatch.setattr(store_mod.sqlite3, "connect", real_connect)
+    monkeypatch.setattr(sqlite3, "connect", real_connect)
     with Store.open(db) as s:
         assert s.tables() == {}
 
@@ -739,7 +741,7 @@ def test_windows_creating_the_same_new_store_at_once_all_log(tmp_path: Path) -> 
         f"""
         import json, sys, time
         from pathlib import Path
-        from tablecoach.core import formats
+        from tablecoach.core import attempt_json, formats
         from tablecoach.core.store import Store
         rec = json.loads(sys.argv[2])
         while not Path({str(go)!r}).exists():
@@ -747,7 +749,7 @@ def test_windows_creating_the_same_new_store_at_once_all_log(tmp_path: Path) -> 
         with Store.open({str(db)!r}) as s:
             for i in range(10):
                 rec["speed"] = 1.0 + i / 100
-                s.log(formats.attempt_from_json(dict(rec, player="w" + sys.argv[1])))
+                s.log(attempt_json.attempt_from_json(dict(rec, player="w" + sys.argv[1])))
         print("ok")
         """
     )

@@ -30,16 +30,11 @@ from pathlib import Path
 from typing import IO, Any
 
 from . import validate
-from .store import (
-    _COL_NAMES,
-    _FLOOR,
-    SCHEMA_VERSION,
-    Store,
-    StoreError,
-    _check_attempt,
-    _from_row,
-    attempt_identity,
-)
+from .store import Store
+from .store.errors import StoreError
+from .store.query import FLOOR
+from .store.rows import COL_NAMES, attempt_identity, check_attempt, from_row
+from .store.schema import SCHEMA_VERSION
 from .table import table_from_mapping
 
 BACKUP_VERSION = 1
@@ -250,23 +245,23 @@ def _check_session(row: dict[str, Any]) -> None:
 
 def _check_attempt_row(row: dict[str, Any]) -> None:
     _whole(row.get("id"), "id")
-    values = [row.get(c) for c in _COL_NAMES]
+    values = [row.get(c) for c in COL_NAMES]
     if values[4] is None or not isinstance(values[4], str):
         raise validate.InputError("field 'rails' must be rail names joined by commas")
-    for i, col in enumerate(_COL_NAMES):
+    for i, col in enumerate(COL_NAMES):
         if col in ("at", "session_id") or values[i] is None:
             continue
         if isinstance(values[i], float | int):
             validate.finite(values[i], col)
-    if not isinstance(values[0], str) or len(values[0]) != len(_FLOOR):
+    if not isinstance(values[0], str) or len(values[0]) != len(FLOOR):
         raise validate.InputError(f"field 'at' = {validate.show(values[0])} is not a stored time")
     try:
-        attempt = _from_row(values, row.get("id"))
+        attempt = from_row(values, row.get("id"))
     except (TypeError, ValueError, IndexError, AttributeError) as exc:
         raise validate.InputError(f"the row is not an attempt ({exc})") from None
     # A time outside the years read back (stored by an older tablecoach) is kept as it was, so
     # the restore is exact; the store leaves it out of reads. Everything else must pass.
-    _check_attempt(replace(attempt, when=datetime(2000, 1, 1, tzinfo=UTC)))
+    check_attempt(replace(attempt, when=datetime(2000, 1, 1, tzinfo=UTC)))
     ident = row.get("ident")
     if ident is not None and ident != attempt_identity(attempt):
         raise validate.InputError("field 'ident' does not match the attempt's content")
@@ -389,11 +384,11 @@ def restore(store: Store, lines: Iterator[str], source: str, drills_dir: Path | 
 
 def _fill_identities(c: sqlite3.Connection) -> None:
     """Attempts from a backup written before identities existed get theirs computed."""
-    cols = ", ".join(_COL_NAMES)
+    cols = ", ".join(COL_NAMES)
     rows = c.execute(f"SELECT {cols}, id FROM attempts WHERE ident IS NULL").fetchall()
     c.executemany(
         "UPDATE attempts SET ident = ? WHERE id = ?",
-        ((attempt_identity(_from_row(r)), r[-1]) for r in rows),
+        ((attempt_identity(from_row(r)), r[-1]) for r in rows),
     )
 
 

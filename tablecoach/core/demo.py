@@ -16,8 +16,9 @@ import numpy as np
 
 from . import shots
 from .coach import zone_of
-from .history import ideal_landings
 from .records import Attempt, validate_attempt
+from .stats.frame import RAIL_NAMES
+from .stats.tracer import ideal_landings
 from .table import BUILTIN_TABLES, Cloth, Cushion, TableSpec
 
 if TYPE_CHECKING:
@@ -194,7 +195,7 @@ def _one_attempt(
     hit = -aim.margin_minus <= error_m <= aim.margin_plus
     start = np.array([spec.to_diamonds(*setup.start)])
     code, at, sense = ideal_landings(spec, start, family.rails, rail, np.array([used]))
-    land_rail = ("head", "foot", "left", "right")[int(code[0])]
+    land_rail = RAIL_NAMES[int(code[0])]
     land_top = 8.0 if land_rail in ("left", "right") else 4.0
     # the club's tables do not reflect ideally: a speed-dependent drift plus scatter (invented);
     # ``sense`` is the direction of travel round the perimeter, which runs with the rail's

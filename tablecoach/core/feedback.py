@@ -16,6 +16,8 @@ import numpy as np
 
 from . import shots
 from .records import Attempt
+from .store import Store
+from .store.query import AttemptQuery
 from .table import TableSpec
 
 OFFER_AFTER = 30
@@ -34,16 +36,17 @@ SMALL_BIAS = 0.1
 to: calibration.likelihood.NOISE_FLOOR is of this size)."""
 
 
-def new_landings(store: Any, table: str, player: str) -> int:
+def new_landings(store: Store, table: str, player: str) -> int:
     """Attempts with an observed landing by ``player`` on ``table`` logged since the newest
     calibration of that table for that player (all of them when there is none)."""
     rec = store.calibration(table, player)
     since = datetime.fromisoformat(rec["when"]) if rec else None
-    cols = store.columns(player=player, table=table, since=since, fields=["landing_at"])
-    return int(np.count_nonzero(~np.isnan(cols.landing_at)))
+    query = AttemptQuery(player=player, table=table, since=since)
+    (landings, _ids, _sessions) = store.attempt_columns(query, ["landing_at"])
+    return sum(at is not None for at in landings)
 
 
-def should_offer(store: Any, table: str, player: str) -> int:
+def should_offer(store: Store, table: str, player: str) -> int:
     """How many new landings there are when a calibration is worth offering, else 0."""
     n = new_landings(store, table, player)
     return n if n >= OFFER_AFTER else 0
@@ -85,7 +88,7 @@ def zone_bias(
     attempt), against the model's landing for the aim used
     (calibration.model.landing_errors), and how many it averages. None with fewer than
     MIN_BIAS_LANDINGS."""
-    from .calibration.model import landing_errors  # noqa: PLC0415  (heavy: load lazily)
+    from .calibration.model import landing_errors  # heavy: loaded lazily
 
     mine = [a for a in attempts if a.zone == zone and a.landed][-RECENT_LANDINGS:]
     if len(mine) < MIN_BIAS_LANDINGS:

@@ -8,8 +8,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from . import shots
-from .history import landing_offsets
 from .records import Attempt
+from .stats.bias import landing_offsets
 from .table import TableSpec
 
 
@@ -17,7 +17,7 @@ from .table import TableSpec
 class FamilyLine:
     """One family's shots in a session. ``bias`` is the mean landing offset in diamonds round
     the table (+ long) against the mirror landing of the aim used, over the ``bias_n`` observed
-    landings (history.landing_offsets); None when there is none."""
+    landings (stats.bias.landing_offsets); None when there is none."""
 
     family: str
     title: str

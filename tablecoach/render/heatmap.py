@@ -62,7 +62,7 @@ class HeatMap:
         self.rows = rows
         self.max_height = max_height
         if grid is None:
-            from ..core.coach import ZONE_COLS, ZONE_ROWS  # noqa: PLC0415
+            from ..core.coach import ZONE_COLS, ZONE_ROWS
 
             grid = (ZONE_COLS, ZONE_ROWS)
         self.grid = grid

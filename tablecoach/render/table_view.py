@@ -388,17 +388,3 @@ def picture_for_aim(table, aim, conv=None) -> Picture:  # type: ignore[no-untype
         aim_rail=aim.rail,
         aim_reading=table.along_to_diamonds(aim.rail, aim.reading),
     )
-
-
-def picture_for_setup(table, setup) -> Picture:  # type: ignore[no-untyped-def]
-    """A Picture of the balls of a setup alone (before its aim is solved, or with no clean path)."""
-
-    def d(p):  # type: ignore[no-untyped-def]
-        return table.to_diamonds(*p)
-
-    return Picture(
-        cue=d(setup.cue),
-        obj=d(setup.object) if setup.object is not None else None,
-        target_ball=d(setup.target_ball) if setup.target_ball is not None else None,
-        pocket_target=setup.pocket,
-    )

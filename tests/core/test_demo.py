@@ -8,8 +8,11 @@ from zoneinfo import ZoneInfo
 import numpy as np
 import pytest
 
-from tablecoach.core import demo, history
+from tablecoach.core import demo
 from tablecoach.core.records import validate_attempt
+from tablecoach.core.stats.bias import landing_bias
+from tablecoach.core.stats.history import summarize
+from tablecoach.core.stats.rates import rate_of
 from tablecoach.core.store import Store
 
 NOW = datetime(2026, 12, 1, 21, 30, tzinfo=UTC)
@@ -56,14 +59,14 @@ def test_players_improve_over_the_weeks(club):
     items = all_attempts(club)
     early = [a for a in items if a.when < NOW - timedelta(weeks=3)]
     late = [a for a in items if a.when >= NOW - timedelta(weeks=2)]
-    r_early, r_late = history.rate_of(early), history.rate_of(late)
+    r_early, r_late = rate_of(early), rate_of(late)
     assert r_early.rate is not None and r_late.rate is not None
     assert r_late.low > r_early.high  # Wilson intervals apart, not just noise
 
 
 def test_landing_bias_reads_back_the_invented_drift(club):
     look = {t.name: t for t in club.tables}.get
-    bias = history.landing_bias(all_attempts(club), table_of=look)
+    bias = landing_bias(all_attempts(club), table_of=look)
     by_speed: dict[str, list[float]] = {}
     for b in bias:
         by_speed.setdefault(b.speed, []).extend([b.mean] * b.attempts)
@@ -74,7 +77,7 @@ def test_landing_bias_reads_back_the_invented_drift(club):
 def test_keenest_player_has_a_live_day_streak(club):
     first = club.players[0].name
     mine = [a for a in all_attempts(club) if a.player == first]
-    days = history.summarize(mine, tz=LISBON, today=NOW.astimezone(LISBON).date()).days
+    days = summarize(mine, tz=LISBON, today=NOW.astimezone(LISBON).date()).days
     assert days.current >= 5
 
 

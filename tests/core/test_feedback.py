@@ -18,7 +18,7 @@ from tablecoach.core.table import builtin_table
 T9 = builtin_table("9ft")
 
 
-def _kick_attempt(long_by: float, result: str = "miss", zone: str = "z") -> Attempt:
+def kick_attempt(long_by: float, result: str = "miss", zone: str = "z") -> Attempt:
     """A one-rail kick logged with the ideal aim, landing ``long_by`` diamonds past the
     ideal landing along the left rail (the law of reflection gives the landing; the ball runs
     toward the foot there, so further along is a larger x)."""
@@ -48,7 +48,7 @@ def _kick_attempt(long_by: float, result: str = "miss", zone: str = "z") -> Atte
 
 def test_new_landings_count_only_seen_ones_since_the_last_calibration(tmp_path: Path) -> None:
     with Store.open(tmp_path / "db.sqlite3") as s:
-        seen = _kick_attempt(0.1)
+        seen = kick_attempt(0.1)
         hit = replace(seen, result="hit", landing_rail=None, landing_at=None, miss_kind=None)
         short = replace(seen, landing_rail=None, landing_at=None, miss_kind="short")
         s.log_many([seen, hit, short, replace(seen, note="2")])
@@ -64,9 +64,9 @@ def test_new_landings_count_only_seen_ones_since_the_last_calibration(tmp_path: 
 def test_zone_bias_against_the_ideal_landing() -> None:
     # three landings 0.25, 0.3 and 0.35 diamond long: mean 0.3 long (law of reflection gives
     # the model's landing; the offsets are added by hand)
-    items = [_kick_attempt(x) for x in (0.25, 0.3, 0.35)]
+    items = [kick_attempt(x) for x in (0.25, 0.3, 0.35)]
     unseen = replace(items[0], result="hit", landing_rail=None, landing_at=None, miss_kind=None)
-    other = _kick_attempt(-1.0, zone="elsewhere")
+    other = kick_attempt(-1.0, zone="elsewhere")
     got = feedback.zone_bias(T9, [*items, unseen, other], "z", model="ideal")
     assert got is not None
     bias, n = got

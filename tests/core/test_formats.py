@@ -12,7 +12,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from tablecoach.core import formats
+from tablecoach.core import attempt_json, formats
 from tablecoach.core.records import Attempt, RecordError, ShotRecord
 from tablecoach.core.store import Store
 
@@ -21,7 +21,7 @@ from .test_store import make_attempt
 DATA = Path(__file__).resolve().parents[1] / "data"
 
 
-def _random_attempts(n: int, seed: int) -> list[Attempt]:
+def random_attempts(n: int, seed: int) -> list[Attempt]:
     """Attempts with random full-precision doubles (numpy's generator) and awkward notes."""
     rng = np.random.default_rng(seed)
     notes = ["", "plain", 'quote " and, comma', "two\nlines", "tab\tünïcode ✓", " spaced "]
@@ -74,7 +74,7 @@ def _same(a: Attempt, b: Attempt) -> None:
 
 
 def test_jsonl_round_trip_exact() -> None:
-    items = _random_attempts(200, 1)
+    items = random_attempts(200, 1)
     buf = io.StringIO()
     assert formats.write_jsonl(items, buf) == 200
     lines = buf.getvalue().splitlines()
@@ -88,7 +88,7 @@ def test_jsonl_round_trip_exact() -> None:
 
 
 def test_csv_round_trip_exact() -> None:
-    items = _random_attempts(200, 2)
+    items = random_attempts(200, 2)
     buf = io.StringIO(newline="")
     assert formats.write_csv(items, buf) == 200
     # the stdlib csv reader (RFC 4180 quoting) sees the documented header and one row each
@@ -102,7 +102,7 @@ def test_csv_round_trip_exact() -> None:
 
 def test_json_shape_matches_docs() -> None:
     a = make_attempt(1)
-    obj = formats.attempt_to_json(a)
+    obj = attempt_json.attempt_to_json(a)
     assert list(obj) == [
         "v",
         "when",
@@ -131,41 +131,41 @@ def test_json_shape_matches_docs() -> None:
     }
     assert obj["aim"] == {"rail": "right", "given": a.aim_given, "used": 3.25}
     assert obj["landing"] == {"rail": "foot", "at": 2.0 / 7.0}
-    kick = formats.attempt_to_json(make_attempt(0))
+    kick = attempt_json.attempt_to_json(make_attempt(0))
     assert kick["shot"]["target"] == {"ball": [6.1, 2.9]} and kick["shot"]["object"] is None
     # a hit carries no miss_kind; a hit without a landing writes landing null
-    hit = formats.attempt_to_json(make_attempt(2, landing_rail=None, landing_at=None))
+    hit = attempt_json.attempt_to_json(make_attempt(2, landing_rail=None, landing_at=None))
     assert hit["result"] == "hit" and hit["landing"] is None and "miss_kind" not in hit
-    miss = formats.attempt_to_json(make_attempt(5))
+    miss = attempt_json.attempt_to_json(make_attempt(5))
     assert list(miss)[-1] == "miss_kind" and miss["miss_kind"] == "landed"
     short = make_attempt(5, landing_rail=None, landing_at=None, miss_kind="short")
-    obj = formats.attempt_to_json(short)
+    obj = attempt_json.attempt_to_json(short)
     assert obj["landing"] is None and obj["miss_kind"] == "short"
 
 
 def test_version_1_lines_upgrade() -> None:
     """A version-1 hit loses the landing the app had filled with the aim's prediction; a
     version-1 miss keeps its landing as a 'landed' miss (docs/formats.md, version 1)."""
-    v1 = formats.attempt_to_json(make_attempt(2))  # a hit with a landing
+    v1 = attempt_json.attempt_to_json(make_attempt(2))  # a hit with a landing
     v1["v"] = 1
     v1.pop("miss_kind", None)
-    got = formats.attempt_from_json(v1, 3)
+    got = attempt_json.attempt_from_json(v1, 3)
     assert got.result == "hit" and got.landing_rail is None and got.landing_at is None
     assert got.miss_kind is None
-    miss = formats.attempt_to_json(make_attempt(5))
+    miss = attempt_json.attempt_to_json(make_attempt(5))
     miss["v"] = 1
     del miss["miss_kind"]
-    got = formats.attempt_from_json(miss, 4)
+    got = attempt_json.attempt_from_json(miss, 4)
     assert (got.landing_rail, got.landing_at, got.miss_kind) == ("foot", 2.0 / 7.0, "landed")
     assert got.result == "miss"
     # version 1 had no miss_kind and always a landing
     miss["miss_kind"] = "short"
     with pytest.raises(RecordError, match="line 4: .*not part of version 1"):
-        formats.attempt_from_json(miss, 4)
+        attempt_json.attempt_from_json(miss, 4)
     del miss["miss_kind"]
     miss["landing"] = None
     with pytest.raises(RecordError, match="line 4: field 'landing' must be an object"):
-        formats.attempt_from_json(miss, 4)
+        attempt_json.attempt_from_json(miss, 4)
 
 
 @pytest.mark.parametrize(
@@ -182,10 +182,10 @@ def test_version_1_lines_upgrade() -> None:
     ],
 )
 def test_version_2_landing_rules(change, needle) -> None:  # type: ignore[no-untyped-def]
-    obj = formats.attempt_to_json(make_attempt(5))  # a landed miss
+    obj = attempt_json.attempt_to_json(make_attempt(5))  # a landed miss
     change(obj)
     with pytest.raises(RecordError) as info:
-        formats.attempt_from_json(obj, 5)
+        attempt_json.attempt_from_json(obj, 5)
     assert str(info.value).startswith("line 5: ") and needle in str(info.value)
 
 
@@ -236,10 +236,10 @@ def test_bad_lines_reported_with_numbers() -> None:
     ],
 )
 def test_attempt_from_json_errors(change, needle) -> None:  # type: ignore[no-untyped-def]
-    obj = formats.attempt_to_json(make_attempt(1))
+    obj = attempt_json.attempt_to_json(make_attempt(1))
     change(obj)
     with pytest.raises(RecordError) as info:
-        formats.attempt_from_json(obj, 7)
+        attempt_json.attempt_from_json(obj, 7)
     assert str(info.value).startswith("line 7: ") and needle in str(info.value)
 
 
@@ -260,7 +260,7 @@ def test_csv_errors() -> None:
 
 def test_export_import_through_store(tmp_path: Path) -> None:
     """Export, then import into an empty data dir: the same attempts, in both formats."""
-    items = _random_attempts(60, 3)
+    items = random_attempts(60, 3)
     with Store.open(tmp_path / "a" / "db.sqlite3") as s:
         sid = s.start_session("ann", "9ft", "mixed")
         for a in items:

@@ -10,7 +10,6 @@ import numpy as np
 import pytest
 from scipy.stats import binomtest
 
-from tablecoach.core import history as h
 from tablecoach.core.records import Attempt, ShotRecord
 from tablecoach.core.shots import (
     SPEED_BANDS,
@@ -21,6 +20,15 @@ from tablecoach.core.shots import (
     solve_ideal,
     trace_ideal,
 )
+from tablecoach.core.stats.bias import landing_bias, landing_offsets, speed_bands
+from tablecoach.core.stats.frame import RAIL_NAMES, ordered
+from tablecoach.core.stats.history import history_dict, summarize
+from tablecoach.core.stats.rates import rates_by, wilson
+from tablecoach.core.stats.sessions import session_list
+from tablecoach.core.stats.streaks import Streak, day_streak, streak, streaks_by
+from tablecoach.core.stats.tracer import ideal_landings
+from tablecoach.core.stats.trends import local_date, local_days, weekly
+from tablecoach.core.stats.zones import grid_rates, zone_codes
 from tablecoach.core.table import builtin_table
 
 
@@ -76,7 +84,7 @@ def test_streak_matches_brute_force_on_random_sequences():
         p = float(rng.uniform(0.1, 0.95))
         seq = [bool(x) for x in rng.random(n) < p]
         best, current = brute_streak(seq)
-        s = h.streak(seq)
+        s = streak(seq)
         assert (s.best, s.current) == (best, current), seq
 
 
@@ -88,7 +96,7 @@ def test_streaks_by_group_match_brute_force():
         fam = ["one-rail-kick", "two-rail-kick", "cross-side-bank"][int(rng.integers(0, 3))]
         res = "hit" if rng.random() < 0.6 else "miss"
         items.append(att(t0 + timedelta(minutes=i), res, fam, session=int(i // 50)))
-    hist = h.summarize(items, tz=UTC, zone_fn=lambda a: a.shot.family)
+    hist = summarize(items, tz=UTC, zone_fn=lambda a: a.shot.family)
     for fam, s in hist.family_streaks.items():
         seq = [a.result == "hit" for a in items if a.shot.family == fam]
         assert (s.best, s.current) == brute_streak(seq)
@@ -103,7 +111,7 @@ def test_streaks_by_group_match_brute_force():
 def test_streak_uses_time_order_not_input_order():
     t0 = datetime(2026, 11, 2, 18, 0, tzinfo=UTC)
     items = [att(t0 + timedelta(minutes=m), r) for m, r in [(3, "hit"), (1, "miss"), (2, "hit")]]
-    assert h.summarize(items, tz=UTC).streak == h.Streak(current=2, best=2)
+    assert summarize(items, tz=UTC).streak == Streak(current=2, best=2)
 
 
 # ----- days in a row, time zones, midnight -------------------------------------------------
@@ -113,7 +121,7 @@ def test_day_streak_brute_force():
     rng = np.random.default_rng(3)
     for _ in range(200):
         days = {date(2026, 1, 1) + timedelta(days=int(d)) for d in rng.integers(0, 30, 12)}
-        s = h.day_streak(days, today=date(2026, 1, 31))
+        s = day_streak(days, today=date(2026, 1, 31))
         # reference: count runs by walking every day of the calendar
         best = run = 0
         d = date(2026, 1, 1)
@@ -137,36 +145,36 @@ def test_days_counted_in_the_players_zone_across_midnight():
     a = att(datetime(2026, 12, 1, 23, 30, tzinfo=la).astimezone(UTC))
     b = att(datetime(2026, 12, 2, 0, 30, tzinfo=la).astimezone(UTC))
     assert a.when.date() == b.when.date()
-    in_la = h.summarize([a, b], tz=la, today=date(2026, 12, 2))
-    in_utc = h.summarize([a, b], tz=UTC, today=date(2026, 12, 2))
-    assert in_la.days == h.Streak(2, 2)
-    assert in_utc.days == h.Streak(1, 1)
+    in_la = summarize([a, b], tz=la, today=date(2026, 12, 2))
+    in_utc = summarize([a, b], tz=UTC, today=date(2026, 12, 2))
+    assert in_la.days == Streak(2, 2)
+    assert in_utc.days == Streak(1, 1)
 
 
 def test_days_in_tokyo_split_what_utc_keeps_together():
     tokyo = ZoneInfo("Asia/Tokyo")  # UTC+9, no daylight saving
     a = att(datetime(2026, 3, 10, 14, 0, tzinfo=UTC))  # 23:00 in Tokyo on the 10th
     b = att(datetime(2026, 3, 10, 15, 30, tzinfo=UTC))  # 00:30 in Tokyo on the 11th
-    assert h.summarize([a, b], tz=tokyo, today=date(2026, 3, 11)).days == h.Streak(2, 2)
-    assert h.summarize([a, b], tz=UTC, today=date(2026, 3, 10)).days == h.Streak(1, 1)
+    assert summarize([a, b], tz=tokyo, today=date(2026, 3, 11)).days == Streak(2, 2)
+    assert summarize([a, b], tz=UTC, today=date(2026, 3, 10)).days == Streak(1, 1)
 
 
 def test_days_over_daylight_saving_change():
     berlin = ZoneInfo("Europe/Berlin")  # clocks go forward on 2026-03-29 (EU rule, last Sunday)
     whens = [datetime(2026, 3, d, 23, 45, tzinfo=berlin).astimezone(UTC) for d in (28, 29, 30)]
-    s = h.summarize([att(w) for w in whens], tz=berlin, today=date(2026, 3, 30)).days
-    assert s == h.Streak(3, 3)
+    s = summarize([att(w) for w in whens], tz=berlin, today=date(2026, 3, 30)).days
+    assert s == Streak(3, 3)
 
 
 def test_current_day_streak_lapses_after_a_missed_day():
     days = [date(2026, 5, 1), date(2026, 5, 2)]
-    assert h.day_streak(days, today=date(2026, 5, 3)).current == 2  # still alive
-    assert h.day_streak(days, today=date(2026, 5, 4)) == h.Streak(0, 2)
+    assert day_streak(days, today=date(2026, 5, 3)).current == 2  # still alive
+    assert day_streak(days, today=date(2026, 5, 4)) == Streak(0, 2)
 
 
 def test_default_zone_is_the_machine_local_zone():
     when = datetime(2026, 7, 4, 12, 0, tzinfo=UTC)
-    assert h.local_date(when) == when.astimezone().date()
+    assert local_date(when) == when.astimezone().date()
 
 
 # ----- Wilson score intervals against scipy ------------------------------------------------
@@ -180,23 +188,23 @@ def test_wilson_matches_scipy(conf):
     cases += [(int(k), int(n)) for n in rng.integers(1, 500, 30) for k in [rng.integers(0, n + 1)]]
     for k, n in cases:
         ci = binomtest(k, n).proportion_ci(confidence_level=conf, method="wilson")
-        r = h.wilson(k, n, conf)
+        r = wilson(k, n, conf)
         assert r.low == pytest.approx(ci.low, abs=1e-12), (k, n)
         assert r.high == pytest.approx(ci.high, abs=1e-12), (k, n)
         assert r.rate == pytest.approx(k / n)
 
 
 def test_wilson_without_attempts_and_bad_input():
-    r = h.wilson(0, 0)
+    r = wilson(0, 0)
     assert (r.rate, r.low, r.high) == (None, 0.0, 1.0)
     with pytest.raises(ValueError):
-        h.wilson(5, 3)
+        wilson(5, 3)
 
 
 def test_rates_by_family_count_every_attempt():
     t0 = datetime(2026, 11, 2, 18, 0, tzinfo=UTC)
     items = [att(t0, "hit", "a"), att(t0, "miss", "a"), att(t0, "hit", "b")]
-    rates = h.rates_by(items, lambda a: a.shot.family)
+    rates = rates_by(items, lambda a: a.shot.family)
     assert (rates["a"].hits, rates["a"].attempts) == (1, 2)
     assert (rates["b"].hits, rates["b"].attempts) == (1, 1)
 
@@ -212,7 +220,7 @@ def test_weeks_follow_iso_8601_and_fill_gaps():
         datetime(2027, 1, 3, 12, tzinfo=utc),  # Sunday, still 2026-W53
         datetime(2027, 1, 20, 12, tzinfo=utc),  # 2027-W03
     ]
-    weeks = h.weekly([att(w) for w in whens], tz=utc)
+    weeks = weekly([att(w) for w in whens], tz=utc)
     assert [w.label for w in weeks] == ["2026-W53", "2027-W01", "2027-W02", "2027-W03"]
     assert [w.rate.attempts for w in weeks] == [2, 0, 0, 1]
     for w in weeks:  # stdlib isocalendar as the reference
@@ -223,8 +231,8 @@ def test_weeks_follow_iso_8601_and_fill_gaps():
 def test_week_of_a_sunday_night_depends_on_the_zone():
     ny = ZoneInfo("America/New_York")
     a = att(datetime(2026, 11, 30, 2, 0, tzinfo=UTC))  # Sunday 21:00 in New York, Monday UTC
-    assert h.weekly([a], tz=ny)[0].label == "2026-W48"
-    assert h.weekly([a], tz=UTC)[0].label == "2026-W49"
+    assert weekly([a], tz=ny)[0].label == "2026-W48"
+    assert weekly([a], tz=UTC)[0].label == "2026-W49"
 
 
 # ----- sessions ------------------------------------------------------------------------------
@@ -234,10 +242,10 @@ def test_session_list_counts_and_orders():
     t0 = datetime(2026, 11, 2, 18, 0, tzinfo=UTC)
     items = [att(t0 + timedelta(hours=5, minutes=i), "hit", session=2) for i in range(3)]
     items += [att(t0 + timedelta(minutes=i), "miss", session=1) for i in range(4)]
-    sessions = h.session_list(h.ordered(items))
+    sessions = session_list(ordered(items))
     assert [s.session for s in sessions] == [1, 2]
     assert [s.rate.attempts for s in sessions] == [4, 3]
-    assert sessions[1].streak == h.Streak(3, 3)
+    assert sessions[1].streak == Streak(3, 3)
     assert sessions[0].end - sessions[0].start == timedelta(minutes=3)
 
 
@@ -274,11 +282,11 @@ def test_ideal_landing_agrees_with_the_ideal_trace():
             starts.append(cue)
             readings.append(reading)
             refs.append((tr.landing.rail, spec.along_to_diamonds(tr.landing.rail, tr.landing.at)))
-        code, at, _ = h.ideal_landings(
+        code, at, _ = ideal_landings(
             spec, np.array(starts), fam.rails, fam.rails[0], np.array(readings)
         )
         for c, x, (rail, ref_at) in zip(code, at, refs, strict=True):
-            assert h._RAIL_NAMES[c] == rail
+            assert RAIL_NAMES[c] == rail
             assert x == pytest.approx(ref_at, abs=1e-9)
 
 
@@ -296,19 +304,19 @@ def test_one_rail_reflection_by_hand_and_sign_of_long():
     # after the rail the ball runs back across to the left reflection line y = r
     t2 = (spec.width - 2 * r) / dy
     land_x = (cx + t2 * dx) / d
-    code, at, sense = h.ideal_landings(
+    code, at, sense = ideal_landings(
         spec, np.array([[2.0, 2.0]]), ("right",), "right", np.array([4.0])
     )
-    assert h._RAIL_NAMES[code[0]] == "left"
+    assert RAIL_NAMES[code[0]] == "left"
     assert at[0] == pytest.approx(land_x, abs=1e-12)
     assert sense[0] == 1.0  # moving toward the foot rail along the left rail: perimeter grows
     shot = ShotRecord("cue", ("right",), (2.0, 2.0), None, None, (7.0, 1.0), "one-rail-kick")
     t0 = datetime(2026, 11, 2, 18, 0, tzinfo=UTC)
     long_one = att(t0, "miss", shot=shot, landing_at=land_x + 0.5)
     short_one = att(t0, "miss", shot=shot, landing_at=land_x - 0.25)
-    off = h.landing_offsets([long_one, short_one])
+    off = landing_offsets([long_one, short_one])
     assert off == pytest.approx([0.5, -0.25], abs=1e-9)
-    bias = h.landing_bias([long_one, short_one])
+    bias = landing_bias([long_one, short_one])
     assert len(bias) == 1 and bias[0].speed == "medium"
     assert bias[0].mean == pytest.approx(0.125, abs=1e-9)
     assert (bias[0].long, bias[0].short) == (1, 1)
@@ -319,32 +327,30 @@ def test_bias_counts_only_observed_landings():
     # format version 2): they get no offset and leave the bias of the seen landings unchanged.
     # Same hand-worked reflection as above (law of reflection).
     spec = builtin_table("9ft")
-    code, at, _ = h.ideal_landings(
-        spec, np.array([[2.0, 2.0]]), ("right",), "right", np.array([4.0])
-    )
+    code, at, _ = ideal_landings(spec, np.array([[2.0, 2.0]]), ("right",), "right", np.array([4.0]))
     shot = ShotRecord("cue", ("right",), (2.0, 2.0), None, None, (7.0, 1.0), "one-rail-kick")
     t0 = datetime(2026, 11, 2, 18, 0, tzinfo=UTC)
     seen = att(t0, "miss", shot=shot, landing_at=float(at[0]) + 0.5)
     unseen_hit = att(t0, "hit", shot=shot, landing_rail=None, landing_at=None)
     short = att(t0, "miss", shot=shot, landing_rail=None, landing_at=None, miss_kind="short")
-    off = h.landing_offsets([seen, unseen_hit, short])
+    off = landing_offsets([seen, unseen_hit, short])
     assert off[0] == pytest.approx(0.5, abs=1e-9)
     assert math.isnan(off[1]) and math.isnan(off[2])
-    bias = h.landing_bias([seen, unseen_hit, short])
+    bias = landing_bias([seen, unseen_hit, short])
     assert len(bias) == 1 and bias[0].attempts == 1
     assert bias[0].mean == pytest.approx(0.5, abs=1e-9)
 
 
 def test_unknown_table_has_no_offset():
     t0 = datetime(2026, 11, 2, 18, 0, tzinfo=UTC)
-    off = h.landing_offsets([att(t0, table="garage")])
+    off = landing_offsets([att(t0, table="garage")])
     assert math.isnan(off[0])
 
 
 def test_history_dict_has_the_json_contract():
     t0 = datetime(2026, 11, 2, 18, 0, tzinfo=UTC)
     items = [att(t0 + timedelta(minutes=i), r) for i, r in enumerate(["hit", "hit", "miss", "hit"])]
-    d = h.history_dict(h.summarize(items, tz=UTC, zone_fn=lambda a: "z1"))
+    d = history_dict(summarize(items, tz=UTC, zone_fn=lambda a: "z1"))
     assert (d["attempts"], d["hits"]) == (4, 3)
     assert d["streaks"]["best"] == 2 and d["streaks"]["current"] == 1
     fam = d["families"]["one-rail-kick"]
@@ -366,10 +372,10 @@ def test_local_days_match_local_date(zone):
     rng = np.random.default_rng(17)
     start = datetime(2026, 1, 1, tzinfo=UTC).timestamp()
     ts = np.sort(start + rng.uniform(0, 365 * 86400, 4000))
-    days = h.local_days(ts, tz)
+    days = local_days(ts, tz)
     for t, d in zip(ts, days, strict=True):
         when = datetime.fromtimestamp(float(t), UTC)
-        assert date(1970, 1, 1) + timedelta(days=int(d)) == h.local_date(when, tz)
+        assert date(1970, 1, 1) + timedelta(days=int(d)) == local_date(when, tz)
 
 
 def test_speed_bands_match_speed_name():
@@ -384,7 +390,7 @@ def test_speed_bands_match_speed_name():
         + list(SPEED_PRESETS.values())
         + [e - 1e-9 for e in edges]
     )
-    got = list(h._speed_bands(speeds))
+    got = list(speed_bands(speeds))
     assert got == [speed_name(float(s)) for s in speeds]
     assert set(got) == set(SPEED_PRESETS)  # every band is a named stroke, none other
 
@@ -425,7 +431,7 @@ def test_zone_codes_match_the_coach():
     from tablecoach.core.coach import zone_of
 
     items = random_attempts(600, 1)
-    zones, _ = h.zone_codes(items)
+    zones, _ = zone_codes(items)
     assert zones == [zone_of(a.shot, a.speed) for a in items]
 
 
@@ -434,17 +440,17 @@ def test_summarize_matches_the_reference_functions():
 
     items = random_attempts(800, 2)
     tz = ZoneInfo("Europe/Berlin")
-    hist = h.summarize(items, tz=tz, today=date(2026, 11, 1))
-    ref = h.ordered(items)
-    assert hist.sessions == tuple(h.session_list(ref))
-    assert hist.weeks == tuple(h.weekly(ref, tz))
-    assert hist.families == h.rates_by(ref, lambda a: a.shot.family)
-    assert hist.zones == h.rates_by(ref, lambda a: zone_of(a.shot, a.speed))
-    assert hist.zone_streaks == h.streaks_by(ref, lambda a: zone_of(a.shot, a.speed))
-    days = {h.local_date(a.when, tz) for a in ref}
-    assert hist.days == h.day_streak(days, date(2026, 11, 1))
+    hist = summarize(items, tz=tz, today=date(2026, 11, 1))
+    ref = ordered(items)
+    assert hist.sessions == tuple(session_list(ref))
+    assert hist.weeks == tuple(weekly(ref, tz))
+    assert hist.families == rates_by(ref, lambda a: a.shot.family)
+    assert hist.zones == rates_by(ref, lambda a: zone_of(a.shot, a.speed))
+    assert hist.zone_streaks == streaks_by(ref, lambda a: zone_of(a.shot, a.speed))
+    days = {local_date(a.when, tz) for a in ref}
+    assert hist.days == day_streak(days, date(2026, 11, 1))
     for fam, weeks in hist.family_weeks.items():
-        assert weeks == tuple(h.weekly([a for a in ref if a.shot.family == fam], tz))
-    grid = h.grid_rates(items, family="two-rail-kick")
+        assert weeks == tuple(weekly([a for a in ref if a.shot.family == fam], tz))
+    grid = grid_rates(items, family="two-rail-kick")
     n = sum(r.attempts for r in grid.values())
     assert n == sum(a.shot.family == "two-rail-kick" for a in items)

@@ -17,8 +17,16 @@ import numpy as np
 import pytest
 
 from tablecoach.core.records import Attempt, RecordError, ShotRecord
-from tablecoach.core.store import SCHEMA_VERSION, Store, StoreError, attempt_identity
+from tablecoach.core.stats.frame import frame_of
+from tablecoach.core.stats.read import read_frame
+from tablecoach.core.store import Store
+from tablecoach.core.store.errors import StoreError
+from tablecoach.core.store.query import EVERYTHING, AttemptQuery
+from tablecoach.core.store.rows import attempt_identity
+from tablecoach.core.store.schema import SCHEMA_VERSION
 from tablecoach.core.table import BUILTIN_TABLES, TableError, table_from_mapping
+
+from .test_stats_read import assert_frames_equal
 
 REPO = Path(__file__).resolve().parents[2]
 
@@ -137,12 +145,14 @@ def test_filters_match_a_plain_python_filter(db: Path) -> None:
         ]
         for kw, pred in cases:
             expect = [a for a in items if pred(a)]
-            got = s.attempts(**kw)
+            got = s.attempts(AttemptQuery(**kw))
             assert got == expect, kw
-            assert s.count_attempts(**kw) == len(expect)
-        assert len(s.attempts(session=sid)) == 20
+            assert s.count_attempts(AttemptQuery(**kw)) == len(expect)
+        assert len(s.attempts(AttemptQuery(session=sid))) == 20
         # naive times count as UTC
-        assert s.count_attempts(since=since.replace(tzinfo=None)) == s.count_attempts(since=since)
+        assert s.count_attempts(AttemptQuery(since=since.replace(tzinfo=None))) == s.count_attempts(
+            AttemptQuery(since=since)
+        )
 
 
 def test_attempts_ordered_by_time_then_id(db: Path) -> None:
@@ -195,7 +205,7 @@ def test_undo_only_touches_its_session(db: Path) -> None:
         s.log(make_attempt(2, session=b))
         assert s.undo_last(a) == first
         assert s.undo_last(a) is None
-        assert s.count_attempts(session=b) == 1
+        assert s.count_attempts(AttemptQuery(session=b)) == 1
 
 
 # ----- import identity ------------------------------------------------------------------------
@@ -388,13 +398,14 @@ def test_migrates_version_2_in_place(db: Path) -> None:
         # a short miss (no landing) can now be logged and read back
         short = replace(got[1], id=None, landing_rail=None, landing_at=None, miss_kind="short")
         back = s.log(short)
-        assert s.attempts(session=1)[-1] == back and back.landing_rail is None
-        cols = s.columns(fields=["landing_rail", "landing_at", "miss_kind", "result"])
+        assert s.attempts(AttemptQuery(session=1))[-1] == back and back.landing_rail is None
+        names = ["landing_rail", "landing_at", "miss_kind", "result"]
+        rail, at, kind, _result, _ids, _sessions = s.attempt_columns(EVERYTHING, names)
         # time order: the short miss has b's time and a later id
-        assert cols.landing_rail == (None, "left", None, "head")
-        assert np.isnan(cols.landing_at[[0, 2]]).all() and cols.miss_kind[2] == "short"
-        # the columnar read gives back the same attempts, no landing included
-        assert s.columns().to_attempts() == s.attempts()
+        assert rail == (None, "left", None, "head")
+        assert at[0] is None and at[2] is None and kind[2] == "short"
+        # the frame read from the store equals the frame of the attempts, no landing included
+        assert_frames_equal(read_frame(s), frame_of(s.attempts()))
     c = sqlite3.connect(db)
     idx = {r[0] for r in c.execute("SELECT name FROM sqlite_master WHERE type = 'index'")}
     assert {"attempts_session", "attempts_ident", "attempts_at", "attempts_player_table_at"} <= idx
@@ -511,9 +522,12 @@ def test_two_connections_interleaved(db: Path) -> None:
             ids.append(st.log(make_attempt(i, session=sid)).id)
         assert len(set(ids)) == 60
         assert one.count_attempts() == two.count_attempts() == 60
-        assert one.count_attempts(session=s2) == 30
+        assert one.count_attempts(AttemptQuery(session=s2)) == 30
         assert two.undo_last(s2) is not None
-        assert one.count_attempts(session=s1) == 30 and one.count_attempts(session=s2) == 29
+        assert (
+            one.count_attempts(AttemptQuery(session=s1)) == 30
+            and one.count_attempts(AttemptQuery(session=s2)) == 29
+        )
     finally:
         one.close()
         two.close()
@@ -594,7 +608,7 @@ def test_log_many_is_one_all_or_nothing_transaction(db: Path) -> None:
         sid = s.start_session("ann", "9ft", "mixed")
         saved = s.log_many([make_attempt(i, session=sid) for i in range(5)])
         assert [a.id for a in saved] == [1, 2, 3, 4, 5]
-        assert s.attempts(session=sid) == saved
+        assert s.attempts(AttemptQuery(session=sid)) == saved
         with pytest.raises(StoreError, match="no session 77"):
             s.log_many([make_attempt(9, session=sid), make_attempt(10, session=77)])
         assert s.count_attempts() == 5  # the good one of the failed batch was rolled back too

@@ -8,14 +8,14 @@ import pytest
 
 from tablecoach.core.summary import by_family, family_title
 
-from .test_feedback import _kick_attempt
+from .test_feedback import kick_attempt
 from .test_store import make_attempt
 
 
 def test_by_family_counts_streaks_and_bias() -> None:
     # a one-rail kick logged hit, hit, miss (0.3 long by the law of reflection), hit, and two
     # banks: a hit and a short miss with no landing
-    k = _kick_attempt(0.3)
+    k = kick_attempt(0.3)
     hit = replace(k, result="hit", landing_rail=None, landing_at=None, miss_kind=None)
     bank = make_attempt(1, landing_rail=None, landing_at=None)  # a cross-corner bank, hit
     short = replace(bank, result="miss", landing_rail=None, landing_at=None, miss_kind="short")

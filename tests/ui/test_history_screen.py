@@ -13,6 +13,7 @@ from textual.widgets import DataTable
 
 from tablecoach.core import demo
 from tablecoach.core.store import Store
+from tablecoach.core.store.query import AttemptQuery
 from tablecoach.ui.screens.history import DATE_RANGES, HistoryScreen
 
 NOW = datetime(2026, 11, 30, 21, 0, tzinfo=UTC)
@@ -67,7 +68,7 @@ async def test_open_filter_and_go_back(club_store):
         await settle(pilot)
         screen = app.screen
         assert isinstance(screen, HistoryScreen)
-        assert shown(app) == club_store.count_attempts(player="Nadia") > 0
+        assert shown(app) == club_store.count_attempts(AttemptQuery(player="Nadia")) > 0
         sessions = screen.query_one("#history-sessions", DataTable)
         assert sessions.row_count == len(club_store.sessions(player="Nadia"))
         assert "hits in a row" in text_of(app, "#history-streaks")
@@ -77,21 +78,23 @@ async def test_open_filter_and_go_back(club_store):
         await settle(pilot)
         fam = screen.filters.family
         assert fam is not None
-        assert shown(app) == club_store.count_attempts(player="Nadia", family=fam)
+        assert shown(app) == club_store.count_attempts(AttemptQuery(player="Nadia", family=fam))
         assert f"family: {fam}" in text_of(app, "#history-filters")
 
         await pilot.press("d")  # last 7 days, counted in UTC up to the pinned today
         await settle(pilot)
         assert DATE_RANGES[screen.date_index][1] == 7
         since = datetime.combine(NOW.date() - timedelta(days=6), datetime.min.time(), UTC)
-        expected = club_store.count_attempts(player="Nadia", family=fam, since=since)
+        expected = club_store.count_attempts(AttemptQuery(player="Nadia", family=fam, since=since))
         assert shown(app) == expected
 
         await pilot.press("left_square_bracket")  # the 7 days before those
         await settle(pilot)
         until = since
         since = until - timedelta(days=7)
-        earlier = club_store.count_attempts(player="Nadia", family=fam, since=since, until=until)
+        earlier = club_store.count_attempts(
+            AttemptQuery(player="Nadia", family=fam, since=since, until=until)
+        )
         assert shown(app) == earlier
         assert f"{since:%Y-%m-%d} to" in text_of(app, "#history-filters")
         await pilot.press("right_square_bracket")
@@ -107,7 +110,9 @@ async def test_open_filter_and_go_back(club_store):
             await settle(pilot)
             who = screen.filters.player
             seen.append(who)
-            assert shown(app) == club_store.count_attempts(player=who, family=fam, since=since)
+            assert shown(app) == club_store.count_attempts(
+                AttemptQuery(player=who, family=fam, since=since)
+            )
         assert seen == [*after, None]
 
         await pilot.press("r")
@@ -130,7 +135,7 @@ async def test_enter_on_a_session_shows_it_alone(club_store):
         await settle(pilot)
         sid = screen.filters.session
         assert sid is not None
-        assert shown(app) == club_store.count_attempts(session=sid)
+        assert shown(app) == club_store.count_attempts(AttemptQuery(session=sid))
         await pilot.press("s")
         await settle(pilot)
         assert screen.filters.session is None

@@ -9,9 +9,11 @@ from rich.console import Console
 
 from tablecoach import paths
 from tablecoach.core import shots
-from tablecoach.core.store import Store, StoreError
+from tablecoach.core.store import Store
+from tablecoach.core.store.errors import StoreError
+from tablecoach.core.store.query import AttemptQuery
+from tablecoach.ui.screens.landing import LandingPrompt
 from tablecoach.ui.screens.practice import PracticeScreen
-from tablecoach.ui.widgets.landing import LandingPrompt
 
 SIZE = (100, 30)
 
@@ -34,7 +36,7 @@ def text_of(app, selector: str) -> str:
 
 
 def stored(app) -> list:
-    return app.store.attempts(session=app.practice.session.id)
+    return app.store.attempts(AttemptQuery(session=app.practice.session.id))
 
 
 async def test_first_start_needs_no_setup(data_env):
@@ -335,14 +337,14 @@ async def test_large_reading_toggles(make_app):
 async def test_calibration_offer_after_30_new_landings(make_app):
     import numpy as np
 
-    from ..core.test_feedback import _kick_attempt
+    from ..core.test_feedback import kick_attempt
 
     app = make_app()
     # 29 observed landings already on this table (invented, scattered about the ideal landing
     # with numpy's generator), and hits without a landing, which do not count
     rng = np.random.default_rng(4)
     seen = [
-        replace(_kick_attempt(float(x)), player="tester", note=str(i))
+        replace(kick_attempt(float(x)), player="tester", note=str(i))
         for i, x in enumerate(rng.normal(0.2, 0.1, 29))
     ]
     blind = replace(seen[0], result="hit", landing_rail=None, landing_at=None, miss_kind=None)
@@ -517,7 +519,7 @@ async def test_quit_and_reopen_shows_the_attempts(make_app):
     app.store.close()
     # the attempts are on disk, in a session that was closed
     with Store.open(paths.db_path()) as st:
-        assert [a.result for a in st.attempts(player="tester")] == ["hit", "miss"]
+        assert [a.result for a in st.attempts(AttemptQuery(player="tester"))] == ["hit", "miss"]
         assert st.sessions()[0].ended is not None
     again = make_app()
     async with again.run_test(size=SIZE) as pilot:
@@ -680,7 +682,6 @@ async def test_pin_keeps_the_zone(make_app):
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
         screen = app.screen
-        assert screen.session.dealer.coached
         zone = screen.session.pick.zone
         await pilot.press("p")
         await settle(pilot)
@@ -764,13 +765,11 @@ async def test_store_error_while_logging_is_one_line_and_keeps_the_setup(make_ap
 async def test_physical_model_by_default(make_app):
     """With the physical aim installed it is the default; a setup it cannot solve shows the
     ideal aim with a note, and the attempt records the model that gave the reading."""
-    from tablecoach.ui.widgets.session import physical_available
-
     app = make_app(model=None)
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
         screen = app.screen
-        assert screen.session.model == ("physical" if physical_available() else "ideal")
+        assert screen.session.model == "physical"
         aim = screen.aim
         assert aim is not None
         if aim.model != screen.session.model:

@@ -1,30 +1,16 @@
-"""Plain tests of the practice session and its words (no screen), against the real store."""
+"""Plain tests of the practice screen's words and landing prompt (no screen)."""
 
 from __future__ import annotations
 
-from dataclasses import replace
-
-import numpy as np
 import pytest
 
-from tablecoach.core import drills, shots
 from tablecoach.core.records import RecordError
 from tablecoach.core.store import Store
 from tablecoach.core.table import BUILTIN_TABLES
-from tablecoach.ui.widgets import wording as w
-from tablecoach.ui.widgets.landing import accepts, parse_landing, ruler
-from tablecoach.ui.widgets.session import Session, stats_of
+from tablecoach.render import words as w
+from tablecoach.ui.screens.landing import accepts, parse_landing, ruler
 
 T9 = BUILTIN_TABLES["9ft"]
-
-
-@pytest.fixture
-def session(tmp_path):
-    store = Store.open(tmp_path / "t.sqlite3")
-    pack = drills.find_drill("one-rail-kicks", None)
-    s = Session(store, T9, pack, "tester", np.random.default_rng(3), "ideal")
-    yield s
-    store.close()
 
 
 def test_placement_measures_from_the_nearer_rails():
@@ -66,66 +52,16 @@ def test_typed_landing_keeps_one_number():
     assert accepts("", ".") and accepts(".", "5") and not accepts("", "x")
 
 
-def test_repeat_deals_the_setup_n_times_then_moves_on(session):
-    session.repeat = 3
-    pick = session.deal()
-    aim = shots.solve_aim(T9, pick.setup, pick.stroke, "ideal")
-    session.log_hit(aim)
-    assert session.repeats_left() == 2
-    again = session.again()
-    assert again is not None and again.setup.family == pick.setup.family
-    assert shots.record_of(T9, again.setup) == shots.record_of(T9, pick.setup)
-    assert session.stroke == pick.stroke
-    session.log_miss(shots.solve_aim(T9, again.setup, again.stroke, "ideal"), kind="short")
-    assert session.repeats_left() == 1
-    session.log_hit(aim)
-    assert session.repeats_left() == 0
-    # shuffled (the default) never repeats by itself
-    session.repeat = 1
-    assert session.repeats_left() == 0
-
-
 def test_ruler_marks_quarter_diamonds():
     lines = ruler("foot", 2.5, ascii_only=True).plain.splitlines()
     assert lines[1].strip() == "+---+---+---+---+"  # 4 diamonds, 4 characters a diamond
     assert lines[2].index("^") - lines[1].index("+") == 10  # 2.5 diamonds = 10 quarters
 
 
-def test_streaks_count_runs_of_hits():
-    class A:
-        def __init__(self, hit: bool) -> None:
-            self.hit = hit
-
-    st = stats_of([A(x) for x in (True, True, False, True, True, True, False, True)])
-    assert (st.shots, st.hits, st.streak, st.best, st.misses) == (8, 6, 1, 3, 2)
-
-
-def test_a_reading_beyond_the_sights_is_logged_at_the_rail_end(session):
-    pick = session.deal()
-    aim = shots.solve_aim(T9, pick.setup, pick.stroke, "ideal")
-    top = 8.0 if aim.rail in ("left", "right") else 4.0
-    beyond = replace(aim, reading=(top + 0.2) * T9.rail_unit(aim.rail))
-    a = session.log_hit(beyond)
-    assert a.aim_given == a.aim_used == top
-    assert "beyond the sights" in a.note
-    assert session.store.attempts(session=session.id)[0].aim_given == top
-
-
-def test_next_speed_cycles_the_presets(session):
-    session.deal()
-    n = len(shots.SPEED_PRESETS)
-    seen = [session.next_speed()[0] for _ in range(n)]
-    assert sorted(seen) == sorted(shots.SPEED_PRESETS)
-    assert session.stroke.speed == shots.SPEED_PRESETS[seen[-1]]
-    # one more press comes back round to the first named stroke seen
-    assert session.next_speed()[0] == seen[0]
-
-
 def test_the_stores_only_player_is_the_default(data_env):
     # With no --player and no remembered pick, the one player already in the store is used,
     # so reopening tablecoach continues that player's practice.
     from tablecoach import paths
-    from tablecoach.core.store import Store
     from tablecoach.ui.app import build_app
 
     with Store.open(paths.db_path()) as store:
@@ -137,22 +73,9 @@ def test_the_stores_only_player_is_the_default(data_env):
         app.store.close()
 
 
-def test_a_packs_repeat_setting_reaches_the_session(tmp_path):
-    from dataclasses import replace as dc_replace
-
-    pack = dc_replace(drills.find_drill("one-rail-kicks", None), repeat=3)
-    assert drills.find_drill("one-rail-kicks", None).repeat == 1  # shuffled by default
-    with Store.open(tmp_path / "r.sqlite3") as store:
-        s = Session(store, T9, pack, "tester", np.random.default_rng(3), "ideal")
-        assert s.repeat == 3
-        pick = s.deal()
-        s.log_hit(shots.solve_aim(T9, pick.setup, pick.stroke, "ideal"))
-        assert s.repeats_left() == 2
-
-
 def test_session_line_leaves_out_whole_parts_that_do_not_fit():
+    from tablecoach.core.practice import Stats
     from tablecoach.ui.widgets.info import session_line
-    from tablecoach.ui.widgets.session import Stats
 
     now, before = Stats(3, 2, 1, 2), Stats(30, 12, 0, 4)
     full = session_line(now, before, "9ft", "kim").plain

@@ -7,6 +7,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from .. import shots
+from ..store.query import AttemptQuery
 from ..table import TableSpec
 from .params import STALE, CalibrationError
 from .value import Calibration, StaleCalibration
@@ -126,14 +127,14 @@ def calibrate_from_store(
     from .fit import fit_table  # noqa: PLC0415  (the fit loads scipy and the physics)
 
     table = store.get_table(table_name)
-    attempts = store.attempts(player=player, table=table_name) if player else None
+    attempts = store.attempts(AttemptQuery(player=player, table=table_name)) if player else None
     if player and not attempts:
         raise CalibrationError(
             f"{player} has no attempts logged on the {table_name} table yet; the table check in "
             "the practice screen takes 5 to 10 shots"
         )
     if attempts is None:
-        attempts = store.attempts(table=table_name)
+        attempts = store.attempts(AttemptQuery(table=table_name))
         if not attempts:
             raise CalibrationError(
                 f"no attempts logged on the {table_name} table yet: practise first (the table "

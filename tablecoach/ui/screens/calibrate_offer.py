@@ -62,7 +62,7 @@ class CalibrationOffer:
 
     @work(thread=True, group="calibrate", exit_on_error=False)
     def _calibrate_worker(self, table: str, player: str, model: str, before: Any) -> None:
-        from tablecoach.core.calibration.use import calibrate_from_store  # noqa: PLC0415
+        from tablecoach.core.calibration.use import calibrate_from_store
 
         try:
             cals = calibrate_from_store(self.session.store, table, player)

@@ -15,10 +15,17 @@ from textual.containers import Horizontal, Vertical
 from textual.message import Message
 from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Static
+from textual.worker import Worker, get_current_worker
 
-from tablecoach.commands.history import Filters, query_columns, spark, table_resolver
-from tablecoach.core import history
+from tablecoach.core.stats.history import History, summarize
+from tablecoach.core.stats.rates import wilson
+from tablecoach.core.stats.read import read_frame
+from tablecoach.core.stats.trends import WeekRate
+from tablecoach.core.stats.zones import grid_from_zones
+from tablecoach.core.store import Store
+from tablecoach.core.store.query import AttemptQuery
 from tablecoach.render.heatmap import HeatMap, legend_text
+from tablecoach.render.rates import spark
 
 DATE_RANGES: tuple[tuple[str, int | None], ...] = (
     ("all time", None),
@@ -35,18 +42,18 @@ SESSION_COLUMNS = ("#", "started", "player", "table", "made", "rate", "best", "f
 class SessionsListed(Message):
     """The store's session list arrived (a fast first look, before the full history)."""
 
-    def __init__(self, token: int, sessions: list[Any]) -> None:
+    def __init__(self, worker: Worker[None], sessions: list[Any]) -> None:
         super().__init__()
-        self.token = token
+        self.worker = worker
         self.sessions = sessions
 
 
 class HistoryLoaded(Message):
     """The history worker finished (``result`` set) or failed (``error`` set)."""
 
-    def __init__(self, token: int, result: Any = None, error: str = "") -> None:
+    def __init__(self, worker: Worker[None], result: Any = None, error: str = "") -> None:
         super().__init__()
-        self.token = token
+        self.worker = worker
         self.result = result
         self.error = error
 
@@ -55,7 +62,7 @@ class HistoryLoaded(Message):
 class Loaded:
     """What one load found: the history, and the names it saw for the filter keys."""
 
-    history: history.History
+    history: History
     players: tuple[str, ...]
     tables: tuple[str, ...]
     families: tuple[str, ...]
@@ -104,7 +111,7 @@ class HistoryScreen(Screen[None]):
 
     def __init__(
         self,
-        store: Any,
+        store: Store,
         player: str | None = None,
         tz: tzinfo | None = None,
         today: date | None = None,
@@ -115,12 +122,11 @@ class HistoryScreen(Screen[None]):
         self.tz = tz
         self.today = today
         self.ascii_only = ascii_only
-        self.filters = Filters(player=player)
+        self.filters = AttemptQuery(player=player)
         self.date_index = 0
         self.date_back = 0  # how many whole windows back from today the date filter is
-        self.token = 0
         self.loaded: Loaded | None = None
-        self.loaded_token = 0
+        self.loaded_by: Worker[None] | None = None
         self.players: tuple[str, ...] = (player,) if player else ()
         self.tables: tuple[str, ...] = ()
         self.families: tuple[str, ...] = ()
@@ -144,7 +150,8 @@ class HistoryScreen(Screen[None]):
         player = self.filters.player
         if player is not None:
             try:
-                if not self.store.count_attempts(player=player) and self.store.count_attempts():
+                mine = self.store.count_attempts(AttemptQuery(player=player))
+                if not mine and self.store.count_attempts():
                     # a new player (or the demo club): show everyone rather than an empty page
                     self.filters = replace(self.filters, player=None)
                     self.notify(f"no attempts by {player} yet: showing everyone (p to pick)")
@@ -168,49 +175,57 @@ class HistoryScreen(Screen[None]):
             return datetime.now(self.tz).date()
         return datetime.now().astimezone().date()
 
-    def current_filters(self) -> Filters:
-        """The filters with the date range applied."""
+    def date_window(self) -> tuple[date, date] | None:
+        """The first and last local day of the date filter (None: all time)."""
         days = DATE_RANGES[self.date_index][1]
         if days is None:
-            return replace(self.filters, since=None, until=None)
-        until = self.local_today() - timedelta(days=days * self.date_back)
-        return replace(self.filters, since=until - timedelta(days=days - 1), until=until)
+            return None
+        last = self.local_today() - timedelta(days=days * self.date_back)
+        return last - timedelta(days=days - 1), last
+
+    def current_query(self) -> AttemptQuery:
+        """The filters with the date range applied (whole local days in the screen's zone)."""
+        window = self.date_window()
+        if window is None:
+            return self.filters
+        return self.filters.days(*window, self.tz)
 
     def dates_label(self) -> str:
         """The date filter in words: the preset, or the window it was stepped back to."""
         label, days = DATE_RANGES[self.date_index]
         if days is None or self.date_back == 0:
             return label
-        f = self.current_filters()
-        assert f.since is not None and f.until is not None
-        return f"{f.since:%Y-%m-%d} to {f.until:%Y-%m-%d}"
+        window = self.date_window()
+        assert window is not None
+        return f"{window[0]:%Y-%m-%d} to {window[1]:%Y-%m-%d}"
 
     def reload(self) -> None:
         """Query and summarise in a worker thread; the screen stays live meanwhile."""
-        self.token += 1
         self.query_one("#history-status", Static).update("loading the history...")
         self._show_filters()
-        self._load(self.token, self.current_filters())
+        self._load(self.current_query())  # exclusive: cancels a load still running
 
     @work(thread=True, exclusive=True, group="history", exit_on_error=False)
-    def _load(self, token: int, f: Filters) -> None:
+    def _load(self, q: AttemptQuery) -> None:
+        me: Worker[None] = get_current_worker()
         try:
-            if f.family is None and f.since is None and f.session is None:
+            if q.family is None and q.since is None and q.session is None:
                 # the store counts sessions in SQL: show them while the full history is built
-                self.post_message(SessionsListed(token, self.store.sessions(f.player, f.table)))
-            cols = query_columns(self.store, f, self.tz)  # columns, not Attempt objects
-            h = history.summarize(
-                cols, tz=self.tz, today=self.local_today(), table_of=table_resolver(self.store)
+                self.post_message(SessionsListed(me, self.store.sessions(q.player, q.table)))
+            frame = read_frame(self.store, q)  # columns, not Attempt objects
+            h = summarize(
+                frame, tz=self.tz, today=self.local_today(), table_of=self.store.table_lookup()
             )
             players = tuple(self.store.players())
             result = Loaded(h, players, h.tables, tuple(sorted(h.families)))
         except ValueError as exc:
-            self.post_message(HistoryLoaded(token, error=str(exc)))
+            self.post_message(HistoryLoaded(me, error=str(exc)))
             return
-        self.post_message(HistoryLoaded(token, result))
+        self.post_message(HistoryLoaded(me, result))
 
     def on_sessions_listed(self, message: SessionsListed) -> None:
-        if message.token != self.token or self.loaded_token == message.token:
+        # a newer load cancelled this one, or this one's full history is already shown
+        if message.worker.is_cancelled or self.loaded_by is message.worker:
             return
         table = self._reset_sessions()
         for s in reversed(message.sessions):  # start times follow with the attempts
@@ -225,7 +240,7 @@ class HistoryScreen(Screen[None]):
         )
 
     def on_history_loaded(self, message: HistoryLoaded) -> None:
-        if message.token != self.token:
+        if message.worker.is_cancelled:
             return  # a newer filter is already loading
         status = self.query_one("#history-status", Static)
         if message.error:
@@ -233,7 +248,7 @@ class HistoryScreen(Screen[None]):
             return
         res: Loaded = message.result
         self.loaded = res
-        self.loaded_token = message.token
+        self.loaded_by = message.worker
         self.players = res.players
         if self.filters.table is None:
             self.tables = res.tables
@@ -258,10 +273,10 @@ class HistoryScreen(Screen[None]):
         line2 = "[ and ] step the dates back and forward; Enter on a session shows it alone"
         self.query_one("#history-filters", Static).update(Text("   ".join(parts) + "\n" + line2))
 
-    def _show(self, h: history.History) -> None:
+    def _show(self, h: History) -> None:
         self._show_filters()
         self.query_one("#history-streaks", Static).update(self._streaks(h))
-        cells = history.grid_from_zones(h.zones, self.filters.family)
+        cells = grid_from_zones(h.zones, self.filters.family)
         self.query_one("#history-map", Static).update(
             HeatMap(cells, ascii_only=self.ascii_only, rows=2)
         )
@@ -284,7 +299,7 @@ class HistoryScreen(Screen[None]):
             )
             self.session_rows.append(s.session)
 
-    def _streaks(self, h: history.History) -> RichTable:
+    def _streaks(self, h: History) -> RichTable:
         grid = RichTable.grid(padding=(0, 2))
         grid.add_column(style="bold", no_wrap=True)
         grid.add_column(justify="right")
@@ -311,7 +326,7 @@ class HistoryScreen(Screen[None]):
             )
         return grid
 
-    def _trends(self, h: history.History) -> RichTable:
+    def _trends(self, h: History) -> RichTable:
         grid = RichTable.grid(padding=(0, 1))
         grid.add_column(style="bold", no_wrap=True)
         grid.add_column(no_wrap=True)
@@ -323,7 +338,7 @@ class HistoryScreen(Screen[None]):
         grid.add_row("weekly trend", f"|{spark(h.weeks)}|", f"{first} to {last}")
         for f, weeks in sorted(h.family_weeks.items()):
             pad = [w for w in h.weeks if w.monday < weeks[0].monday] if weeks else []
-            empty = [history.WeekRate(w.year, w.week, w.monday, history.wilson(0, 0)) for w in pad]
+            empty = [WeekRate(w.year, w.week, w.monday, wilson(0, 0)) for w in pad]
             grid.add_row(f"  {f}", f"|{spark(empty + list(weeks))}|", "")
         recent = ", ".join(
             f"{w.label[-3:]} {'-' if w.rate.rate is None else f'{100 * w.rate.rate:.0f}%'}"
@@ -379,7 +394,7 @@ class HistoryScreen(Screen[None]):
             self._show(self.loaded.history)
 
     def action_reset(self) -> None:
-        self.filters = Filters()
+        self.filters = AttemptQuery()
         self.date_index = 0
         self.date_back = 0
         self.reload()

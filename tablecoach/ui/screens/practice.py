@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import importlib.util
 from functools import partial
 from typing import Any
 
@@ -14,13 +13,14 @@ from textual.screen import Screen
 from textual.widgets import Footer
 
 from tablecoach.core import shots
+from tablecoach.core.practice import REDRAWS, Session
 from tablecoach.core.shots import Aim, Convergence, Stroke
 
 from ..messages import AimSolved, ConvergenceFound, DealerRefreshed, SetupDealt
 from ..widgets.info import InfoCard, MessageLine, NotesPanel, SessionBar, card, notes, session_line
-from ..widgets.session import REDRAWS, Session
 from ..widgets.table_panel import TablePanel, draw, picture_of
 from .calibrate_offer import CalibrationOffer
+from .coach_keys import CoachKeys
 from .shot_keys import ShotKeys
 from .stroke_keys import StrokeKeys
 
@@ -32,12 +32,7 @@ SOLVING_SHOWN_AFTER = 0.08
 """Seconds an aim solve may take before the screen says it is working on it."""
 
 
-def history_available() -> bool:
-    """True once the history screen (ui/screens/history.py) is installed."""
-    return importlib.util.find_spec("tablecoach.ui.screens.history") is not None
-
-
-class PracticeScreen(ShotKeys, StrokeKeys, CalibrationOffer, Screen[None]):
+class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[None]):
     """One session of practice. Every key is in the footer and in the command palette."""
 
     BINDINGS = [
@@ -153,7 +148,7 @@ class PracticeScreen(ShotKeys, StrokeKeys, CalibrationOffer, Screen[None]):
             ),
             layout=False,
         )
-        pinned = self._pinned_text()
+        pinned = self.pinned_text()
         self.query_one(NotesPanel).update(
             notes(s.table, pick, self.aim, self.status + self.offer_hint, pinned), layout=False
         )
@@ -167,16 +162,6 @@ class PracticeScreen(ShotKeys, StrokeKeys, CalibrationOffer, Screen[None]):
             ),
             layout=False,
         )
-
-    def _pinned_text(self) -> str:
-        """What the coach has pinned, in words ("" when nothing is, or the pin has run out)."""
-        sched = self.session.dealer.scheduler
-        if not self.pinned or sched is None:
-            return ""
-        text = str(getattr(sched, "pinned", "") or "")
-        if not text:
-            self.pinned = False
-        return text
 
     def _table_note(self) -> str:
         if self.aim is None:
@@ -392,13 +377,6 @@ class PracticeScreen(ShotKeys, StrokeKeys, CalibrationOffer, Screen[None]):
         self._refresh()
 
     # ----- keys --------------------------------------------------------------------------------
-    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
-        if action == "history":
-            return history_available()
-        if action == "pin":
-            return self.session.dealer.coached
-        return True
-
     def _ready(self) -> Aim | None:
         if self.aim is None:
             self.say(self.error or "the aim is still being worked out; a moment", bool(self.error))
@@ -424,68 +402,17 @@ class PracticeScreen(ShotKeys, StrokeKeys, CalibrationOffer, Screen[None]):
         )
         self._refresh()
 
-    def action_pin(self) -> None:
-        dealer = self.session.dealer
-        if not dealer.coached:
-            self.say("pinning needs the coach, which is not installed")
-            return
-        if self._pinned_text():
-            with self.session.lock:
-                dealer.unpin()
-            self.pinned = False
-            self._forget_ahead()
-            self._refresh()
-            self.say("unpinned: the coach picks setups again")
-            return
-        pick = self.session.pick
-        if pick is None:
-            return
-        try:
-            with self.session.lock:
-                zone = self.session.played_zone(self.aim)
-                if zone:
-                    dealer.pin(zone=zone)
-                else:
-                    dealer.pin(family=pick.setup.family.name)
-        except ValueError as exc:
-            self.say(str(exc), True)
-            return
-        self.pinned = True
-        self._forget_ahead()
-        self._refresh()
-        what = self._pinned_text() or "this zone for 10 setups"
-        self.say(f"pinned: {what} (p again to unpin)")
-
-    def action_table_check(self) -> None:
-        try:
-            from tablecoach.core.calibration.check import table_check_setups  # noqa: PLC0415
-
-            shots_ = table_check_setups(self.session.table)
-        except ValueError as exc:
-            self.say(f"no table check here: {exc}", True)
-            return
-        with self.session.lock:
-            self.session.dealer.queue_check(shots_)
-        self._forget_ahead()
-        self.say(f"table check: {len(shots_)} reference shots come next; log each as usual")
-        self._deal()
-
     def action_history(self) -> None:
-        if not history_available():
-            self.say("the history screen is not installed")
-            return
-        from . import history  # noqa: PLC0415
+        from .history import HistoryScreen
 
-        screen = history.HistoryScreen(
-            self.session.store, self.session.player, ascii_only=self.ascii_only
-        )
+        screen = HistoryScreen(self.session.store, self.session.player, ascii_only=self.ascii_only)
         self.app.push_screen(screen)
 
     def action_setup(self) -> None:
         self.app.action_open_setup()  # type: ignore[attr-defined]
 
     def action_help(self) -> None:
-        from .help import HelpScreen  # noqa: PLC0415
+        from .help import HelpScreen
 
         self.app.push_screen(HelpScreen())
 

@@ -9,10 +9,10 @@ from __future__ import annotations
 from typing import TYPE_CHECKING, Any
 
 from tablecoach.core.records import Attempt
-from tablecoach.core.store import StoreError
+from tablecoach.core.store.errors import StoreError
+from tablecoach.render import words as w
 
-from ..widgets import wording as w
-from ..widgets.landing import LandingPrompt, MissReport
+from .landing import LandingPrompt, MissReport
 
 MISS_WORDS = {"short": "stopped short of the rail", "jaw": "rattled in the jaw"}
 """How a miss without a landing is said back to the player."""

@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
-from ..widgets import wording as w
+from tablecoach.render import words as w
 
 
 class StrokeKeys:

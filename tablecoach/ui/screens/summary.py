@@ -9,9 +9,8 @@ from textual.containers import Vertical
 from textual.screen import ModalScreen
 from textual.widgets import Footer, Static
 
+from tablecoach.core.practice import Stats
 from tablecoach.core.summary import FamilyLine
-
-from ..widgets.session import Stats
 
 
 def summary_lines(stats: Stats, player: str, table: str, drill: str) -> list[tuple[str, str]]:

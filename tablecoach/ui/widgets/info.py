@@ -9,12 +9,12 @@ from rich.text import Text
 from textual.widgets import Static
 
 from tablecoach.core import placing
+from tablecoach.core.practice import Pick, Stats, shown_reading
 from tablecoach.core.shots import Aim, Convergence, Stroke, speed_name, travel_lengths
 from tablecoach.core.table import TableSpec
+from tablecoach.render import words as w
 
-from . import wording as w
 from .bigtype import big
-from .session import Pick, Stats
 
 POWER_CAUTION = (
     "power speed: keep the laptop and onlookers off the rail and out of the balls' way; "
@@ -54,7 +54,7 @@ def headline(
     t = Text()
     if aim is None:
         return t
-    reading = w.num(w.shown_reading(table, aim))
+    reading = w.num(shown_reading(table, aim))
     if large:
         t.append_text(big(reading, ascii_only, style="bold"))
         t.append(f"\n{aim.rail} rail sights\n", style="bold")

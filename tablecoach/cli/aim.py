@@ -1,0 +1,104 @@
+"""`tablecoach aim`: one setup in; the aim reading, convergence point and a diagram out."""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from dataclasses import replace
+from typing import Any
+
+from .options import add_common, add_shot_options, setup_from_args
+
+
+def register(sub: Any) -> None:
+    p = sub.add_parser(
+        "aim",
+        help="solve one setup: aim reading, convergence point, diagram",
+        description="Solve one bank or kick setup. Positions are ball centres in diamonds: "
+        "x 0-8 from the head rail, y 0-4 from the left rail.",
+    )
+    add_common(p)
+    add_shot_options(p)
+    p.add_argument("--ascii", action="store_true", help="plain ASCII diagram")
+    p.add_argument("--no-diagram", action="store_true", help="numbers only")
+    p.set_defaults(func=run)
+
+
+def aim_to_json(table: Any, aim: Any, conv: Any, status: str) -> dict[str, Any]:
+    """The JSON shape of an aim (positions in diamonds, contract coordinates)."""
+    from ..core.shots import speed_name, travel_lengths
+
+    def rp(p: Any) -> dict[str, Any]:
+        return {"rail": p.rail, "at": round(table.along_to_diamonds(p.rail, p.at), 4)}
+
+    tx, ty = table.to_diamonds(*aim.target_point)
+    unit = table.rail_unit(aim.rail)
+    out: dict[str, Any] = {
+        "table": table.name,
+        "model": aim.model,
+        "calibration": status,
+        "family": aim.setup.family.name,
+        "travel": aim.setup.family.travel,
+        "rails": list(aim.setup.family.rails),
+        "aim": {"rail": aim.rail, "reading": round(aim.reading / unit, 4)},
+        "contacts": [rp(c) for c in aim.contacts],
+        "landing": rp(aim.landing),
+        "target_point": {"x": round(tx, 4), "y": round(ty, 4)},
+        "margin": {
+            "minus": round(aim.margin_minus / unit, 4),
+            "plus": round(aim.margin_plus / unit, 4),
+        },
+        "speed": {
+            "m_per_s": aim.stroke.speed,
+            "name": speed_name(aim.stroke.speed, table),
+            "table_lengths": round(travel_lengths(table, aim.stroke.speed), 2),
+        },
+        "english": aim.stroke.english,
+        "follow": aim.stroke.follow,
+        "notes": list(aim.notes),
+    }
+    if conv is not None:
+        cx, cy = table.to_diamonds(*conv.point)
+        out["convergence"] = {
+            "x": round(cx, 4),
+            "y": round(cy, 4),
+            "spread": round(conv.spread / table.diamond, 6),
+            "lines": len(conv.starts),
+        }
+    else:
+        out["convergence"] = None
+    if aim.cut_angle is not None and aim.ghost is not None:
+        gx, gy = table.to_diamonds(*aim.ghost)
+        out["ghost_ball"] = {"x": round(gx, 4), "y": round(gy, 4)}
+        out["cut_degrees"] = round(_deg(aim.cut_angle), 2)
+    return out
+
+
+def _deg(rad: float) -> float:
+    import math
+
+    return math.degrees(rad)
+
+
+def run(args: argparse.Namespace) -> int:
+    from ..core import shots
+
+    table, setup, stroke, status = setup_from_args(args)
+    model = args.model
+    aim, note = shots.solve_playable(table, setup, stroke, model)
+    if note:
+        aim = replace(aim, notes=(note, *aim.notes))
+    try:
+        conv = shots.convergence(table, setup, None, aim.stroke, model)
+    except shots.ShotError:
+        conv = None
+    data = aim_to_json(table, aim, conv, status)
+    if args.json:
+        json.dump(data, sys.stdout, indent=2)
+        sys.stdout.write("\n")
+        return 0
+    from ..render.text import aim_report
+
+    aim_report(table, aim, conv, data, ascii_only=args.ascii, diagram=not args.no_diagram)
+    return 0

@@ -1,1 +1,0 @@
-"""Subcommands of the tablecoach command line, one module each."""

@@ -1,0 +1,180 @@
+"""The attempts repository: log, undo, read (as Attempts or as columns), count and import."""
+
+from __future__ import annotations
+
+import gc
+from collections.abc import Iterator, Sequence
+from contextlib import contextmanager
+from dataclasses import replace
+from typing import Any
+
+from ..records import FLAT_FIELDS, Attempt
+from .connection import Connection
+from .errors import StoreError
+from .query import EVERYTHING, AttemptQuery
+from .rows import (
+    COLS,
+    FIELD_COLUMN,
+    INSERT,
+    attempt_identity,
+    check_attempt,
+    from_row,
+    fromiso,
+    to_row,
+)
+
+IMPORT_CHUNK = 2000
+"""Attempts an import writes per transaction."""
+
+KEY_SEP = "\x1f"
+"""Joins text fields read as one (``Attempts.attempt_columns``): ASCII unit separator, char(31)."""
+
+
+@contextmanager
+def quiet_gc() -> Iterator[None]:
+    """Pause the cyclic garbage collector while many small objects are built at once (it would
+    rescan every live one on each collection); restores the caller's setting."""
+    was = gc.isenabled()
+    gc.disable()
+    try:
+        yield
+    finally:
+        if was:
+            gc.enable()
+
+
+class Attempts(Connection):
+    """The attempts table: every attempt is committed before ``log`` returns."""
+
+    def log(self, attempt: Attempt) -> Attempt:
+        """Validate and save one attempt, committed before returning; returns it with its id."""
+        return self.log_many([attempt])[0]
+
+    def log_many(self, items: Sequence[Attempt]) -> list[Attempt]:
+        """Validate and save several attempts in one transaction (all or none); returns them
+        with their ids. Each is exactly as if logged alone (sessions kept, undo works)."""
+        for a in items:
+            check_attempt(a)
+        prepared = [(a, to_row(a), attempt_identity(a)) for a in items]
+        out: list[Attempt] = []
+        with self.transaction() as c:
+            known: set[int] = set()
+            for a, row, ident in prepared:
+                if a.session is not None and a.session not in known:
+                    found = c.execute(
+                        "SELECT 1 FROM sessions WHERE id = ?", (a.session,)
+                    ).fetchone()
+                    if found is None:
+                        raise StoreError(f"there is no session {a.session} in {self.path}")
+                    known.add(a.session)
+                new_id = int(c.execute(INSERT, (*row, ident)).lastrowid or 0)
+                c.execute(
+                    "INSERT OR IGNORE INTO players (name, created, created_by) VALUES (?, ?, ?)",
+                    (a.player, row[0], new_id),
+                )
+                out.append(replace(a, when=fromiso(row[0]), id=new_id))
+        return out
+
+    def undo_last(self, session_id: int) -> Attempt | None:
+        """Remove the latest attempt of a session and return it (None if it has none).
+
+        The database is left as it was before that attempt was logged: a player the attempt
+        itself added is removed with it.
+        """
+        with self.transaction() as c:
+            r = c.execute(
+                f"SELECT {COLS}, id FROM attempts WHERE session_id = ? ORDER BY id DESC LIMIT 1",
+                (session_id,),
+            ).fetchone()
+            if r is None:
+                return None
+            c.execute("DELETE FROM attempts WHERE id = ?", (r[-1],))
+            c.execute("DELETE FROM players WHERE name = ? AND created_by = ?", (r[1], r[-1]))
+        return from_row(r, r[-1])
+
+    def attempts(self, query: AttemptQuery = EVERYTHING) -> list[Attempt]:
+        """The attempts ``query`` matches, ordered by time then id."""
+        where, args = query.where()
+        with quiet_gc(), self.reading() as c:
+            rows = c.execute(f"SELECT {COLS}, id FROM attempts{where} ORDER BY at, id", args)
+            return [from_row(r, r[-1]) for r in rows.fetchall()]
+
+    def count_attempts(self, query: AttemptQuery = EVERYTHING) -> int:
+        """How many attempts ``query`` matches."""
+        where, args = query.where()
+        with self.reading() as c:
+            return int(c.execute(f"SELECT COUNT(*) FROM attempts{where}", args).fetchone()[0])
+
+    def attempt_columns(
+        self, query: AttemptQuery, fields: Sequence[str], joined: Sequence[str] = ()
+    ) -> list[tuple[Any, ...]]:
+        """The attempts ``query`` matches (same order as ``attempts``) as columns of stored
+        values, in one SELECT, without building any Attempt.
+
+        One tuple per name in ``fields`` (records.FLAT_FIELDS names; times as stored text,
+        rails as comma-joined text, absent numbers None); then, if ``joined`` is not empty, one
+        tuple of those fields' texts joined with KEY_SEP per row; then the ids and the session
+        ids (None where there is none).
+        """
+        unknown = [f for f in (*fields, *joined) if f not in FIELD_COLUMN]
+        if unknown:
+            raise StoreError(
+                f"unknown attempt field {unknown[0]!r}: fields are {', '.join(FLAT_FIELDS)}"
+            )
+        exprs = [FIELD_COLUMN[f] for f in fields]
+        if joined:
+            exprs.append(" || char(31) || ".join(FIELD_COLUMN[f] for f in joined))
+        select = ", ".join([*exprs, "id", "session_id"])
+        where, args = query.where()
+        with quiet_gc():
+            with self.reading() as c:
+                rows = c.execute(
+                    f"SELECT {select} FROM attempts{where} ORDER BY at, id", args
+                ).fetchall()
+            if not rows:
+                return [()] * (len(exprs) + 2)
+            return list(zip(*rows, strict=True))
+
+    def import_attempts(self, items: Sequence[Attempt]) -> tuple[int, int]:
+        """Add attempts from elsewhere; returns (added, duplicates skipped).
+
+        An attempt whose full content (every field but id and session) is already stored, or
+        appears earlier in ``items``, is skipped, so importing a file twice adds nothing. Imported
+        attempts belong to no session. Work is committed in chunks of a few thousand, so a
+        window logging meanwhile waits only briefly; an interrupted import can be run again.
+        """
+        checked = [check_attempt(a) for a in items]
+        added = dups = 0
+        seen: set[str] = set()
+        for start in range(0, len(checked), IMPORT_CHUNK):
+            # keys and rows are built before the write lock is taken, to keep it short
+            chunk = checked[start : start + IMPORT_CHUNK]
+            prepared = [(attempt_identity(a), to_row(a)[:-1]) for a in chunk]
+            with self.transaction() as c:
+                idents = [k for k, _ in prepared]
+                stored: set[str] = set()
+                for q in range(0, len(idents), 500):
+                    part = idents[q : q + 500]
+                    marks = ", ".join("?" * len(part))
+                    stored.update(
+                        r[0]
+                        for r in c.execute(
+                            f"SELECT ident FROM attempts WHERE ident IN ({marks})", part
+                        )
+                    )
+                rows = []
+                players: dict[str, str] = {}
+                for ident, row in prepared:
+                    if ident in seen or ident in stored:
+                        dups += 1
+                        continue
+                    seen.add(ident)
+                    rows.append((*row, None, ident))
+                    players.setdefault(row[1], row[0])
+                c.executemany(INSERT, rows)
+                c.executemany(
+                    "INSERT OR IGNORE INTO players (name, created) VALUES (?, ?)",
+                    players.items(),
+                )
+                added += len(rows)
+        return added, dups
