@@ -21,8 +21,9 @@ import time
 
 import numpy as np
 
+from tablecoach.core import aim as aims
 from tablecoach.core import shots
-from tablecoach.core.physics import aim
+from tablecoach.core.aim import physical
 from tablecoach.core.physics.cushion import fine_impact, rail_impact, stepped_impact
 from tablecoach.core.physics.params import model_of
 from tablecoach.core.physics.reference import integrate
@@ -75,8 +76,8 @@ def bench_solve(reps: int) -> None:
         walls, cpus, mins, cmins = [], [], [], []
         for s, sp in cases:
             st = shots.Stroke(sp)
-            aim.solve_physical(T, s, st)  # warm
-            w, c, mn, cmn = _timed(lambda s=s, st=st: aim.solve_physical(T, s, st), reps)
+            physical.solve(T, s, st)  # warm
+            w, c, mn, cmn = _timed(lambda s=s, st=st: physical.solve(T, s, st), reps)
             walls.append(w)
             cpus.append(c)
             mins.append(mn)
@@ -92,10 +93,10 @@ def bench_solve(reps: int) -> None:
 
 def bench_convergence(reps: int) -> None:
     s = _setup("one-rail-kick", (2, 1), None, (5, 1.5))
-    starts = shots.neighbourhood(T, s.start, 0.4, 3)
+    starts = aims.neighbourhood(T, s.start, 0.4, 3)
     st = shots.Stroke(shots.SPEED_PRESETS["medium"])
-    conv = aim.convergence_physical(T, s, starts, st)
-    w, c, mn, cmn = _timed(lambda: aim.convergence_physical(T, s, starts, st), reps)
+    conv = physical.convergence(T, s, starts, st)
+    w, c, mn, cmn = _timed(lambda: physical.convergence(T, s, starts, st), reps)
     cx, cy = T.to_diamonds(*conv.point)
     print(
         f"2. convergence from {len(starts)} starts ({len(conv.starts)} kept): "

@@ -96,7 +96,7 @@ def resolve_table(name: str | None, player: str | None = None) -> tuple[Any, Any
 
 def setup_from_args(args: argparse.Namespace) -> tuple[Any, Any, Any, str]:
     """(table, setup, stroke, status) from the shared shot options."""
-    from ..core import shots
+    from ..core import shots, strokes
     from ..core.shots import ShotError
 
     table, calibration, status = resolve_table(args.table, getattr(args, "player", None))
@@ -129,7 +129,7 @@ def setup_from_args(args: argparse.Namespace) -> tuple[Any, Any, Any, str]:
             raise ShotError(f"--{name} {v:g} tips is more than a tip: it would miscue")
     # a preset name means this player's own "medium" etc. once the table is calibrated
     if calibration is None:
-        speed = shots.parse_speed(args.speed, table)
+        speed = strokes.parse_speed(args.speed, table)
     else:
         from ..core.calibrate import speed_for
 
@@ -138,19 +138,9 @@ def setup_from_args(args: argparse.Namespace) -> tuple[Any, Any, Any, str]:
     return table, setup, stroke, status
 
 
-def available_model(model: str) -> str:
-    """The model asked for, or 'ideal' when the physical engine is not installed."""
-    if model == "physical":
-        try:
-            from ..core.physics import aim  # noqa: F401
-        except ImportError:
-            return "ideal"
-    return model
-
-
 def aim_to_json(table: Any, aim: Any, conv: Any, status: str) -> dict[str, Any]:
     """The JSON shape of an aim (positions in diamonds, contract coordinates)."""
-    from ..core.shots import speed_name, travel_lengths
+    from ..core.strokes import speed_name, travel_lengths
 
     def rp(p: Any) -> dict[str, Any]:
         return {"rail": p.rail, "at": round(table.along_to_diamonds(p.rail, p.at), 4)}
@@ -205,15 +195,16 @@ def _deg(rad: float) -> float:
 
 
 def run(args: argparse.Namespace) -> int:
+    from ..core import aim as aims
     from ..core import shots
 
     table, setup, stroke, status = setup_from_args(args)
-    model = available_model(args.model)
-    aim, note = shots.solve_playable(table, setup, stroke, model)
+    model = args.model
+    aim, note = aims.solve_playable(table, setup, stroke, model)
     if note:
         aim = replace(aim, notes=(note, *aim.notes))
     try:
-        conv = shots.convergence(table, setup, None, aim.stroke, model)
+        conv = aims.convergence(table, setup, None, aim.stroke, model)
     except shots.ShotError:
         conv = None
     data = aim_to_json(table, aim, conv, status)

@@ -77,12 +77,13 @@ def _text(data: dict[str, Any], speed: float) -> str:
 
 
 def run(args: argparse.Namespace) -> int:
-    from ..core import shots
+    from ..core import aim as aims
+    from ..core import shots, strokes
     from ..core.records import rail_length_diamonds
-    from .aim import available_model, setup_from_args
+    from .aim import setup_from_args
 
     table, setup, stroke, _status = setup_from_args(args)
-    model = available_model(args.model)
+    model = args.model
     rail = setup.family.rails[0]
     top = rail_length_diamonds(rail)
     if not (0.0 <= args.reading <= top):
@@ -90,9 +91,9 @@ def run(args: argparse.Namespace) -> int:
             f"--reading {args.reading:g} is off the {rail} rail's sights: use 0 to {top:g} diamonds"
         )
     reading_m = table.along_to_metres(rail, args.reading)
-    trace = shots.predict(table, setup, reading_m, stroke, model)
+    trace = aims.predict(table, setup, reading_m, stroke, model)
     data = trace_to_json(table, setup, trace, args.reading, model)
-    data["speed"] = {"m_per_s": stroke.speed, "name": shots.speed_name(stroke.speed)}
+    data["speed"] = {"m_per_s": stroke.speed, "name": strokes.speed_name(stroke.speed)}
     data["english"] = stroke.english
     data["follow"] = stroke.follow
     if args.json:

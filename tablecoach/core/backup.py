@@ -40,7 +40,7 @@ from .store import (
     _from_row,
     attempt_identity,
 )
-from .table import table_from_mapping
+from .table_files import table_from_mapping
 
 BACKUP_VERSION = 1
 STORE_SECTIONS: tuple[str, ...] = ("players", "tables", "sessions", "attempts", "calibrations")

@@ -10,7 +10,10 @@ from typing import Any
 
 import numpy as np
 
-from . import shots
+from . import aim as aims
+from . import shots, strokes
+from .aim import ideal as ideal_aim
+from .aim import sights
 from .records import Attempt
 from .shots import RailPoint, Trace
 from .table import RAILS, TableSpec
@@ -69,7 +72,7 @@ def model_landing(
             return batch.landings(table, [0], {}, balls=False)[0]
         except (ImportError, AttributeError, TypeError, IndexError):
             pass  # the physics batch steps changed: fall back to the public trace
-    return shots.predict(table, setup, reading, stroke, model).landing
+    return aims.predict(table, setup, reading, stroke, model).landing
 
 
 def observed_landing(table: TableSpec, attempt: Attempt) -> RailPoint:
@@ -104,7 +107,7 @@ def landing_error(
     if land is None:
         return None
     d = shots.landing_distance(table, observed_landing(table, attempt), land)
-    ideal = shots.trace_ideal(table, setup, shots.direction_of(table, setup.start, rail, reading))
+    ideal = ideal_aim.trace(table, setup, sights.direction_of(table, setup.start, rail, reading))
     s = travel_sign(table, ideal, setup.start, len(setup.family.rails))
     return d if s == 0.0 else d * s
 
@@ -191,9 +194,9 @@ def with_params(table: TableSpec, values: dict[str, float]) -> TableSpec:
 
 
 def preset_of(speed: float) -> str:
-    """The named stroke a logged speed belongs to (shots.speed_name: the band between the
+    """The named stroke a logged speed belongs to (strokes.speed_name: the band between the
     neighbouring presets; below the slowest counts as slow, above the hardest as power)."""
-    return shots.speed_name(speed)
+    return strokes.speed_name(speed)
 
 
 # ----- results -----------------------------------------------------------------------------------
@@ -368,7 +371,7 @@ class Calibration:
 
         ``table`` is the table as it is without this calibration (default: the built-in table of
         that name, if there is one); the player's speeds are also said in lengths of travel on
-        the calibrated table (shots.travel_lengths), beside the book's lengths of each name
+        the calibrated table (strokes.travel_lengths), beside the book's lengths of each name
         (shots.STROKE_LENGTHS)."""
         here = self._words_table(table)
         out: list[str] = []
@@ -444,7 +447,7 @@ def _travel_words(table: TableSpec | None, speed: float, book_lengths: float) ->
     if table is None:
         return ""
     try:
-        lengths = shots.travel_lengths(table, speed)
+        lengths = strokes.travel_lengths(table, speed)
     except ValueError:
         return ""
     if not math.isfinite(lengths):
@@ -543,7 +546,7 @@ class _ArrayStroke:
 class _Batch:
     """Landings of many shots in one vectorised pass of the physical model per family.
 
-    physics/aim.py simulates rows of one family together (its solver's own batch path); this
+    aim/physical_batch.py simulates rows of one family together (its solver's own batch path); this
     runs the logged shots through the same steps predict_physical takes for one shot. At start
     every group's first shot is checked against predict_physical itself; if they disagree, or
     the batch steps are not there, ``make`` returns None and the fit predicts shot by shot.
@@ -568,7 +571,7 @@ class _Batch:
                 i = int(rows[0])
                 d = data[i]
                 got = b.landings(table, [i], {d.preset: 1.0}, balls=True)[0]
-                want = shots.predict(
+                want = aims.predict(
                     table,
                     d.setup,
                     d.reading,
@@ -597,7 +600,8 @@ class _Batch:
         """Landings of the given shots; with ``balls`` False the other balls are taken off
         the table, so the landing is where the travelling ball really crosses the landing rail
         (the design's definition: as a player sees it practising with the object ball off)."""
-        from .physics import aim as pa  # noqa: PLC0415  (heavy; only the physical fit needs it)
+        from .aim import physical_batch as pa  # noqa: PLC0415  (heavy; only the physical fit needs it)
+        from .aim.physical_trace import extend  # noqa: PLC0415
         from .physics.params import model_of  # noqa: PLC0415
 
         m = model_of(table)
@@ -610,7 +614,7 @@ class _Batch:
             key = (*idx, balls)
             pr = self._pr.get(key)
             if pr is None:  # the geometry of a batch does not change with cloth or cushion
-                pr = pa._problems(table, [d.setup for d in ds])
+                pr = pa.problems(table, [d.setup for d in ds])
                 if not balls:
                     pr = replace(pr, balls=np.full_like(pr.balls, np.nan))
                 self._pr[key] = pr
@@ -625,13 +629,13 @@ class _Batch:
             if pr.bank:
                 # the line-of-centres reading whose thrown launch line has the logged reading
                 for _ in range(6):
-                    ln = pa._launch(m, table, pr, pi, sv, stroke)  # type: ignore[arg-type]
+                    ln = pa.launch(m, table, pr, pi, sv, stroke)
                     good = ln.ok & np.isfinite(ln.reading)
                     step = np.where(good, reading - ln.reading, 0.0)
                     sv = sv + step
                     if float(np.max(np.abs(step))) < 1e-9:
                         break
-            res, ln = pa._run(m, table, pr, pi, sv, stroke)  # type: ignore[arg-type]
+            res, ln = pa.run(m, table, pr, pi, sv, stroke)
             nf = len(ds[0].setup.family.rails)
             for k, i in enumerate(idx):
                 code = int(res.landing_rail[k])
@@ -648,7 +652,7 @@ class _Batch:
                     # rails has its last line of travel carried on to a wall
                     endp = res.ball_pos[k] if res.ball[k] >= 0 else res.stop_pos[k]
                     if np.all(np.isfinite(endp)):
-                        found[i] = pa._extend(table, endp, res.last_dir[k])
+                        found[i] = extend(table, endp, res.last_dir[k])
         return [found[int(i)] for i in rows]
 
 
@@ -750,8 +754,8 @@ class _Problem:
         sign = self.signs.get(i)
         if sign is None:
             rail = d.setup.family.rails[0]
-            ideal = shots.trace_ideal(
-                self.table, d.setup, shots.direction_of(self.table, d.setup.start, rail, d.reading)
+            ideal = ideal_aim.trace(
+                self.table, d.setup, sights.direction_of(self.table, d.setup.start, rail, d.reading)
             )
             sign = self.signs[i] = (
                 travel_sign(self.table, ideal, d.setup.start, len(d.setup.family.rails)) or 1.0
@@ -909,7 +913,7 @@ def fit(
     if predictor is None:
 
         def predictor(t: TableSpec, s: shots.Setup, r: float, st: shots.Stroke) -> Trace:
-            return shots.predict(t, s, r, st, model)
+            return aims.predict(t, s, r, st, model)
 
     data = _prepare(table, attempts)
     if len(data) < 3:
@@ -1025,7 +1029,7 @@ def _shifts(prob: _Problem, u: np.ndarray) -> tuple[Shift, ...]:
         b, c = base[i], cal[i]
         if b is None or c is None:
             continue
-        ideal = shots.predict(prob.table, d.setup, d.reading, None, "ideal")
+        ideal = aims.predict(prob.table, d.setup, d.reading, None, "ideal")
         s = travel_sign(prob.table, ideal, d.setup.start, len(d.setup.family.rails)) or 1.0
         groups.setdefault((d.family, d.preset), []).append(
             s * shots.landing_distance(prob.table, c, b)
@@ -1056,7 +1060,7 @@ def speed_for(calibration: Calibration | None, text: str | float) -> float:
     becomes the player's calibrated m/s; a number of m/s is taken as given."""
     if isinstance(text, str) and text.strip().lower() in shots.SPEED_PRESETS:
         return stroke_for(calibration, text.strip().lower()).speed
-    return shots.parse_speed(text)
+    return strokes.parse_speed(text)
 
 
 NOT_CALIBRATED = "not calibrated yet"
@@ -1151,7 +1155,7 @@ sees cushion, cloth and speed at once."""
 def table_check_setups(table: TableSpec, model: str = "ideal") -> list[Any]:
     """The 5 to 10 reference shots that seed a new table's calibration, as drills.Dealt.
 
-    Each has a clean path on ``table`` under ``model`` (shots.solve_aim); shots that do not
+    Each has a clean path on ``table`` under ``model`` (aims.solve); shots that do not
     fit this table are left out, and a CalibrationError says so if fewer than 5 remain.
     """
     from .drills import Dealt  # noqa: PLC0415  (drills imports the shot engine; keep it lazy)
@@ -1166,7 +1170,7 @@ def table_check_setups(table: TableSpec, model: str = "ideal") -> list[Any]:
         stroke = shots.Stroke(shots.SPEED_PRESETS[preset])
         try:
             setup = shots.make_setup(table, family, met(cue), met(obj), None, met(tb))  # type: ignore[arg-type]
-            aim = shots.solve_aim(table, setup, stroke, model)
+            aim = aims.solve(table, setup, stroke, model)
         except ValueError:
             continue
         label = f"table check: {family.title.lower()}, {preset}"
@@ -1254,7 +1258,7 @@ def landing_errors(
         for d in data:
             st = shots.Stroke(d.logged * scale[d.preset], d.english, d.follow)
             try:
-                lands.append(shots.predict(table, d.setup, d.reading, st, model).landing)
+                lands.append(aims.predict(table, d.setup, d.reading, st, model).landing)
             except ValueError:
                 lands.append(None)
     for k, d, land in zip(keep, data, lands, strict=True):
@@ -1262,8 +1266,8 @@ def landing_errors(
             continue
         e = shots.landing_distance(table, d.observed, land)
         rail = d.setup.family.rails[0]
-        ideal = shots.trace_ideal(
-            table, d.setup, shots.direction_of(table, d.setup.start, rail, d.reading)
+        ideal = ideal_aim.trace(
+            table, d.setup, sights.direction_of(table, d.setup.start, rail, d.reading)
         )
         s = travel_sign(table, ideal, d.setup.start, len(d.setup.family.rails))
         out[k] = e if s == 0.0 else e * s

@@ -4,7 +4,7 @@ A zone is a cell of the travelling ball's start position (the cue ball for kicks
 for banks) on a grid of 2 x 1 diamonds: ``ZONE_COLS`` = 4 columns along the table (x 0-2, 2-4,
 4-6, 6-8 diamonds from the head rail) and ``ZONE_ROWS`` = 4 rows across it (y 0-1, ..., 3-4
 diamonds from the left rail), 16 cells in all, for one family and one speed band (the named
-strokes of ``shots.speed_name``: slow, lag, medium, fast, power). See docs/coach.md.
+strokes of ``strokes.speed_name``: slow, lag, medium, fast, power). See docs/coach.md.
 
 Make rates are Beta-binomial posteriors (W. R. Thompson 1933 samples from them to trade
 exploration against exploitation), each zone's prior centred on its family's own rate so that a
@@ -20,7 +20,8 @@ from typing import Any
 
 import numpy as np
 
-from . import shots
+from . import aim as aims
+from . import shots, strokes
 from .records import Attempt, ShotRecord
 from .table import BUILTIN_TABLES, TableSpec
 
@@ -101,7 +102,7 @@ def start_of(shot: ShotRecord) -> tuple[float, float]:
 def zone_of(shot: ShotRecord, speed: float) -> Zone:
     """The zone of a shot (positions in diamonds) struck at ``speed`` m/s."""
     col, row = cell_of(*start_of(shot))
-    return Zone(shot.family or "custom", col, row, shots.speed_name(speed))
+    return Zone(shot.family or "custom", col, row, strokes.speed_name(speed))
 
 
 def zone_of_attempt(a: Attempt) -> Zone:
@@ -315,7 +316,7 @@ class Scheduler:
     The zone just played is never picked twice in a row when another is available
     (interleaved practice beats blocked practice: Shea and Morgan 1979). A pin restricts the
     choice to one zone or family for a number of setups. Every setup comes from the drill's
-    sampler and has a clean path under ``model`` (checked with shots.solve_aim before it is
+    sampler and has a clean path under ``model`` (checked with aims.solve before it is
     proposed). All randomness comes from ``rng``: a seed gives the same choices.
     """
 
@@ -447,7 +448,7 @@ class Scheduler:
             while ds:
                 d = ds.pop(int(self.rng.integers(len(ds))))
                 try:
-                    shots.solve_aim(self.table, d.setup, d.stroke, self.model)
+                    aims.solve(self.table, d.setup, d.stroke, self.model)
                 except ValueError:
                     continue
                 return d

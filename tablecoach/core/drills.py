@@ -21,6 +21,7 @@ from typing import Any
 import numpy as np
 
 from . import validate
+from .aim import ideal
 from .placing import DEFAULT_GRID, GRIDS, snap, spans
 from .shots import (
     PRESETS,
@@ -32,9 +33,8 @@ from .shots import (
     Stroke,
     make_family,
     make_setup,
-    parse_speed,
-    solve_ideal,
 )
+from .strokes import parse_speed
 from .table import POCKETS, TableError, TableSpec
 
 DEFAULT_DRILL = "mixed"
@@ -548,7 +548,7 @@ def _draw(
             setup = make_setup(
                 table, item.family, pts["cue"], pts.get("object"), pocket, pts.get("target")
             )
-            aim = solve_ideal(table, setup, stroke, margin=False)  # a clean path is enough
+            aim = ideal.solve(table, setup, stroke, margin=False)  # a clean path is enough
         except (ShotError, TableError):
             continue
         if aim.cut_angle is not None and aim.cut_angle > MAX_BANK_CUT:

@@ -288,7 +288,7 @@ def ideal_landings(
     sight point (the reading on ``aim_rail``'s line of sights, 93.7 mm behind the nose, WPA) and
     reflects ideally about walls one ball radius inside the noses; the landing is the wall
     crossing after as many walls as the family has rails, the definition of
-    ``shots.trace_ideal`` (pocket openings are treated as cushion here). Returns the landing
+    ``ideal.trace`` (pocket openings are treated as cushion here). Returns the landing
     rail codes (index into head, foot, left, right), the landing points in diamonds along their
     rails, and the sense of travel round the perimeter (+1 or -1) at the landing.
     """
@@ -709,7 +709,7 @@ def bias_of(cols: Columns, offsets: np.ndarray) -> list[LandingBias]:
 def landing_bias(
     attempts: Sequence[Attempt], table_of: Callable[[str], TableSpec | None] | None = None
 ) -> list[LandingBias]:
-    """Landing bias by family and speed band (shots.speed_name), largest groups first."""
+    """Landing bias by family and speed band (strokes.speed_name), largest groups first."""
     cols = columns(attempts)
     return bias_of(cols, offsets_of(cols, table_of))
 
@@ -837,7 +837,7 @@ def weeks_from_day_numbers(
 
 
 def _speed_bands(speed: np.ndarray) -> np.ndarray:
-    """``shots.speed_name`` of each speed, vectorised (same bands, same edges: below the
+    """``strokes.speed_name`` of each speed, vectorised (same bands, same edges: below the
     slowest band counts as its stroke, above the hardest, or not a number, as the hardest)."""
     names = list(SPEED_BANDS)
     conds = [(speed >= lo) & (speed < hi) for lo, hi in SPEED_BANDS.values()]

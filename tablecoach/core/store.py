@@ -30,7 +30,8 @@ import numpy as np
 
 from . import validate
 from .records import FLAT_FIELDS, Attempt, ShotRecord, flatten, utc_now, validate_attempt
-from .table import BUILTIN_TABLES, TableError, TableSpec, table_from_mapping, table_to_mapping
+from .table import BUILTIN_TABLES, TableError, TableSpec
+from .table_files import table_from_mapping, table_to_mapping
 
 SCHEMA_VERSION = 3
 """The schema this code writes (PRAGMA user_version). Version 1 is the first schema."""

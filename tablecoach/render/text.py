@@ -30,7 +30,7 @@ def rail_point_text(table: Any, rail: str, at_m: float) -> str:
 
 def describe_aim(table: Any, aim: Any, conv: Any = None) -> list[tuple[str, str]]:
     """(label, value) rows describing a solved aim: placement, aim, contacts, margin, speed."""
-    from ..core.shots import speed_name, travel_lengths
+    from ..core.strokes import speed_name, travel_lengths
 
     s = aim.setup
     rows: list[tuple[str, str]] = [("shot", f"{s.family.title or s.family.name}")]

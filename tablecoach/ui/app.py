@@ -26,7 +26,7 @@ from tablecoach.core.table import BUILTIN_TABLES, DEFAULT_TABLE, TableSpec
 from .screens.practice import PracticeScreen
 from .screens.setup import Choice, SetupScreen
 from .screens.summary import SummaryScreen, summary_text
-from .widgets.session import Session, physical_available
+from .widgets.session import Session
 
 SETTINGS_FILE = "practice.json"
 """Last table, pack and player picked on the setup screen, and the colours, in the
@@ -138,7 +138,7 @@ class TableCoachApp(App[int]):
         self.store = store
         self.drill_name = drill_name
         self.rng = np.random.default_rng(seed)
-        self.model = model or ("physical" if physical_available() else "ideal")
+        self.model = model or "physical"
         self.ascii_only = ascii_only
         self.start_theme = theme
         self.summary: str = ""

@@ -9,7 +9,9 @@ from datetime import UTC, datetime
 import numpy as np
 import pytest
 
-from tablecoach.core import calibrate, shots
+from tablecoach.core import aim as aims
+from tablecoach.core import calibrate, shots, strokes
+from tablecoach.core.aim import ideal
 from tablecoach.core.records import Attempt
 from tablecoach.core.table import builtin_table
 
@@ -48,7 +50,7 @@ def _kick() -> tuple[shots.Setup, shots.Aim]:
     s = shots.make_setup(
         T9, shots.PRESETS["one-rail-kick"], T9.to_metres(1, 1), None, None, T9.to_metres(3, 1)
     )
-    return s, shots.solve_ideal(T9, s)
+    return s, ideal.solve(T9, s)
 
 
 def test_landing_error_is_zero_on_the_models_own_landing() -> None:
@@ -141,7 +143,7 @@ def test_apply_and_strokes() -> None:
     assert cal.actual_speed(shots.SPEED_PRESETS["medium"]) == pytest.approx(2.7)
     # any logged speed in the medium band is scaled by the same factor 2.7 / 2.392
     assert cal.actual_speed(2.1) == pytest.approx(2.1 * 2.7 / 2.392)
-    assert shots.speed_name(2.1) == "medium"
+    assert strokes.speed_name(2.1) == "medium"
     # a speed in a band the player never calibrated is taken as logged
     assert cal.actual_speed(shots.SPEED_PRESETS["lag"]) == shots.SPEED_PRESETS["lag"]
     with pytest.raises(calibrate.CalibrationError):
@@ -159,11 +161,11 @@ def test_sentences_speak_a_players_words() -> None:
     assert len(medium) == 1 and "harder than the book's 2.39 m/s" in medium[0]
     # ... and in lengths of travel on the calibrated table, beside the book's 3 lengths
     # (shots.STROKE_LENGTHS: common practice, no source)
-    here = shots.travel_lengths(cal.apply(T9), 2.7)
+    here = strokes.travel_lengths(cal.apply(T9), 2.7)
     assert f"about {here:.1f} lengths (the book's: 3)" in medium[0]
     # physics: more rolling resistance, more sliding friction and a deader cushion than the
     # default table (Alciatore, PHYSICS.md 2; Mathavan et al. 2010) take travel off a stroke
-    assert here < shots.travel_lengths(T9, 2.7)
+    assert here < strokes.travel_lengths(T9, 2.7)
     # restitution 0.92 against the default 0.98, further off than its sd 0.02: deader cushions
     assert any(t.startswith("Cushion restitution 0.92") and "deader" in t for t in text)
     livelier = replace(
@@ -217,7 +219,7 @@ def test_table_check_is_five_to_ten_clean_shots(name: str) -> None:
     setups = calibrate.table_check_setups(table)
     assert 5 <= len(setups) <= 10
     for d in setups:
-        shots.solve_ideal(table, d.setup)  # raises ShotError without a clean path
+        ideal.solve(table, d.setup)  # raises ShotError without a clean path
         assert d.label.startswith("table check: ")
     fams = {d.setup.family.name for d in setups}
     assert len(fams) >= 4
@@ -252,7 +254,7 @@ def test_prior_sd_reads_the_published_ranges() -> None:
     # travels further than a lag and less far than a fast stroke (shots.STROKE_LENGTHS, 2 and
     # 3.75 lengths: common practice, no source).
     lo, hi = (
-        shots.travel_lengths(T9, shots.SPEED_PRESETS["medium"] * math.exp(k * 2 * sd))
+        strokes.travel_lengths(T9, shots.SPEED_PRESETS["medium"] * math.exp(k * 2 * sd))
         for k in (-1, 1)
     )
     assert shots.STROKE_LENGTHS["lag"] < lo < 3.0 < hi < shots.STROKE_LENGTHS["fast"]
@@ -372,11 +374,11 @@ def test_fit_on_a_linear_toy_model_is_exact() -> None:
 
     E0, F0 = T9.cushion.restitution, T9.cushion.friction  # the priors' centres
     s, aim = _kick()
-    base = shots.predict(T9, s, aim.reading, None, "ideal").landing
+    base = aims.predict(T9, s, aim.reading, None, "ideal").landing
     assert base is not None
 
     def toy(t, setup, reading, stroke):  # type: ignore[no-untyped-def]
-        tr = shots.predict(t, setup, reading, stroke, "ideal")
+        tr = aims.predict(t, setup, reading, stroke, "ideal")
         shift = (
             2.0 * (t.cushion.restitution - E0)
             + 1.5 * (t.cushion.friction - F0) * stroke.speed
@@ -510,8 +512,8 @@ def test_travel_sign_uses_the_run_onto_the_landing_rail():
     s = shots.make_setup(
         t, shots.preset("one-rail-kick"), t.to_metres(1, 1), target_ball=t.to_metres(5, 1)
     )
-    aim = shots.solve_ideal(t, s)
-    tr = shots.predict(t, s, aim.reading + 0.3 * t.diamond)
+    aim = ideal.solve(t, s)
+    tr = aims.predict(t, s, aim.reading + 0.3 * t.diamond)
     assert not tr.scores and tr.landing is not None and tr.landing.rail == "left"
     assert len(tr.contacts) > 1  # the trace went on past the landing rail
     run_dx = tr.path[2][0] - tr.path[1][0]

@@ -9,7 +9,8 @@ import numpy as np
 import pytest
 from scipy import stats
 
-from tablecoach.core import coach, shots
+from tablecoach.core import coach, shots, strokes
+from tablecoach.core.aim import ideal
 from tablecoach.core.records import Attempt, ShotRecord
 from tablecoach.core.table import builtin_table
 
@@ -65,17 +66,19 @@ def test_zone_of_uses_the_travelling_ball_and_speed_band() -> None:
     assert z.label == "cbk x 4-6 y 1-2 medium"
     kick = ShotRecord("cue", ("right",), (1.0, 0.5), None, None, (6.0, 2.0), "k")
     # A fast stroke is 3.75 lengths of travel (shots.STROKE_LENGTHS: common practice, no
-    # source); its m/s on the default table comes from the physical model (shots.stroke_speed).
-    fast = shots.stroke_speed(T9, "fast")
+    # source); its m/s on the default table comes from the physical model (strokes.stroke_speed).
+    fast = strokes.stroke_speed(T9, "fast")
     assert coach.zone_of(kick, fast) == coach.Zone("k", 0, 0, "fast")
     # A band's edge is the geometric mean of its neighbours' speeds (shots.SPEED_BANDS): a
     # speed just above medium's and fast's geometric mean is fast, just below it medium.
-    edge = math.sqrt(shots.stroke_speed(T9, "medium") * fast)
+    edge = math.sqrt(strokes.stroke_speed(T9, "medium") * fast)
     assert coach.zone_of(kick, 1.001 * edge).speed == "fast"
     assert coach.zone_of(kick, 0.999 * edge).speed == "medium"
     # 2.55 m/s, a fast stroke in Alciatore's published bands (1.9-3.2 m/s), travels about
     # 3.1 lengths here (physics/travel.py): nearer the 3 of a medium than the 3.75 of a fast.
-    assert abs(shots.travel_lengths(T9, 2.55) - 3.0) < abs(shots.travel_lengths(T9, 2.55) - 3.75)
+    assert abs(strokes.travel_lengths(T9, 2.55) - 3.0) < abs(
+        strokes.travel_lengths(T9, 2.55) - 3.75
+    )
     assert coach.zone_of(kick, 2.55).speed == "medium"
 
 
@@ -154,7 +157,7 @@ def _sampler(table, drill, rng, n):  # type: ignore[no-untyped-def]
 
 def _has_clean_path(d: _Dealt) -> bool:
     try:
-        shots.solve_ideal(T9, d.setup)
+        ideal.solve(T9, d.setup)
     except ValueError:
         return False
     return True
@@ -273,7 +276,7 @@ def test_zone_stats_default_bias_is_long_or_short_on_the_ideal_model() -> None:
     from dataclasses import replace
 
     s = shots.make_setup(T9, KICK, T9.to_metres(1, 1), None, None, T9.to_metres(3, 1))
-    aim = shots.solve_ideal(T9, s)
+    aim = ideal.solve(T9, s)
     at = T9.along_to_diamonds(aim.landing.rail, aim.landing.at)
     reading = T9.along_to_diamonds("right", aim.reading)
     base = _attempt("one-rail-kick", (1.0, 1.0), True)

@@ -10,7 +10,9 @@ import shapely
 import sympy
 from shapely.geometry import LineString
 
+from tablecoach.core import aim as aims
 from tablecoach.core import shots
+from tablecoach.core.aim import ideal
 from tablecoach.core.geometry import nearest_point_to_lines, unfold
 from tablecoach.core.table import builtin_table
 
@@ -28,7 +30,7 @@ def _random_setups(family, n, seed):
                 s = shots.make_setup(T, family, cue, target_ball=other)
             else:
                 s = shots.make_setup(T, family, cue, object_ball=other)
-            aim = shots.solve_ideal(T, s)
+            aim = ideal.solve(T, s)
         except shots.ShotError:
             continue
         out.append((s, aim))
@@ -120,7 +122,7 @@ def test_ideal_convergence_is_the_unfolded_image(name):
     # images), so the least-squares point is the image itself and the spread is zero.
     fam = shots.preset(name)
     s, aim = _random_setups(fam, 1, 5)[0]
-    conv = shots.convergence(T, s)
+    conv = aims.convergence(T, s)
     lines = [T.reflection_line(r) for r in fam.rails]
     img = unfold(s.target_point(T), fam.rails, lines).image
     assert conv.point[0] == pytest.approx(img[0], abs=1e-9)
@@ -163,7 +165,7 @@ def test_quarter_diamond_parallel_shift_misses_by_about_half_a_diamond():
     m = T.to_metres
     ref = shots.make_setup(T, fam, m(3, 1), object_ball=m(4, 2))
     new = shots.make_setup(T, fam, m(3.25, 1), object_ball=m(4.25, 2))
-    cmp = shots.compare_shift(T, ref, new)
+    cmp = aims.compare_shift(T, ref, new)
     assert 0.35 <= abs(cmp.parallel_miss) <= 0.65
     # rotating the line about the convergence point lands where the solved aim does
     assert abs(cmp.rotated_miss) < 1e-6

@@ -18,7 +18,8 @@ import pytest
 
 from tablecoach.core.records import Attempt, RecordError, ShotRecord
 from tablecoach.core.store import SCHEMA_VERSION, Store, StoreError, attempt_identity
-from tablecoach.core.table import BUILTIN_TABLES, TableError, table_from_mapping
+from tablecoach.core.table import BUILTIN_TABLES, TableError
+from tablecoach.core.table_files import table_from_mapping
 
 REPO = Path(__file__).resolve().parents[2]
 

@@ -762,15 +762,13 @@ async def test_store_error_while_logging_is_one_line_and_keeps_the_setup(make_ap
 
 
 async def test_physical_model_by_default(make_app):
-    """With the physical aim installed it is the default; a setup it cannot solve shows the
+    """The physical aim is the default; a setup it cannot solve shows the
     ideal aim with a note, and the attempt records the model that gave the reading."""
-    from tablecoach.ui.widgets.session import physical_available
-
     app = make_app(model=None)
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
         screen = app.screen
-        assert screen.session.model == ("physical" if physical_available() else "ideal")
+        assert screen.session.model == "physical"
         aim = screen.aim
         assert aim is not None
         if aim.model != screen.session.model:

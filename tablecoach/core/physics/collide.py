@@ -76,4 +76,5 @@ def throw_angle(v_obj: np.ndarray, n: np.ndarray) -> np.ndarray:
     """Signed angle (rad) from the line of centres to the launch direction."""
     cross = n[:, 0] * v_obj[:, 1] - n[:, 1] * v_obj[:, 0]
     dot = np.sum(n * v_obj, axis=1)
-    return np.arctan2(cross, dot)
+    angle: np.ndarray = np.arctan2(cross, dot)
+    return angle

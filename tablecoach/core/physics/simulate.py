@@ -7,7 +7,7 @@ wall crossing inside a pocket mouth). No time step is taken between events. All 
 shots of a batch advance together: one loop pass moves every unfinished row to its own next
 event, so a batch of hundreds of shots costs a few dozen numpy passes.
 
-Conventions follow the ideal trace in shots.py: the ball centre moves in the box one radius
+Conventions follow the ideal trace (aim/ideal.py): the ball centre moves in the box one radius
 inside the cushion noses; a crossing of that box inside a pocket mouth is a pocket entry
 (clean when the line of travel clears both jaw points by a radius); the first ball the row
 meets ends its path, after which it runs on (balls ignored) to find its landing, the first
@@ -20,14 +20,14 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ..table import POCKETS, RAILS, TableSpec
+from ..table import OUTWARD_NORMALS, POCKETS, RAILS, TableSpec
 from .cushion import rail_impact
-from .motion import ROLLING, SLIDING, SPINNING, dot2, evolve, prepare, settle
+from .motion import ROLLING, SPINNING, dot2, evolve, evolve_moving, prepare, settle
 from .params import BallModel
 from .roots import first_quadratic_root, first_quartic_root
 
-_NORMALS = np.array([[-1.0, 0.0], [1.0, 0.0], [0.0, -1.0], [0.0, 1.0]])
-"""Outward normals of head, foot, left, right (RAILS order)."""
+_NORMALS = np.array(OUTWARD_NORMALS)
+"""Outward normals of head, foot, left, right (table.RAILS order), as an array."""
 
 
 @dataclass(slots=True)
@@ -98,12 +98,15 @@ def _segment_table(table: TableSpec) -> tuple[np.ndarray, np.ndarray]:
     return lo, hi
 
 
-_CACHE: list[tuple[TableSpec, tuple]] = []
+_TableArrays = tuple[
+    tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray], tuple[np.ndarray, np.ndarray]
+]
+_CACHE: list[tuple[TableSpec, _TableArrays]] = []
 """Per-table constants of the last few tables, keyed by identity (hashing a spec is slow)."""
 _CACHE_SIZE = 8
 
 
-def _table_arrays(table: TableSpec) -> tuple:
+def _table_arrays(table: TableSpec) -> _TableArrays:
     """Pocket arrays and cushion stretches of a table, computed once per table object."""
     for t, val in _CACHE:
         if t is table:
@@ -119,7 +122,8 @@ def _on_cushion(
 ) -> np.ndarray:
     lo, hi = seg
     al = along[:, None]
-    return np.any((al >= lo[rail]) & (al <= hi[rail]), axis=1)
+    out: np.ndarray = np.any((al >= lo[rail]) & (al <= hi[rail]), axis=1)
+    return out
 
 
 def simulate(
@@ -153,8 +157,6 @@ def simulate(
     maxw = nf + 1
     rail_codes = np.array([RAILS.index(x) for x in rails], dtype=np.int64)
     R = m.radius
-    lo = np.array([R, R])
-    hi = np.array([table.length - R, table.width - R])
     (ja, jb, paim, member), seg_tab = _table_arrays(table)
     r = np.array(r0, dtype=float)
     v = np.array(v0, dtype=float)
@@ -185,7 +187,7 @@ def simulate(
     segments: list[Segment] = []
     sgn = np.array([1.0, -1.0, 1.0, -1.0])
     ax4 = np.array([0, 0, 1, 1])
-    wall4 = np.array([lo[0], hi[0], lo[1], hi[1]])
+    wall4 = np.array(table.ball_box())  # the walls in RAILS order
     bvalid = ~np.isnan(balls[:, :, 0])
     events = 0
     sp0 = np.hypot(v[:, 0], v[:, 1])
@@ -256,7 +258,7 @@ def simulate(
         dt = np.where(np.isfinite(dt), dt, 0.0)
         if record:
             segments.append(Segment(ri.copy(), vi.copy(), wi.copy(), ph.copy(), dt.copy(), idx))
-        r2, v2, w2 = _evolve_moving(m, ri, vi, wi, ph, dt, a)
+        r2, v2, w2 = evolve_moving(m, ri, vi, wi, ph, dt, a)
         sp = np.hypot(v2[:, 0], v2[:, 1])
         mv = sp > 1e-12
         last_dir[idx[mv]] = v2[mv] / sp[mv, None]
@@ -394,30 +396,6 @@ def simulate(
         segments,
         rail_vn,
     )
-
-
-def _evolve_moving(
-    m: BallModel,
-    r: np.ndarray,
-    v: np.ndarray,
-    w: np.ndarray,
-    phase: np.ndarray,
-    t: np.ndarray,
-    a: np.ndarray,
-) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """motion.evolve for rows that all roll or slide (the loop has dropped the rest): the
-    same arithmetic without the branches for stopped and spinning balls."""
-    tt = t[:, None]
-    r2 = r + (v + 0.5 * a * tt) * tt
-    v2 = v + a * tt
-    k = 2.5 / m.radius
-    w2 = np.empty_like(w)
-    sl = phase == SLIDING
-    w2[:, 0] = np.where(sl, w[:, 0] + k * a[:, 1] * t, -v2[:, 1] / m.radius)
-    w2[:, 1] = np.where(sl, w[:, 1] - k * a[:, 0] * t, v2[:, 0] / m.radius)
-    wz = w[:, 2]
-    w2[:, 2] = np.sign(wz) * np.maximum(np.abs(wz) - m.spin_decel * t, 0.0)
-    return r2, v2, w2
 
 
 def _ball_times(

@@ -9,7 +9,8 @@ from rich.text import Text
 from textual.widgets import Static
 
 from tablecoach.core import placing
-from tablecoach.core.shots import Aim, Convergence, Stroke, speed_name, travel_lengths
+from tablecoach.core.shots import Aim, Convergence, Stroke
+from tablecoach.core.strokes import speed_name, travel_lengths
 from tablecoach.core.table import TableSpec
 
 from . import wording as w

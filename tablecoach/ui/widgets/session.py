@@ -2,14 +2,13 @@
 
 from __future__ import annotations
 
-import importlib.util
 import threading
 from dataclasses import dataclass, replace
 from typing import Any
 
 import numpy as np
 
-from tablecoach.core import shots
+from tablecoach.core import shots, strokes
 from tablecoach.core.records import Attempt, rail_length_diamonds, utc_now
 from tablecoach.core.shots import Aim, Setup, Stroke
 from tablecoach.core.store import Store
@@ -28,14 +27,6 @@ that model finds no path, so dealing never keeps the player waiting for long."""
 REDRAWS = 3
 """How many setups the practice screen draws, at most, looking for one the session's model
 can solve, before it shows the ideal aim with a note."""
-
-
-def physical_available() -> bool:
-    """True once the physical aim model (core/physics/aim.py) is installed."""
-    try:
-        return importlib.util.find_spec("tablecoach.core.physics.aim") is not None
-    except ModuleNotFoundError:
-        return False
 
 
 def zone_label(zone: Any) -> str:
@@ -191,7 +182,7 @@ class Session:
     ) -> None:
         self.store = store
         self.calibration = calibration
-        self.preset = shots.speed_name(Stroke().speed)
+        self.preset = strokes.speed_name(Stroke().speed)
         self.spin_step = 0
         self.table = table
         self.drill = drill
@@ -224,7 +215,7 @@ class Session:
         self.spin_step = 0
         if pick is not None:
             self.stroke = pick.stroke
-            self.preset = shots.speed_name(pick.stroke.speed)
+            self.preset = strokes.speed_name(pick.stroke.speed)
 
     def deal(self) -> Pick:
         """Draw and show the next setup at once."""
@@ -241,7 +232,7 @@ class Session:
         self.pick = Pick(setup, stroke, attempt.shot.family, zone, "shown again after undo")
         self.stroke = stroke
         self.spin_step = 0
-        self.preset = shots.speed_name(stroke.speed)
+        self.preset = strokes.speed_name(stroke.speed)
         return self.pick
 
     def next_speed(self) -> tuple[str, Stroke]:

@@ -7,7 +7,7 @@ import math
 import numpy as np
 
 from tablecoach.core import shots
-from tablecoach.core.physics import aim
+from tablecoach.core.aim import physical_batch
 from tablecoach.core.physics.collide import strike
 from tablecoach.core.physics.cushion import rail_impact, stepped_impact
 from tablecoach.core.physics.motion import evolve
@@ -115,8 +115,8 @@ def _setup(t: TableSpec) -> shots.Setup:
 def test_sampled_path_is_each_stretch_evolved_in_turn(table: TableSpec, model: BallModel) -> None:
     # The batched path against evolving every recorded stretch on its own (motion.evolve).
     s = _setup(table)
-    pr = aim._problems(table, [s])
-    res, _ = aim._run(
+    pr = physical_batch.problems(table, [s])
+    res, _ = physical_batch.run(
         model, table, pr, np.zeros(1, dtype=np.int64), pr.centre[:1], shots.Stroke(3.2), True
     )
     want: list[tuple[float, float]] = []
