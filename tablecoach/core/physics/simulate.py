@@ -20,11 +20,13 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ..table import OUTWARD_NORMALS, POCKETS, RAILS, TableSpec
+from ..table import OUTWARD_NORMALS, RAILS, TableSpec
+from .approach import ball_times, closest
 from .cushion import rail_impact
-from .motion import ROLLING, SPINNING, dot2, evolve, evolve_moving, prepare, settle
+from .motion import ROLLING, SPINNING, evolve, evolve_moving, prepare, settle
 from .params import BallModel
-from .roots import first_quadratic_root, first_quartic_root
+from .roots import first_quadratic_root
+from .table_arrays import on_cushion, table_arrays
 
 _NORMALS = np.array(OUTWARD_NORMALS)
 """Outward normals of head, foot, left, right (table.RAILS order), as an array."""
@@ -79,53 +81,6 @@ class SimResult:
     rail_vn: np.ndarray = field(default_factory=lambda: np.zeros(0))
 
 
-def _pocket_arrays(table: TableSpec) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-    ps = table.pockets()
-    ja = np.array([ps[n].jaw_a for n in POCKETS])
-    jb = np.array([ps[n].jaw_b for n in POCKETS])
-    aim = np.array([ps[n].aim for n in POCKETS])
-    member = np.array([[r in ps[n].rails for n in POCKETS] for r in RAILS])  # (4, 6)
-    return ja, jb, aim, member
-
-
-def _segment_table(table: TableSpec) -> tuple[np.ndarray, np.ndarray]:
-    """Cushion stretches of each rail as (4, 2) arrays of starts and ends (nan-padded)."""
-    lo = np.full((4, 2), np.nan)
-    hi = np.full((4, 2), np.nan)
-    for code, name in enumerate(RAILS):
-        for j, (a, b) in enumerate(table.cushion_segments(name)):
-            lo[code, j], hi[code, j] = a, b
-    return lo, hi
-
-
-_TableArrays = tuple[
-    tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray], tuple[np.ndarray, np.ndarray]
-]
-_CACHE: list[tuple[TableSpec, _TableArrays]] = []
-"""Per-table constants of the last few tables, keyed by identity (hashing a spec is slow)."""
-_CACHE_SIZE = 8
-
-
-def _table_arrays(table: TableSpec) -> _TableArrays:
-    """Pocket arrays and cushion stretches of a table, computed once per table object."""
-    for t, val in _CACHE:
-        if t is table:
-            return val
-    val = (_pocket_arrays(table), _segment_table(table))
-    _CACHE.insert(0, (table, val))
-    del _CACHE[_CACHE_SIZE:]
-    return val
-
-
-def _on_cushion(
-    seg: tuple[np.ndarray, np.ndarray], rail: np.ndarray, along: np.ndarray
-) -> np.ndarray:
-    lo, hi = seg
-    al = along[:, None]
-    out: np.ndarray = np.any((al >= lo[rail]) & (al <= hi[rail]), axis=1)
-    return out
-
-
 def simulate(
     m: BallModel,
     table: TableSpec,
@@ -157,7 +112,7 @@ def simulate(
     maxw = nf + 1
     rail_codes = np.array([RAILS.index(x) for x in rails], dtype=np.int64)
     R = m.radius
-    (ja, jb, paim, member), seg_tab = _table_arrays(table)
+    (ja, jb, paim, member), seg_tab = table_arrays(table)
     r = np.array(r0, dtype=float)
     v = np.array(v0, dtype=float)
     w = np.array(w0, dtype=float)
@@ -244,7 +199,7 @@ def simulate(
             if rows.size:
                 p = ri[rows] - bb[rows, cols]
                 vv, aa = vi[rows], a[rows]
-                tb = _ball_times(p, vv, aa, tw_end[rows], 2.0 * R)
+                tb = ball_times(p, vv, aa, tw_end[rows], 2.0 * R)
                 if k == 1:  # one ball: no choice to make between balls
                     t_b[rows] = tb
                     b_id = np.where(np.isfinite(t_b), 0, -1)
@@ -275,7 +230,7 @@ def simulate(
             else:
                 tc, to_wall = dt, is_wall
             to_rest = (ph == ROLLING) & (t_end <= tc) & ~to_wall
-            _closest(
+            closest(
                 ri, vi, a, tc, target_point[idx], after, to_rest, to_wall, best, miss, at_rest, idx
             )
         # ball contact: note it, and run on through the ball (balls ignored from now)
@@ -303,7 +258,7 @@ def simulate(
             hits[rows, slot] = code
             hit_at[rows, slot] = along
             walls[rows] = cnt + 1
-            cush = _on_cushion(seg_tab, code, along)
+            cush = on_cushion(seg_tab, code, along)
             keep = np.ones(rows.size, dtype=bool)
             if any_lean and nf:  # off the family's order: nothing more to learn from the row
                 off = (cnt < nf) & (code != rail_codes[np.minimum(cnt, nf - 1)])
@@ -396,115 +351,6 @@ def simulate(
         segments,
         rail_vn,
     )
-
-
-def _ball_times(
-    p: np.ndarray, v: np.ndarray, a: np.ndarray, t_max: np.ndarray, reach: float
-) -> np.ndarray:
-    """First time the centre r + v t + a t^2/2 comes within ``reach`` of a ball (p = r - c).
-
-    A path whose acceleration is along its velocity is straight: the contact is where the
-    line meets the circle of radius ``reach``, and its time a quadratic root. A curved path
-    (sliding with the slip across the velocity) is the quartic |p + v t + a t^2/2|^2 = reach^2
-    (Leckie and Greenspan 2006), solved in roots.py.
-    """
-    vx, vy, ax, ay = v[:, 0], v[:, 1], a[:, 0], a[:, 1]
-    spd = np.sqrt(vx * vx + vy * vy)
-    amag = np.sqrt(ax * ax + ay * ay)
-    cross = np.abs(vx * ay - vy * ax)
-    straight = cross <= 1e-12 * np.maximum(spd * amag, 1e-300)
-    every = bool(straight.all())
-    out = np.full(p.shape[0], np.inf)
-    if every or np.count_nonzero(straight):
-        # on columns, the whole batch at once when every path is straight
-        if every:
-            px, py, sx, sy, hx, hy, sp, tm = p[:, 0], p[:, 1], vx, vy, ax, ay, spd, t_max
-        else:
-            ps, vs, as_ = p[straight], v[straight], a[straight]
-            px, py, sx, sy = ps[:, 0], ps[:, 1], vs[:, 0], vs[:, 1]
-            hx, hy, sp, tm = as_[:, 0], as_[:, 1], spd[straight], t_max[straight]
-        sp_div = np.maximum(sp, 1e-300)
-        ux, uy = sx / sp_div, sy / sp_div
-        b = px * ux + py * uy
-        cc = (px * px + py * py) - reach * reach
-        disc = b * b - cc
-        s_hit = -b - np.sqrt(np.maximum(disc, 0.0))
-        ok = (disc >= 0) & (s_hit >= 0) & (sp > 0)
-        # distance along the line s(t) = |v| t + (a.u) t^2 / 2 reaching s_hit
-        t = first_quadratic_root(-0.5 * (hx * ux + hy * uy), -sp, np.where(ok, s_hit, -1.0), tm)
-        if every:
-            return np.where(ok, t, np.inf)
-        out[straight] = np.where(ok, t, np.inf)
-    curved = ~straight
-    if np.count_nonzero(curved):
-        pc, vc, ac = p[curved], v[curved], a[curved]
-        coef = np.stack(
-            (
-                0.25 * dot2(ac, ac),
-                dot2(vc, ac),
-                dot2(vc, vc) + dot2(pc, ac),
-                2.0 * dot2(pc, vc),
-                dot2(pc, pc) - reach * reach,
-            ),
-            axis=1,
-        )
-        out[curved] = first_quartic_root(coef, t_max[curved])
-    return out
-
-
-def _closest(
-    r: np.ndarray,
-    v: np.ndarray,
-    a: np.ndarray,
-    dt: np.ndarray,
-    c: np.ndarray,
-    sel: np.ndarray,
-    to_rest: np.ndarray,
-    to_wall: np.ndarray,
-    best: np.ndarray,
-    miss: np.ndarray,
-    at_rest: np.ndarray,
-    idx: np.ndarray,
-) -> None:
-    """Update the closest approach of point c to the path r + v t + a t^2/2, t in [0, dt].
-
-    Minimises |r(t) - c|^2 by Newton steps on (r(t) - c) . v(t) from the straight-line
-    estimate, clipped to the interval; the signed distance is positive with c left of travel.
-    """
-    # on columns (x and y apart): the same arithmetic as row-wise dot products, fewer calls
-    if sel.all():
-        rs, cs, vs, as_, T = r, c, v, a, dt
-    else:
-        rs, cs, vs, as_, T = r[sel], c[sel], v[sel], a[sel], dt[sel]
-    px, py = rs[:, 0] - cs[:, 0], rs[:, 1] - cs[:, 1]
-    vx, vy, ax, ay = vs[:, 0], vs[:, 1], as_[:, 0], as_[:, 1]
-    hx, hy = 0.5 * ax, 0.5 * ay
-    v2 = vx * vx + vy * vy
-    t = np.clip(-(px * vx + py * vy) / np.maximum(v2, 1e-300), 0.0, T)
-    for _ in range(3):
-        tt = t * t
-        qx, qy = px + vx * t + hx * tt, py + vy * t + hy * tt
-        ux, uy = vx + ax * t, vy + ay * t
-        g = qx * ux + qy * uy
-        dg = (ux * ux + uy * uy) + (qx * ax + qy * ay)
-        t = np.clip(t - g / np.where(np.abs(dg) > 1e-300, dg, 1.0), 0.0, T)
-    tt = t * t
-    qx, qy = px + vx * t + hx * tt, py + vy * t + hy * tt
-    ux, uy = vx + ax * t, vy + ay * t
-    dist = np.hypot(qx, qy)
-    us = np.hypot(ux, uy)
-    cross = ux * -qy - uy * -qx
-    side = np.sign(cross)
-    side = np.where((us > 1e-12) & (side != 0), side, 1.0)
-    # a stretch that ends on a wall with the point still ahead (a pocket mouth beyond the
-    # box): measure on the line of travel carried on past the wall
-    ahead = to_wall[sel] & (t >= T * (1.0 - 1e-12)) & ((-qx * ux + -qy * uy) > 0)
-    dist = np.where(ahead, np.abs(cross) / np.maximum(us, 1e-300), dist)
-    rows = idx[sel]
-    better = dist < best[rows]
-    best[rows[better]] = dist[better]
-    miss[rows[better]] = side[better] * dist[better]
-    at_rest[rows[better]] = (to_rest[sel] & (t >= T * (1.0 - 1e-9)))[better]
 
 
 def sample_path(
