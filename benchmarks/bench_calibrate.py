@@ -22,6 +22,7 @@ from datetime import UTC, datetime
 import numpy as np
 
 from tablecoach.core import calibrate, drills, shots
+from tablecoach.core.drill_packs import Drill
 from tablecoach.core.records import Attempt
 from tablecoach.core.table import TableSpec, builtin_table
 
@@ -44,7 +45,7 @@ JUMP = 3.0  # diamonds: beyond this a landing error is a pocket-versus-rail jump
 
 
 def simulate(
-    truth: TableSpec, pack: drills.Drill, rng: np.random.Generator, n: int, noise: bool
+    truth: TableSpec, pack: Drill, rng: np.random.Generator, n: int, noise: bool
 ) -> list[tuple[drills.Dealt, Attempt]]:
     """n logged attempts of a pack on the true table (the app's record: book speeds, aims)."""
     out: list[tuple[drills.Dealt, Attempt]] = []

@@ -283,7 +283,7 @@ def _check_calibration(row: dict[str, Any]) -> None:
 
 
 def _check_drill(row: dict[str, Any]) -> None:
-    from .drills import parse_drill
+    from .drill_packs import parse_drill
 
     name = row.get("file")
     if (

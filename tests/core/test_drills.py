@@ -12,7 +12,8 @@ from scipy.spatial.distance import pdist
 
 from tablecoach.core import aim as aims
 from tablecoach.core import drills
-from tablecoach.core.drills import DrillError, deal, load_drill, sample_setups
+from tablecoach.core.drill_packs import DrillError, load_drill
+from tablecoach.core.drills import deal, sample_setups
 from tablecoach.core.shots import PRESETS
 from tablecoach.core.table import BUILTIN_TABLES
 

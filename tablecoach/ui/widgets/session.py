@@ -93,7 +93,7 @@ class Dealer:
         self.model = model
         self.scheduler: Any = None
         try:
-            from tablecoach.core.coach import Scheduler  # noqa: PLC0415
+            from tablecoach.core.scheduler import Scheduler  # noqa: PLC0415
         except ImportError:
             Scheduler = None  # noqa: N806
         if Scheduler is not None:
@@ -145,7 +145,7 @@ class Dealer:
     def rebuild(self, attempts: list[Attempt]) -> None:
         """Start the scheduler again from these attempts (after an undo)."""
         if self.scheduler is not None:
-            from tablecoach.core.coach import Scheduler  # noqa: PLC0415
+            from tablecoach.core.scheduler import Scheduler  # noqa: PLC0415
 
             self.scheduler = Scheduler(
                 self.table, self.drill, list(attempts), self.rng, model=DEAL_MODEL
