@@ -5,7 +5,7 @@ line of centres n. Normal impulse Jn = m (1 + e) / 2 (v . n) (equal masses, Newt
 the ball-ball restitution e, Alciatore's typical 0.95). Friction at the contact opposes the
 relative slip u_t (the tangential part of v + w x (R n), the object's contact point being at
 rest); it is Coulomb friction with the speed-dependent coefficient fitted by Alciatore to
-Marlow's data (TP A.14 / A.24; PHYSICS.md 4):
+Marlow's data (TP A.14 / A.24; docs/model.md, "Ball-ball contact"):
 
     mu(u) = 9.951e-3 + 0.108 exp(-1.088 u),  u the slip speed in m/s,
 

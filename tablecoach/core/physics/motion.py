@@ -1,8 +1,8 @@
 """Closed-form ball motion on the cloth: sliding, rolling, spinning and stopped phases.
 
 After W. Leckie and M. Greenspan, "An event-based pool physics simulator", Advances in Computer
-Games, LNCS 4250 (2006), with the phase equations of PHYSICS.md section 2 (Coriolis 1835;
-Alciatore's parameter ranges). Every function works on a batch: positions ``r`` (n, 2),
+Games, LNCS 4250 (2006), with the phase equations of docs/model.md, "Ball on cloth" (Coriolis
+1835; Alciatore's parameter ranges). Every function works on a batch: positions ``r`` (n, 2),
 velocities ``v`` (n, 2), spins ``w`` (n, 3) (rad/s, z up from the cloth), SI units.
 
 Frame: the table's x and y with z = x cross y taken as "up" (away from the cloth) and all cross
@@ -12,9 +12,9 @@ stick hit does that in stick.py).
 
 Sliding: the contact slip u = v + w x (-R z) = (vx - R wy, vy + R wx) keeps its direction; the
 cloth friction gives a = -mu_s g u/|u| and, from the torque r x F at the contact (0, 0, -R),
-dw/dt = (5 / (2R)) (a_y, -a_x, 0) (PHYSICS.md writes this as (5/(2R)) z x a; with the slip
-defined as above the torque gives the opposite sign, a x z; the check is that the slip then
-shrinks at 7/2 mu_s g, which the tests confirm). Sliding ends after 2|u0| / (7 mu_s g).
+dw/dt = (5 / (2R)) (a_y, -a_x, 0) (written (5/(2R)) z x a, the sign would make the slip grow;
+with the slip defined as above the torque gives a x z; the check is that the slip then shrinks
+at 7/2 mu_s g, which the tests confirm). Sliding ends after 2|u0| / (7 mu_s g).
 Rolling: a = -mu_r g v/|v|, in-plane spin locked to v (wx = -vy/R, wy = vx/R), stops after
 |v| / (mu_r g). Spin about the vertical decays at ``spin_decel`` in every phase and ends the
 spinning phase after |wz| / spin_decel.
@@ -76,7 +76,7 @@ def phase_duration(m: BallModel, v: np.ndarray, w: np.ndarray, phase: np.ndarray
     """Time to the end of each ball's current phase (inf when it never ends, e.g. mu = 0).
 
     Sliding 2|u|/(7 mu_s g), rolling |v|/(mu_r g), spinning |wz|/spin_decel (Leckie and
-    Greenspan 2006; PHYSICS.md 2).
+    Greenspan 2006; docs/model.md, "Ball on cloth").
     """
     out = np.full(v.shape[0], np.inf)
     with np.errstate(divide="ignore", invalid="ignore"):
