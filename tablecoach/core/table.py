@@ -247,10 +247,7 @@ class TableSpec:
     def on_cushion(self, rail: RailName, along: float) -> bool:
         """True when a ball touching this rail with its centre at ``along`` meets cushion."""
         stretches = cushion_stretches(self).get(rail) or cushion_stretches(self)[_rail(rail)]
-        for a, b in stretches:  # noqa: SIM110  (a plain loop: hot path)
-            if a <= along <= b:
-                return True
-        return False
+        return on_stretches(stretches, along)
 
     def ball_box(self) -> tuple[float, float, float, float]:
         """(xmin, xmax, ymin, ymax): the box ball centres move in, one radius inside the noses."""
@@ -260,8 +257,14 @@ class TableSpec:
     def pocket_at(self, rail: RailName, along: float) -> Pocket:
         """The pocket whose opening holds a crossing of the ball box at ``along`` on ``rail``."""
         axis = 1 - axis_of(rail)
-        mouths = [p for p in self.pockets().values() if rail in p.rails]
-        return min(mouths, key=lambda p: abs(p.aim[axis] - along))
+        best, best_d = None, math.inf
+        for p in self.pockets().values():
+            if rail in p.rails:
+                d = abs(p.aim[axis] - along)
+                if d < best_d:
+                    best, best_d = p, d
+        assert best is not None
+        return best
 
     # ----- pockets --------------------------------------------------------------------------
     def pockets(self) -> Mapping[str, Pocket]:
@@ -304,6 +307,14 @@ class TableSpec:
 
 Stretches = Mapping[RailName, tuple[tuple[float, float], ...]]
 _STRETCHES: dict[int, tuple[TableSpec, Stretches]] = {}
+
+
+def on_stretches(stretches: tuple[tuple[float, float], ...], along: float) -> bool:
+    """True when ``along`` lies on one of a rail's cushion stretches (a plain loop: hot path)."""
+    for a, b in stretches:  # noqa: SIM110
+        if a <= along <= b:
+            return True
+    return False
 
 
 def cushion_stretches(table: TableSpec) -> Stretches:

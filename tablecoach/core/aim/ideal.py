@@ -34,7 +34,16 @@ from ..shots import (
     make_setup,
     rails_text,
 )
-from ..table import RAILS, Pocket, RailName, TableError, TableSpec, axis_of
+from ..table import (
+    RAILS,
+    Pocket,
+    RailName,
+    TableError,
+    TableSpec,
+    axis_of,
+    cushion_stretches,
+    on_stretches,
+)
 from .sights import direction_of, reading_of
 
 # ----- the trace ------------------------------------------------------------------------------
@@ -77,6 +86,7 @@ def trace(table: TableSpec, setup: Setup, direction: Point) -> Trace:
     kick with the object ball taken off.
     """
     box = table.ball_box()
+    stretches = cushion_stretches(table)
     rails = setup.family.rails
     n = len(rails)
     p = setup.start
@@ -121,7 +131,7 @@ def trace(table: TableSpec, setup: Setup, direction: Point) -> Trace:
         along = q[1] if rail in ("head", "foot") else q[0]
         if walls == n + 1:
             landing = RailPoint(rail, along)
-        if table.on_cushion(rail, along):
+        if on_stretches(stretches[rail], along):
             if not done:
                 path.append(q)
                 hit.append(rail)
