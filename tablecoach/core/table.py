@@ -69,12 +69,6 @@ def perimeter_diamonds(rail: RailName, at: float) -> float:
     return PERIMETER_BASE[code] + PERIMETER_SENSE[code] * at
 
 
-def perimeter_tangent(rail: RailName) -> tuple[float, float]:
-    """The unit direction along ``rail`` in which the walk round the table advances."""
-    nx, ny = OUTWARD_NORMALS[RAILS.index(rail)]
-    return (ny, -nx)
-
-
 @dataclass(frozen=True, slots=True)
 class Cloth:
     """Ball-on-cloth parameters.

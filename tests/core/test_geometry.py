@@ -13,7 +13,7 @@ from shapely.geometry import LineString
 from tablecoach.core import aim as aims
 from tablecoach.core import shots
 from tablecoach.core.aim import ideal
-from tablecoach.core.geometry import nearest_point_to_lines, unfold
+from tablecoach.core.geometry import box_exit, box_exits, nearest_point_to_lines, unfold
 from tablecoach.core.table import builtin_table
 
 T = builtin_table("9ft")
@@ -180,3 +180,26 @@ def test_core_imports_neither_rich_nor_textual():
     )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == ""
+
+
+def test_box_exit_matches_shapely_for_rays_from_inside_the_ball_box():
+    # Reference: shapely (general-purpose geometry library): where a long segment from a point
+    # inside the box crosses the box's boundary. Side codes follow table.RAILS (head xmin, foot
+    # xmax, left ymin, right ymax); the array form gives the same answers row by row.
+    box = T.ball_box()
+    xmin, xmax, ymin, ymax = box
+    rng = np.random.default_rng(13)
+    p = np.column_stack((rng.uniform(xmin, xmax, 200), rng.uniform(ymin, ymax, 200)))
+    ang = rng.uniform(0.0, 2.0 * math.pi, 200)
+    d = np.column_stack((np.cos(ang), np.sin(ang)))
+    ts, sides = box_exits(p, d, box)
+    outline = shapely.box(xmin, ymin, xmax, ymax).exterior
+    for i in range(200):
+        t, side = box_exit((p[i, 0], p[i, 1]), (d[i, 0], d[i, 1]), box)
+        far = LineString([p[i], p[i] + 10.0 * d[i]])
+        hit = outline.intersection(far)
+        assert t == pytest.approx(math.dist(p[i], (hit.x, hit.y)), abs=1e-9)
+        q = p[i] + t * d[i]
+        walls = (q[0] - xmin, xmax - q[0], q[1] - ymin, ymax - q[1])
+        assert abs(walls[side]) < 1e-9
+        assert ts[i] == pytest.approx(t, abs=1e-12) and sides[i] == side
