@@ -14,7 +14,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from numpy.polynomial import Polynomial
+from numpy.polynomial import polynomial as P
 
 from ..physics.params import BallModel
 from ..physics.simulate import SimResult
@@ -80,15 +80,17 @@ def _chord_zero(s0: float, s1: float, m0: float, m1: float) -> float:
 
 def quadratic_zero(ss: np.ndarray, mm: np.ndarray, j: int) -> float:
     """The zero, inside the bracket [ss[j], ss[j + 1]], of the quadratic through three
-    neighbouring samples (numpy.polynomial's fit, exact through three points), or the chord's
-    zero when no such quadratic has one there."""
+    neighbouring samples (numpy.polynomial: the Vandermonde system on centred, scaled
+    abscissae, then polyroots), or the chord's zero when no such quadratic has one there."""
     lin = _chord_zero(ss[j], ss[j + 1], mm[j], mm[j + 1])
     lo, hi = min(ss[j], ss[j + 1]), max(ss[j], ss[j + 1])
     for k in (j - 1, j):
         if k < 0 or k + 2 >= ss.size or not np.all(np.isfinite(mm[k : k + 3])):
             continue
-        roots = Polynomial.fit(ss[k : k + 3], mm[k : k + 3], 2).trim().roots()
-        real = roots[np.isreal(roots)].real
+        c, h = ss[k + 1], ss[k + 2] - ss[k]
+        coef = np.linalg.solve(P.polyvander((ss[k : k + 3] - c) / h, 2), mm[k : k + 3])
+        roots = P.polyroots(P.polytrim(coef))
+        real = roots[np.isreal(roots)].real * h + c
         inside = real[(real >= lo) & (real <= hi)]
         if inside.size:
             return float(inside[np.argmin(np.abs(inside - lin))])

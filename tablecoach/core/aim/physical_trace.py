@@ -11,7 +11,7 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from numpy.polynomial import Polynomial
+from numpy.polynomial import polynomial as P
 
 from ..geometry import box_exit
 from ..physics.params import BallModel
@@ -100,8 +100,11 @@ def trace_of(
 
 
 def _through(xs: np.ndarray, ys: np.ndarray, x: float) -> float:
-    """The value at x of the polynomial through the points (xs, ys) (numpy.polynomial)."""
-    return float(Polynomial.fit(xs, ys, xs.size - 1)(x))
+    """The value at x of the polynomial through the points (xs, ys) (numpy.polynomial: the
+    Vandermonde system on centred, scaled abscissae)."""
+    c, h = float(np.mean(xs)), float(np.ptp(xs))
+    coef = np.linalg.solve(P.polyvander((xs - c) / h, xs.size - 1), ys)
+    return float(P.polyval((x - c) / h, coef))
 
 
 def read_off(
