@@ -32,7 +32,9 @@ from datetime import UTC, datetime
 
 import numpy as np
 
+from tablecoach.core import aim as aims
 from tablecoach.core import drills, shots
+from tablecoach.core.aim import sights
 from tablecoach.core.calibration import fit as cfit
 from tablecoach.core.calibration.model import model_landing, wrap
 from tablecoach.core.calibration.params import with_params
@@ -82,7 +84,7 @@ def run_other(
     lo = np.array([R, R])
     hi = np.array([t.length - R, t.width - R])
     p = np.array(setup.start, dtype=float)
-    d = np.array(shots.direction_of(t, setup.start, setup.family.rails[0], reading), dtype=float)
+    d = np.array(sights.direction_of(t, setup.start, setup.family.rails[0], reading), dtype=float)
     v = speed
     nf = len(setup.family.rails)
     target = np.array(setup.target_ball) if setup.target_ball is not None else None
@@ -193,7 +195,7 @@ def corner_five(setup: shots.Setup, reading: float) -> float | None:
     first, at x = 8 - third."""
     t = BASE
     p = np.array(setup.start)
-    d = np.array(shots.direction_of(t, setup.start, "right", reading))
+    d = np.array(sights.direction_of(t, setup.start, "right", reading))
     if d[1] <= 0:
         return None
     back = p - d * (p[1] / d[1])  # the stroke line run back to y = 0
@@ -268,10 +270,10 @@ def part_other(seed: int) -> None:
             if len(contacts) < 3 or contacts[2].rail != "left":
                 continue
             true_x = contacts[2].at / BASE.diamond
-            tr_c = shots.predict(
+            tr_c = aims.predict(
                 fitted, d.setup, d.aim.reading, shots.Stroke(cal.speed(preset)), "physical"
             )
-            tr_m = shots.predict(BASE, d.setup, d.aim.reading, None, "ideal")
+            tr_m = aims.predict(BASE, d.setup, d.aim.reading, None, "ideal")
             for arr, tr in ((e_c, tr_c), (e_m, tr_m)):
                 ok3 = len(tr.contacts) >= 3 and tr.contacts[2].rail == "left"
                 arr.append(true_x - tr.contacts[2].at / BASE.diamond if ok3 else math.nan)

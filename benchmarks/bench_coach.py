@@ -19,7 +19,8 @@ from typing import Any
 
 import numpy as np
 
-from tablecoach.core import coach, shots
+from tablecoach.core import scheduler, shots
+from tablecoach.core.aim import ideal
 from tablecoach.core.records import Attempt
 from tablecoach.core.table import TableSpec, builtin_table
 
@@ -46,7 +47,7 @@ def sampler(table: TableSpec, drill: Any, rng: np.random.Generator, n: int) -> l
         tb = table.to_metres(rng.uniform(0.2, 7.8), rng.uniform(0.2, 3.8))
         try:
             s = shots.make_setup(table, FAMILY, cue, None, None, tb)
-            shots.solve_ideal(table, s)
+            ideal.solve(table, s)
         except ValueError:
             continue
         out.append(Dealt(s, shots.Stroke(shots.SPEED_PRESETS["medium"])))
@@ -77,7 +78,7 @@ def run(seed: int, n: int, uniform: bool) -> tuple[float, int, float]:
     table = builtin_table("9ft")
     rng = np.random.default_rng(seed)
     player = np.random.default_rng(seed + 1000)
-    sch = coach.Scheduler(table, None, [], rng, sampler=sampler)
+    sch = scheduler.Scheduler(table, None, [], rng, sampler=sampler)
     weak = 0
     t0 = time.perf_counter()
     for _ in range(n):

@@ -5,7 +5,7 @@ Run from the repository root:  python benchmarks/bench_coverage.py [--n 200] [--
 
 For every item of every built-in pack, ``--n`` setups are dealt on the default 9-ft table
 exactly as the practice screen deals them, and each is solved under the physical model at its
-dealt stroke (``shots.solve_aim``). Printed per item: the share that solve, and the reasons
+dealt stroke (``aims.solve``). Printed per item: the share that solve, and the reasons
 for the rest; per family: the median and 95th-percentile solve time (wall clock).
 Goals (issue): at least 95 % at the dealt stroke for every item; a one-rail solve at most
 5 ms median and a three-rail solve at most 8 ms median.
@@ -20,6 +20,7 @@ import time
 
 import numpy as np
 
+from tablecoach.core import aim as aims
 from tablecoach.core import drills, shots
 from tablecoach.core.table import builtin_table
 
@@ -45,7 +46,7 @@ def main() -> None:
                 dealt_n[stroke] += 1
                 t0 = time.perf_counter()
                 try:
-                    shots.solve_aim(table, dealt.setup, dealt.stroke, "physical")
+                    aims.solve(table, dealt.setup, dealt.stroke, "physical")
                     ok[stroke] += 1
                 except shots.ShotError as exc:
                     why[stroke][type(exc).__name__] += 1

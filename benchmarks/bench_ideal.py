@@ -8,7 +8,9 @@ import subprocess
 import sys
 import time
 
+from tablecoach.core import aim as aims
 from tablecoach.core import shots
+from tablecoach.core.aim import ideal
 from tablecoach.core.table import builtin_table
 
 
@@ -37,9 +39,9 @@ def main() -> None:
     }
     print("ideal aim solve, median of 500 (goal < 1 ms):")
     for name, s in cases.items():
-        print(f"  {name:18s} {median_ms(lambda s=s: shots.solve_ideal(t, s), 500):7.3f} ms")
+        print(f"  {name:18s} {median_ms(lambda s=s: ideal.solve(t, s), 500):7.3f} ms")
     s = cases["cross-corner bank"]
-    print(f"  convergence (9 starts) {median_ms(lambda: shots.convergence(t, s), 200):7.3f} ms")
+    print(f"  convergence (9 starts) {median_ms(lambda: aims.convergence(t, s), 200):7.3f} ms")
     cmd = [sys.executable, "-m", "tablecoach", "aim", "--family", "cross-corner-bank"]
     cmd += ["--cue", "3,1", "--object", "4,2"]
     for model in ("ideal", "physical"):

@@ -4,8 +4,9 @@ Run from the repository root:  /work/venv/bin/python benchmarks/bench_physics.py
 
 1. median physical aim solve, one rail and three rails (goals: 5 ms and 8 ms);
 2. a convergence point from nine start positions (goal: 150 ms);
-3. the fixed-step reference integrator beside the event simulation on the same strokes:
-   largest landing difference (goal: within 1 mm) and the speed ratio (goal: 20 times);
+3. the reference integration (scipy.integrate.solve_ivp with terminal events,
+   tests/core/physics/reference_integrator.py) beside the event simulation on the same
+   strokes: largest landing difference (goal: within 1 mm) and the speed ratio (goal: 20 times);
 4. the default 9-ft model's three-rail arrivals against a corner-five style diamond system;
 5. cushion outcomes of the default model (centre-speed ratios, settled rebound angles) and
    the stepped integration against the fine one.
@@ -17,18 +18,23 @@ from __future__ import annotations
 import argparse
 import math
 import statistics
+import sys
 import time
+from pathlib import Path
 
 import numpy as np
 
+from tablecoach.core import aim as aims
 from tablecoach.core import shots
-from tablecoach.core.physics import aim
+from tablecoach.core.aim import physical
 from tablecoach.core.physics.cushion import fine_impact, rail_impact, stepped_impact
 from tablecoach.core.physics.params import model_of
-from tablecoach.core.physics.reference import integrate
 from tablecoach.core.physics.simulate import simulate
 from tablecoach.core.physics.stick import stick_hit
 from tablecoach.core.table import builtin_table
+
+sys.path.insert(0, str(Path(__file__).resolve().parents[1]))  # the checkout, for tests/
+from tests.core.physics.reference_integrator import integrate  # noqa: E402  (after the path)
 
 T = builtin_table("9ft")
 
@@ -75,8 +81,8 @@ def bench_solve(reps: int) -> None:
         walls, cpus, mins, cmins = [], [], [], []
         for s, sp in cases:
             st = shots.Stroke(sp)
-            aim.solve_physical(T, s, st)  # warm
-            w, c, mn, cmn = _timed(lambda s=s, st=st: aim.solve_physical(T, s, st), reps)
+            physical.solve(T, s, st)  # warm
+            w, c, mn, cmn = _timed(lambda s=s, st=st: physical.solve(T, s, st), reps)
             walls.append(w)
             cpus.append(c)
             mins.append(mn)
@@ -92,10 +98,10 @@ def bench_solve(reps: int) -> None:
 
 def bench_convergence(reps: int) -> None:
     s = _setup("one-rail-kick", (2, 1), None, (5, 1.5))
-    starts = shots.neighbourhood(T, s.start, 0.4, 3)
+    starts = aims.neighbourhood(T, s.start, 0.4, 3)
     st = shots.Stroke(shots.SPEED_PRESETS["medium"])
-    conv = aim.convergence_physical(T, s, starts, st)
-    w, c, mn, cmn = _timed(lambda: aim.convergence_physical(T, s, starts, st), reps)
+    conv = physical.convergence(T, s, starts, st)
+    w, c, mn, cmn = _timed(lambda: physical.convergence(T, s, starts, st), reps)
     cx, cy = T.to_diamonds(*conv.point)
     print(
         f"2. convergence from {len(starts)} starts ({len(conv.starts)} kept): "
@@ -105,7 +111,7 @@ def bench_convergence(reps: int) -> None:
     )
 
 
-def bench_reference(n: int, dt: float) -> None:
+def bench_reference(n: int) -> None:
     m = model_of(T)
     rng = np.random.default_rng(1)
     r0 = np.stack((rng.uniform(0.3, 1.0, n), rng.uniform(0.3, 0.9, n)), axis=1)
@@ -124,13 +130,13 @@ def bench_reference(n: int, dt: float) -> None:
     we, _, _, _ = _timed(event, 5)
     res = event()
     w0 = time.perf_counter()
-    rail, along = integrate(m, T, r0, v, w, 3, dt, t_max=8.0)
+    rail, along = integrate(m, T, r0, v, w, 3, t_max=8.0)
     wr = time.perf_counter() - w0
     ok = (rail >= 0) & (res.pocket < 0) & (res.landing_rail >= 0)
     same = ok & (rail == res.landing_rail)
     diff = np.abs(along[same] - res.landing_at[same])
     print(
-        f"3. reference integrator (fixed step {dt * 1e3:g} ms) vs event simulation, {n} strokes, "
+        f"3. reference integration (solve_ivp, terminal events) vs event simulation, {n} strokes, "
         f"landing after two rails:"
     )
     print(
@@ -251,7 +257,7 @@ def main() -> None:
     reps = 5 if args.quick else 15
     bench_solve(reps)
     bench_convergence(reps)
-    bench_reference(8 if args.quick else 16, 1e-4)
+    bench_reference(8 if args.quick else 16)
     bench_system()
     bench_cushion()
 

@@ -8,6 +8,7 @@ import sys
 from dataclasses import replace
 from typing import Any
 
+from ..core import aim as aims
 from .options import add_common, add_shot_options, setup_from_args
 
 
@@ -27,7 +28,7 @@ def register(sub: Any) -> None:
 
 def aim_to_json(table: Any, aim: Any, conv: Any, status: str) -> dict[str, Any]:
     """The JSON shape of an aim (positions in diamonds, contract coordinates)."""
-    from ..core.shots import speed_name, travel_lengths
+    from ..core.strokes import speed_name, travel_lengths
 
     def rp(p: Any) -> dict[str, Any]:
         return {"rail": p.rail, "at": round(table.along_to_diamonds(p.rail, p.at), 4)}
@@ -86,11 +87,11 @@ def run(args: argparse.Namespace) -> int:
 
     table, setup, stroke, status = setup_from_args(args)
     model = args.model
-    aim, note = shots.solve_playable(table, setup, stroke, model)
+    aim, note = aims.solve_playable(table, setup, stroke, model)
     if note:
         aim = replace(aim, notes=(note, *aim.notes))
     try:
-        conv = shots.convergence(table, setup, None, aim.stroke, model)
+        conv = aims.convergence(table, setup, None, aim.stroke, model)
     except shots.ShotError:
         conv = None
     data = aim_to_json(table, aim, conv, status)

@@ -158,9 +158,10 @@ def _validate(args: argparse.Namespace) -> int:
     import numpy as np
 
     from ..core import drills
+    from ..core.drill_packs import load_drill
     from ..core.table import BUILTIN_TABLES
 
-    d = drills.load_drill(args.file)
+    d = load_drill(args.file)
     drills.check_pack(d, BUILTIN_TABLES.values(), np.random.default_rng(0))
     if args.json:
         print(

@@ -8,6 +8,8 @@ from collections.abc import Callable
 from datetime import date, tzinfo
 from typing import TYPE_CHECKING, Any
 
+from ..core import strokes
+
 if TYPE_CHECKING:
     from ..core.shots import Setup, Stroke
     from ..core.store import Store
@@ -191,7 +193,7 @@ def setup_from_args(args: argparse.Namespace) -> tuple[TableSpec, Setup, Stroke,
             raise ShotError(f"--{name} {v:g} tips is more than a tip: it would miscue")
     # a preset name means this player's own "medium" etc. once the table is calibrated
     if calibration is None:
-        speed = shots.parse_speed(args.speed, table)
+        speed = strokes.parse_speed(args.speed, table)
     else:
         from ..core.calibration.use import speed_for
 

@@ -75,7 +75,8 @@ def _text(data: dict[str, Any], speed: float) -> str:
 
 
 def run(args: argparse.Namespace) -> int:
-    from ..core import shots
+    from ..core import aim as aims
+    from ..core import shots, strokes
     from ..core.records import rail_length_diamonds
 
     table, setup, stroke, _status = setup_from_args(args)
@@ -87,9 +88,9 @@ def run(args: argparse.Namespace) -> int:
             f"--reading {args.reading:g} is off the {rail} rail's sights: use 0 to {top:g} diamonds"
         )
     reading_m = table.along_to_metres(rail, args.reading)
-    trace = shots.predict(table, setup, reading_m, stroke, model)
+    trace = aims.predict(table, setup, reading_m, stroke, model)
     data = trace_to_json(table, setup, trace, args.reading, model)
-    data["speed"] = {"m_per_s": stroke.speed, "name": shots.speed_name(stroke.speed)}
+    data["speed"] = {"m_per_s": stroke.speed, "name": strokes.speed_name(stroke.speed)}
     data["english"] = stroke.english
     data["follow"] = stroke.follow
     if args.json:

@@ -28,20 +28,20 @@ def register(sub: Any) -> None:
 
 def speeds_table(table: Any, calibration: Any) -> list[dict[str, Any]]:
     """One row per named stroke: book lengths and m/s on ``table``, and the player's own."""
-    from ..core import shots
+    from ..core import shots, strokes
 
     rows = []
     for name, lengths in shots.STROKE_LENGTHS.items():
         row: dict[str, Any] = {
             "name": name,
             "table_lengths": lengths,
-            "m_per_s": round(shots.stroke_speed(table, lengths), 3),
+            "m_per_s": round(strokes.stroke_speed(table, lengths), 3),
         }
         if calibration is not None:
             mine = calibration.speed(name)
             row["yours"] = {
                 "m_per_s": round(mine, 3),
-                "table_lengths": round(shots.travel_lengths(table, mine), 2),
+                "table_lengths": round(strokes.travel_lengths(table, mine), 2),
             }
         rows.append(row)
     return rows

@@ -49,7 +49,7 @@ def _custom() -> dict[str, Any]:
 
 
 def _figures(spec: Any, kind: str) -> dict[str, Any]:
-    from ..core.table import table_to_mapping
+    from ..core.table_files import table_to_mapping
 
     data = table_to_mapping(spec)
     data["kind"] = kind
@@ -59,7 +59,8 @@ def _figures(spec: Any, kind: str) -> dict[str, Any]:
 
 
 def run(args: argparse.Namespace) -> int:
-    from ..core.table import BUILTIN_TABLES, DEFAULT_TABLE, TableError, load_table_file
+    from ..core.table import BUILTIN_TABLES, DEFAULT_TABLE, TableError
+    from ..core.table_files import load_table_file
 
     action = args.action or "list"
     if action == "list":

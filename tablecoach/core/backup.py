@@ -35,7 +35,7 @@ from .store.errors import StoreError
 from .store.query import FLOOR
 from .store.rows import COL_NAMES, attempt_identity, check_attempt, from_row
 from .store.schema import SCHEMA_VERSION
-from .table import table_from_mapping
+from .table_files import table_from_mapping
 
 BACKUP_VERSION = 1
 STORE_SECTIONS: tuple[str, ...] = ("players", "tables", "sessions", "attempts", "calibrations")
@@ -278,7 +278,7 @@ def _check_calibration(row: dict[str, Any]) -> None:
 
 
 def _check_drill(row: dict[str, Any]) -> None:
-    from .drills import parse_drill
+    from .drill_packs import parse_drill
 
     name = row.get("file")
     if (

@@ -15,6 +15,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from . import shots
+from .aim import ideal
 from .coach import zone_of
 from .records import Attempt, validate_attempt
 from .stats.frame import RAIL_NAMES
@@ -175,7 +176,7 @@ def _one_attempt(
     other = (float(rng.uniform(0.4, 7.6)), float(rng.uniform(0.3, 3.7)))
     try:
         setup = shots.make_setup(spec, family, spec.to_metres(*cue), spec.to_metres(*other))
-        aim = shots.solve_ideal(spec, setup)
+        aim = ideal.solve(spec, setup)
     except ValueError:
         return None
     rail = aim.rail

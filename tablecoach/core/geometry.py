@@ -1,4 +1,4 @@
-"""Plane geometry for the ideal model: reflection, unfolding, line crossings, the convergence fit.
+"""Plane geometry: reflection, unfolding, the ray's exit from the ball box, the convergence fit.
 
 Pure functions over floats and numpy arrays, SI units. Reflection of a ball centre about a rail's
 reflection line (one ball radius inside the cushion nose) is the law of reflection, angle of
@@ -15,12 +15,12 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .table import axis_of
+
 Point = tuple[float, float]
-
-
-def axis_of(rail: str) -> int:
-    """The coordinate a rail fixes: 0 (x) for head/foot, 1 (y) for left/right."""
-    return 0 if rail in ("head", "foot") else 1
+Box = tuple[float, float, float, float]
+"""(xmin, xmax, ymin, ymax): its sides are numbered in table.RAILS order (head xmin, foot xmax,
+left ymin, right ymax)."""
 
 
 def reflect(p: Point, rail: str, line: float) -> Point:
@@ -85,13 +85,42 @@ def fold_point(p: Point, rails: Sequence[str], lines: Sequence[float], upto: int
     return q
 
 
-def line_crossing(start: Point, direction: Point, axis: int, value: float) -> float | None:
-    """Parameter t >= 0 at which start + t*direction meets ``coord[axis] = value``, or None."""
-    d = direction[axis]
-    if abs(d) < 1e-15:
-        return None
-    t = (value - start[axis]) / d
-    return t if t >= -1e-12 else None
+def box_exit(p: Point, d: Point, box: Box) -> tuple[float, int]:
+    """Where the ray p + t d (t >= 0) from inside ``box`` leaves it: the parameter t (inf for a
+    zero direction) and the side crossed (0 xmin, 1 xmax, 2 ymin, 3 ymax; an x side on a tie)."""
+    xmin, xmax, ymin, ymax = box
+    if d[0] > 1e-15:
+        tx = (xmax - p[0]) / d[0]
+    elif d[0] < -1e-15:
+        tx = (xmin - p[0]) / d[0]
+    else:
+        tx = math.inf
+    if d[1] > 1e-15:
+        ty = (ymax - p[1]) / d[1]
+    elif d[1] < -1e-15:
+        ty = (ymin - p[1]) / d[1]
+    else:
+        ty = math.inf
+    if tx <= ty:
+        return max(tx, 0.0), (1 if d[0] > 0 else 0)
+    return max(ty, 0.0), (3 if d[1] > 0 else 2)
+
+
+def box_exits(p: np.ndarray, d: np.ndarray, box: Box) -> tuple[np.ndarray, np.ndarray]:
+    """``box_exit`` for (n, 2) arrays of rays: the parameters t (n,) and the sides (n,)."""
+    xmin, xmax, ymin, ymax = box
+    dx, dy = d[:, 0], d[:, 1]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        tx = np.where(
+            dx > 1e-15, (xmax - p[:, 0]) / dx, np.where(dx < -1e-15, (xmin - p[:, 0]) / dx, np.inf)
+        )
+        ty = np.where(
+            dy > 1e-15, (ymax - p[:, 1]) / dy, np.where(dy < -1e-15, (ymin - p[:, 1]) / dy, np.inf)
+        )
+    use_x = tx <= ty
+    t = np.maximum(np.where(use_x, tx, ty), 0.0)
+    side = np.where(use_x, np.where(dx > 0, 1, 0), np.where(dy > 0, 3, 2))
+    return t, side
 
 
 def point_line_distance(p: Point, a: Point, d: Point) -> float:

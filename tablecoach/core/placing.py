@@ -16,6 +16,7 @@ from fractions import Fraction
 import numpy as np
 
 from . import shots
+from .aim import ideal
 from .shots import Setup
 from .table import TableSpec
 
@@ -135,7 +136,7 @@ def aim_shift(table: TableSpec, setup: Setup, step: float = 0.25) -> float | Non
     """
     rail = setup.family.rails[0]
     try:
-        base = shots.solve_ideal(table, setup, margin=False).reading
+        base = ideal.solve(table, setup, margin=False).reading
     except ValueError:
         return None
     sx, sy = table.to_diamonds(*setup.start)
@@ -148,7 +149,7 @@ def aim_shift(table: TableSpec, setup: Setup, step: float = 0.25) -> float | Non
             else:
                 s = replace(setup, cue=moved)
             s = shots.make_setup(table, s.family, s.cue, s.object, s.pocket, s.target_ball)
-            r = shots.solve_ideal(table, s, margin=False).reading
+            r = ideal.solve(table, s, margin=False).reading
         except ValueError:
             continue
         d = abs(table.along_to_diamonds(rail, r - base))

@@ -8,9 +8,10 @@ from typing import Any
 
 import numpy as np
 
-from . import feedback, shots
-from .coach import Scheduler, zone_of
+from . import feedback, shots, strokes
+from .coach import zone_of
 from .records import Attempt, rail_length_diamonds, utc_now
+from .scheduler import Scheduler
 from .shots import Aim, Setup, Stroke
 from .spin import SPIN_STEPS, spin_for
 from .store import Store
@@ -162,7 +163,7 @@ class Session:
     ) -> None:
         self.store = store
         self.calibration = calibration
-        self.preset = shots.speed_name(Stroke().speed)
+        self.preset = strokes.speed_name(Stroke().speed)
         self.spin_step = 0
         self.table = table
         self.drill = drill
@@ -195,7 +196,7 @@ class Session:
         self.spin_step = 0
         if pick is not None:
             self.stroke = pick.stroke
-            self.preset = shots.speed_name(pick.stroke.speed)
+            self.preset = strokes.speed_name(pick.stroke.speed)
 
     def deal(self) -> Pick:
         """Draw and show the next setup at once."""
@@ -212,7 +213,7 @@ class Session:
         self.pick = Pick(setup, stroke, attempt.shot.family, zone, "shown again after undo")
         self.stroke = stroke
         self.spin_step = 0
-        self.preset = shots.speed_name(stroke.speed)
+        self.preset = strokes.speed_name(stroke.speed)
         return self.pick
 
     def next_speed(self) -> tuple[str, Stroke]:

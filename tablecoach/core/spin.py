@@ -12,14 +12,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from .shots import Aim
-
-_INTO_RAIL: dict[str, tuple[float, float]] = {
-    "right": (0.0, 1.0),
-    "left": (0.0, -1.0),
-    "foot": (1.0, 0.0),
-    "head": (-1.0, 0.0),
-}
-"""Unit vector from the table into each rail (table frame: x to the foot, y to the right)."""
+from .table import OUTWARD_NORMALS, RAILS
 
 SPIN_STEPS: tuple[tuple[str, float], ...] = (
     ("centre", 0.0),
@@ -42,7 +35,7 @@ def running_sign(rail: str, direction: Sequence[float]) -> float:
     the english is running when that motion is against the ball's own slide along the rail (the
     ball rolls along the cushion like a wheel instead of scrubbing against it).
     """
-    nx, ny = _INTO_RAIL[rail]
+    nx, ny = OUTWARD_NORMALS[RAILS.index(rail)]  # from the table into the rail
     vx, vy = float(direction[0]), float(direction[1])
     # right-handed frame with z up: X = table y (to the right), Y = table x (forward)
     n_x, n_y, v_x, v_y = ny, nx, vy, vx

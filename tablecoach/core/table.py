@@ -1,4 +1,4 @@
-"""Table specs (sizes, pockets, sights, cloth, cushion) and the diamonds <-> metres mapping.
+"""Table specs, their rails and pockets, and the diamonds <-> metres mapping.
 
 Coordinates (the project's contract, see docs/coordinates.md): stand at the head rail looking
 toward the foot rail. The origin is the corner where the head rail's cushion nose meets the left
@@ -14,16 +14,30 @@ from D. Alciatore's physics resources and Mathavan, Jackson and Parkin (2010).
 from __future__ import annotations
 
 import math
-import tomllib
 from collections.abc import Mapping
 from dataclasses import dataclass, field, replace
 from functools import lru_cache
-from pathlib import Path
 from types import MappingProxyType
 from typing import Any, Literal
 
 RailName = Literal["head", "foot", "left", "right"]
 RAILS: tuple[RailName, ...] = ("head", "foot", "left", "right")
+"""The rails in code order: a rail's code is its index here (head 0, foot 1, left 2, right 3)."""
+
+OUTWARD_NORMALS: tuple[tuple[float, float], ...] = (
+    (-1.0, 0.0),
+    (1.0, 0.0),
+    (0.0, -1.0),
+    (0.0, 1.0),
+)
+"""Unit vector from the table out through each rail, in RAILS order (x to the foot, y to the
+right)."""
+
+PERIMETER_BASE: tuple[float, ...] = (24.0, 8.0, 0.0, 20.0)
+PERIMETER_SENSE: tuple[float, ...] = (-1.0, 1.0, 1.0, -1.0)
+"""The walk round the table in diamonds, in RAILS order: a point ``at`` diamonds along a rail
+lies ``PERIMETER_BASE + PERIMETER_SENSE * at`` round it (left 0-8, foot 8-12, right 12-20
+running back toward the head, head 20-24)."""
 POCKETS: tuple[str, ...] = (
     "head-left",
     "side-left",
@@ -42,6 +56,17 @@ G = 9.80665
 
 class TableError(ValueError):
     """A table spec, a position or a rail name is not valid; the message says how to fix it."""
+
+
+def axis_of(rail: str) -> int:
+    """The coordinate a rail fixes: 0 (x) for head/foot, 1 (y) for left/right."""
+    return 0 if rail in ("head", "foot") else 1
+
+
+def perimeter_diamonds(rail: RailName, at: float) -> float:
+    """A point ``at`` diamonds along ``rail`` as diamonds round the table (PERIMETER_BASE)."""
+    code = RAILS.index(rail)
+    return PERIMETER_BASE[code] + PERIMETER_SENSE[code] * at
 
 
 @dataclass(frozen=True, slots=True)
@@ -82,28 +107,6 @@ class Cushion:
     friction: float = 0.14
     ball_ball_restitution: float = 0.95
     ball_ball_friction: float = 0.06
-
-
-# Allowed ranges for validation of custom tables (published ranges from the reference sheet).
-_RANGES: dict[str, tuple[float, float]] = {
-    "length": (1.5, 3.0),
-    "width": (0.75, 1.5),
-    "ball_diameter": (0.050, 0.0620),
-    "ball_mass": (0.140, 0.180),
-    "nose_height_ratio": (0.60, 0.66),
-    "sight_setback": (0.05, 0.12),
-    "corner_mouth": (0.100, 0.135),
-    "side_mouth": (0.115, 0.145),
-    "corner_facing_deg": (130.0, 150.0),
-    "side_facing_deg": (95.0, 115.0),
-    "cloth.mu_slide": (0.15, 0.4),
-    "cloth.mu_roll": (0.005, 0.015),
-    "cloth.spin_decel": (5.0, 15.0),
-    "cushion.restitution": (0.5, 1.0),
-    "cushion.friction": (0.0, 0.4),
-    "cushion.ball_ball_restitution": (0.9, 1.0),
-    "cushion.ball_ball_friction": (0.0, 0.1),
-}
 
 
 @dataclass(frozen=True, slots=True)
@@ -233,19 +236,29 @@ class TableSpec:
 
     def cushion_segments(self, rail: RailName) -> tuple[tuple[float, float], ...]:
         """The stretches of a rail's nose (along-rail metres) that are cushion, not pocket."""
-        return _segments(self, _rail(rail))
-
-    def _segments_uncached(self, rail: RailName) -> tuple[tuple[float, float], ...]:
-        j = self.corner_jaw
-        if _rail(rail) in ("head", "foot"):
-            return ((j, self.width - j),)
-        half = self.length / 2.0
-        s = self.side_mouth / 2.0
-        return ((j, half - s), (half + s, self.length - j))
+        return cushion_stretches(self)[_rail(rail)]
 
     def on_cushion(self, rail: RailName, along: float) -> bool:
         """True when a ball touching this rail with its centre at ``along`` meets cushion."""
-        return any(a <= along <= b for a, b in self.cushion_segments(rail))
+        stretches = cushion_stretches(self).get(rail) or cushion_stretches(self)[_rail(rail)]
+        return on_stretches(stretches, along)
+
+    def ball_box(self) -> tuple[float, float, float, float]:
+        """(xmin, xmax, ymin, ymax): the box ball centres move in, one radius inside the noses."""
+        r = self.ball_radius
+        return (r, self.length - r, r, self.width - r)
+
+    def pocket_at(self, rail: RailName, along: float) -> Pocket:
+        """The pocket whose opening holds a crossing of the ball box at ``along`` on ``rail``."""
+        axis = 1 - axis_of(rail)
+        best, best_d = None, math.inf
+        for p in self.pockets().values():
+            if rail in p.rails:
+                d = abs(p.aim[axis] - along)
+                if d < best_d:
+                    best, best_d = p, d
+        assert best is not None
+        return best
 
     # ----- pockets --------------------------------------------------------------------------
     def pockets(self) -> Mapping[str, Pocket]:
@@ -286,9 +299,34 @@ class TableSpec:
         return replace(self, **changes)
 
 
-@lru_cache(maxsize=64)
-def _segments(t: TableSpec, rail: RailName) -> tuple[tuple[float, float], ...]:
-    return t._segments_uncached(rail)
+Stretches = Mapping[RailName, tuple[tuple[float, float], ...]]
+_STRETCHES: dict[int, tuple[TableSpec, Stretches]] = {}
+
+
+def on_stretches(stretches: tuple[tuple[float, float], ...], along: float) -> bool:
+    """True when ``along`` lies on one of a rail's cushion stretches (a plain loop: hot path)."""
+    for a, b in stretches:  # noqa: SIM110
+        if a <= along <= b:
+            return True
+    return False
+
+
+def cushion_stretches(table: TableSpec) -> Stretches:
+    """Each rail's cushion stretches (along-rail metres between the pocket mouths), cached by
+    the table object's identity (hashing a frozen spec costs more than the lookup saves)."""
+    hit = _STRETCHES.get(id(table))
+    if hit is not None and hit[0] is table:
+        return hit[1]
+    j = table.corner_jaw
+    half = table.length / 2.0
+    s = table.side_mouth / 2.0
+    long = ((j, half - s), (half + s, table.length - j))
+    short = ((j, table.width - j),)
+    got: Stretches = MappingProxyType({"head": short, "foot": short, "left": long, "right": long})
+    if len(_STRETCHES) > 32:
+        _STRETCHES.clear()
+    _STRETCHES[id(table)] = (table, got)
+    return got
 
 
 def _rail(rail: str) -> RailName:
@@ -363,163 +401,3 @@ def builtin_table(name: str) -> TableSpec:
             f"unknown table {name!r}: built-in tables are {', '.join(BUILTIN_TABLES)}; "
             "add your own with 'tablecoach tables add FILE'"
         ) from None
-
-
-# ----- custom tables from TOML ----------------------------------------------------------------
-
-_TOP_FIELDS = {
-    "name",
-    "description",
-    "length",
-    "width",
-    "size",
-    "ball_diameter",
-    "ball_mass",
-    "nose_height_ratio",
-    "sight_setback",
-    "corner_mouth",
-    "side_mouth",
-    "corner_facing_deg",
-    "side_facing_deg",
-    "pockets",
-    "cloth",
-    "cushion",
-    "base",
-}
-
-
-def table_from_mapping(data: dict[str, Any], source: str = "<table>") -> TableSpec:
-    """Build and validate a TableSpec from a parsed TOML mapping.
-
-    Fields (SI units): ``name``; ``base`` (a built-in table to start from, default 9ft);
-    ``length`` and ``width`` in metres, or ``size = "9ft"|"8ft"|"7ft"``; optional ``ball_diameter``,
-    ``ball_mass``, ``nose_height_ratio``, ``sight_setback``; ``[pockets]`` with ``corner_mouth``,
-    ``side_mouth``, ``corner_facing_deg``, ``side_facing_deg``; ``[cloth]`` with ``mu_slide``,
-    ``mu_roll``, ``spin_decel``; ``[cushion]`` with ``restitution``, ``friction``,
-    ``ball_ball_restitution``, ``ball_ball_friction``. Every number is checked against the
-    published range; a wrong field gets a TableError naming the file, the field and the range.
-    """
-
-    def fail(fieldname: str, msg: str) -> TableError:
-        return TableError(f"{source}: field {fieldname!r} {msg}")
-
-    unknown = set(data) - _TOP_FIELDS
-    if unknown:
-        raise fail(
-            sorted(unknown)[0], f"is not a table field; allowed: {', '.join(sorted(_TOP_FIELDS))}"
-        )
-    from . import validate
-
-    name = data.get("name")
-    if not isinstance(name, str) or not name.strip() or len(name.strip()) > 40:
-        raise fail("name", "must be a non-empty string of at most 40 characters")
-    if not name.strip().isprintable():
-        raise fail("name", "must be printable characters only (1 to 40)")
-    base_name = data.get("base", data.get("size", DEFAULT_TABLE))
-    if not isinstance(base_name, str) or base_name not in BUILTIN_TABLES:
-        key = "base" if "base" in data else "size"
-        raise fail(key, f"must be one of {', '.join(BUILTIN_TABLES)}")
-    base = BUILTIN_TABLES[base_name]
-
-    def num(key: str, value: Any) -> float:
-        lo, hi = _RANGES[key]
-        if isinstance(value, bool) or not isinstance(value, int | float):
-            raise fail(key, f"must be a number, got {validate.show(value)}")
-        try:
-            v = validate.finite(value, key)
-        except validate.InputError:
-            raise fail(key, f"is {validate.show(value)}, allowed range {lo:g} to {hi:g}") from None
-        if not (lo <= v <= hi):
-            raise fail(key, f"is {v:g}, allowed range {lo:g} to {hi:g}")
-        return v
-
-    top: dict[str, Any] = {}
-    for key in (
-        "length",
-        "width",
-        "ball_diameter",
-        "ball_mass",
-        "nose_height_ratio",
-        "sight_setback",
-    ):
-        if key in data:
-            top[key] = num(key, data[key])
-    pockets = data.get("pockets", {})
-    if not isinstance(pockets, dict):
-        raise fail("pockets", "must be a table of pocket figures")
-    for key, value in pockets.items():
-        if key not in ("corner_mouth", "side_mouth", "corner_facing_deg", "side_facing_deg"):
-            raise fail(f"pockets.{key}", "is not a pocket field")
-        top[key] = num(key, value)
-
-    def section(sec: str, cls: type[Cloth] | type[Cushion], default: Cloth | Cushion) -> Any:
-        raw = data.get(sec, {})
-        if not isinstance(raw, dict):
-            raise fail(sec, "must be a table")
-        vals: dict[str, Any] = {}
-        allowed = cls.__dataclass_fields__
-        for key, value in raw.items():
-            if key not in allowed:
-                raise fail(f"{sec}.{key}", f"is not a {sec} field; allowed: {', '.join(allowed)}")
-            vals[key] = num(f"{sec}.{key}", value)
-        return replace(default, **vals)
-
-    cloth = section("cloth", Cloth, base.cloth)
-    cushion = section("cushion", Cushion, base.cushion)
-    desc = data.get("description", "")
-    try:
-        validate.text(desc, "description")
-    except validate.InputError:
-        raise fail(
-            "description",
-            f"must be text of at most {validate.TEXT_MAX} characters, no control characters",
-        ) from None
-    spec = replace(base, name=name.strip(), cloth=cloth, cushion=cushion, description=desc, **top)
-    ratio = spec.length / spec.width
-    if not (1.9 <= ratio <= 2.1):
-        raise fail(
-            "width", f"gives a length/width ratio of {ratio:.3f}; pool tables are 2:1 (1.9 to 2.1)"
-        )
-    return spec
-
-
-def load_table_file(path: str | Path) -> TableSpec:
-    """Read a custom table from a TOML file; any problem is one TableError line."""
-    p = Path(path)
-    try:
-        text = p.read_text(encoding="utf-8")
-    except OSError as exc:
-        raise TableError(f"{p}: cannot read the table file ({exc.strerror})") from None
-    except UnicodeDecodeError:
-        raise TableError(f"{p}: not a text file (a table file is UTF-8 TOML)") from None
-    from . import validate
-
-    try:
-        data = validate.toml_text(text, str(p))
-    except tomllib.TOMLDecodeError as exc:
-        raise TableError(f"{p}: not valid TOML ({exc})") from None
-    except validate.InputError as exc:
-        raise TableError(str(exc)) from None
-    return table_from_mapping(data, str(p))
-
-
-def table_to_mapping(spec: TableSpec) -> dict[str, Any]:
-    """A TableSpec as a plain mapping (the inverse of table_from_mapping), for storage."""
-    return {
-        "name": spec.name,
-        "description": spec.description,
-        "length": spec.length,
-        "width": spec.width,
-        "ball_diameter": spec.ball_diameter,
-        "ball_mass": spec.ball_mass,
-        "nose_height_ratio": spec.nose_height_ratio,
-        "sight_setback": spec.sight_setback,
-        "pockets": {
-            "corner_mouth": spec.corner_mouth,
-            "side_mouth": spec.side_mouth,
-            "corner_facing_deg": spec.corner_facing_deg,
-            "side_facing_deg": spec.side_facing_deg,
-        },
-        "cloth": {k: getattr(spec.cloth, k) for k in Cloth.__dataclass_fields__},
-        "cushion": {k: getattr(spec.cushion, k) for k in Cushion.__dataclass_fields__},
-    }

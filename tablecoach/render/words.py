@@ -10,10 +10,9 @@ from tablecoach.core.shots import (
     RailPoint,
     Setup,
     Stroke,
-    speed_name,
-    travel_lengths,
 )
 from tablecoach.core.spin import english_kind
+from tablecoach.core.strokes import speed_name, travel_lengths
 from tablecoach.core.table import TableSpec
 
 RAIL_ORDER = ("head", "left", "foot", "right")

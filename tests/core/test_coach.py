@@ -1,4 +1,4 @@
-"""Tests for zones, zone posteriors and the scheduler (tablecoach.core.coach)."""
+"""Tests for zones, zone posteriors (tablecoach.core.coach) and the scheduler (core.scheduler)."""
 
 from __future__ import annotations
 
@@ -9,7 +9,8 @@ import numpy as np
 import pytest
 from scipy import stats
 
-from tablecoach.core import coach, shots
+from tablecoach.core import coach, scheduler, shots, strokes
+from tablecoach.core.aim import ideal
 from tablecoach.core.records import Attempt, ShotRecord
 from tablecoach.core.table import builtin_table
 
@@ -65,17 +66,19 @@ def test_zone_of_uses_the_travelling_ball_and_speed_band() -> None:
     assert z.label == "cbk x 4-6 y 1-2 medium"
     kick = ShotRecord("cue", ("right",), (1.0, 0.5), None, None, (6.0, 2.0), "k")
     # A fast stroke is 3.75 lengths of travel (shots.STROKE_LENGTHS: common practice, no
-    # source); its m/s on the default table comes from the physical model (shots.stroke_speed).
-    fast = shots.stroke_speed(T9, "fast")
+    # source); its m/s on the default table comes from the physical model (strokes.stroke_speed).
+    fast = strokes.stroke_speed(T9, "fast")
     assert coach.zone_of(kick, fast) == coach.Zone("k", 0, 0, "fast")
     # A band's edge is the geometric mean of its neighbours' speeds (shots.SPEED_BANDS): a
     # speed just above medium's and fast's geometric mean is fast, just below it medium.
-    edge = math.sqrt(shots.stroke_speed(T9, "medium") * fast)
+    edge = math.sqrt(strokes.stroke_speed(T9, "medium") * fast)
     assert coach.zone_of(kick, 1.001 * edge).speed == "fast"
     assert coach.zone_of(kick, 0.999 * edge).speed == "medium"
     # 2.55 m/s, a fast stroke in Alciatore's published bands (1.9-3.2 m/s), travels about
     # 3.1 lengths here (physics/travel.py): nearer the 3 of a medium than the 3.75 of a fast.
-    assert abs(shots.travel_lengths(T9, 2.55) - 3.0) < abs(shots.travel_lengths(T9, 2.55) - 3.75)
+    assert abs(strokes.travel_lengths(T9, 2.55) - 3.0) < abs(
+        strokes.travel_lengths(T9, 2.55) - 3.75
+    )
     assert coach.zone_of(kick, 2.55).speed == "medium"
 
 
@@ -154,13 +157,13 @@ def _sampler(table, drill, rng, n):  # type: ignore[no-untyped-def]
 
 def _has_clean_path(d: _Dealt) -> bool:
     try:
-        shots.solve_ideal(T9, d.setup)
+        ideal.solve(T9, d.setup)
     except ValueError:
         return False
     return True
 
 
-def _play(sch: coach.Scheduler, n: int, seed: int) -> list[coach.Choice]:
+def _play(sch: scheduler.Scheduler, n: int, seed: int) -> list[scheduler.Choice]:
     player = np.random.default_rng(seed)
     out = []
     for _ in range(n):
@@ -195,7 +198,7 @@ def test_sampler_really_deals_setups_without_a_clean_path() -> None:
 
 
 def test_scheduler_never_proposes_a_setup_without_a_clean_path() -> None:
-    sch = coach.Scheduler(T9, None, [], np.random.default_rng(1), sampler=_sampler)
+    sch = scheduler.Scheduler(T9, None, [], np.random.default_rng(1), sampler=_sampler)
     for ch in _play(sch, 40, 2):
         assert _has_clean_path(ch.dealt)
         assert sch.zone_of_dealt(ch.dealt) == ch.zone
@@ -205,16 +208,16 @@ def test_scheduler_never_proposes_a_setup_without_a_clean_path() -> None:
 def test_scheduler_is_deterministic_for_a_seed() -> None:
     runs = []
     for _ in range(2):
-        sch = coach.Scheduler(T9, None, [], np.random.default_rng(5), sampler=_sampler)
+        sch = scheduler.Scheduler(T9, None, [], np.random.default_rng(5), sampler=_sampler)
         runs.append([(c.zone, c.why, c.dealt.setup) for c in _play(sch, 25, 9)])
     assert runs[0] == runs[1]
-    sch = coach.Scheduler(T9, None, [], np.random.default_rng(6), sampler=_sampler)
+    sch = scheduler.Scheduler(T9, None, [], np.random.default_rng(6), sampler=_sampler)
     other = [(c.zone, c.why, c.dealt.setup) for c in _play(sch, 25, 9)]
     assert other != runs[0]
 
 
 def test_scheduler_interleaves_and_explains() -> None:
-    sch = coach.Scheduler(T9, None, [], np.random.default_rng(3), sampler=_sampler)
+    sch = scheduler.Scheduler(T9, None, [], np.random.default_rng(3), sampler=_sampler)
     picks = _play(sch, 30, 4)
     # never the same zone twice in a row (Shea and Morgan 1979, interleaved practice)
     assert all(a.zone != b.zone for a, b in zip(picks, picks[1:], strict=False))
@@ -226,7 +229,7 @@ def test_scheduler_interleaves_and_explains() -> None:
 def test_scheduler_finds_the_weak_column() -> None:
     # Zones of column 1 (x 2-4) make 30 %, the rest 80 %; after 80 attempts the coach's
     # three weakest zones must be mostly theirs, and they get more than their uniform share.
-    sch = coach.Scheduler(T9, None, [], np.random.default_rng(11), sampler=_sampler)
+    sch = scheduler.Scheduler(T9, None, [], np.random.default_rng(11), sampler=_sampler)
     picks = _play(sch, 80, 12)
     weakest = sch.weakest(3)
     assert len(weakest) == 3 and weakest[0][1].mean <= weakest[2][1].mean
@@ -236,7 +239,7 @@ def test_scheduler_finds_the_weak_column() -> None:
 
 
 def test_pin_a_zone_then_a_family() -> None:
-    sch = coach.Scheduler(T9, None, [], np.random.default_rng(8), sampler=_sampler)
+    sch = scheduler.Scheduler(T9, None, [], np.random.default_rng(8), sampler=_sampler)
     first = sch.next()
     sch.pin(zone=first.zone, count=3)
     assert sch.pinned is not None and "3 more" in sch.pinned
@@ -255,14 +258,14 @@ def test_pin_a_zone_then_a_family() -> None:
 
 def test_scheduler_rejects_a_bad_band() -> None:
     with pytest.raises(ValueError, match="target band"):
-        coach.Scheduler(T9, None, [], np.random.default_rng(0), (0.9, 0.8), sampler=_sampler)
+        scheduler.Scheduler(T9, None, [], np.random.default_rng(0), (0.9, 0.8), sampler=_sampler)
 
 
 def test_scheduler_with_a_builtin_drill() -> None:
     from tablecoach.core import drills
 
     pack = drills.builtin_drills()["mixed"]
-    sch = coach.Scheduler(T9, pack, [], np.random.default_rng(2))
+    sch = scheduler.Scheduler(T9, pack, [], np.random.default_rng(2))
     fams = {sch.next().zone.family for _ in range(12)}
     assert len(fams) >= 2
     assert fams <= {item.family.name for item in pack.items}
@@ -275,7 +278,7 @@ def test_zone_stats_default_bias_is_long_or_short_on_the_ideal_model() -> None:
     from dataclasses import replace
 
     s = shots.make_setup(T9, KICK, T9.to_metres(1, 1), None, None, T9.to_metres(3, 1))
-    aim = shots.solve_ideal(T9, s)
+    aim = ideal.solve(T9, s)
     at = T9.along_to_diamonds(aim.landing.rail, aim.landing.at)
     reading = T9.along_to_diamonds("right", aim.reading)
     base = _attempt("one-rail-kick", (1.0, 1.0), True)

@@ -10,9 +10,11 @@ import numpy as np
 import pytest
 from scipy.spatial.distance import pdist
 
+from tablecoach.core import aim as aims
 from tablecoach.core import drills
-from tablecoach.core.drills import DrillError, deal, load_drill, sample_setups
-from tablecoach.core.shots import PRESETS, solve_aim
+from tablecoach.core.drill_packs import DrillError, load_drill
+from tablecoach.core.drills import deal, sample_setups
+from tablecoach.core.shots import PRESETS
 from tablecoach.core.table import BUILTIN_TABLES
 
 REPO = Path(__file__).resolve().parents[2]
@@ -72,7 +74,7 @@ def test_every_pack_deals_clean_setups(name: str, table: str) -> None:
                 q.x0 - 1e-9 <= xd <= q.x1 + 1e-9 and q.y0 - 1e-9 <= yd <= q.y1 + 1e-9 for q in rects
             )
         # a clean ideal path exists and obeys the mirror law at each cushion
-        aim = solve_aim(t, s, d.stroke, "ideal")
+        aim = aims.solve(t, s, d.stroke, "ideal")
         _reflects(aim.path, s.family.rails)
         assert d.stroke.speed in item.speeds
         assert d.label.split(", ")[1] in item.names
@@ -114,7 +116,7 @@ def test_sample_setups_gives_clean_candidates() -> None:
     got = sample_setups(t, pack, np.random.default_rng(3), 12)
     assert len(got) == 12
     for d in got:
-        assert solve_aim(t, d.setup, d.stroke, "ideal").reading == pytest.approx(d.aim.reading)
+        assert aims.solve(t, d.setup, d.stroke, "ideal").reading == pytest.approx(d.aim.reading)
 
 
 # ----- broken packs ---------------------------------------------------------------------------

@@ -10,6 +10,7 @@ from types import SimpleNamespace
 import pytest
 
 from tablecoach.core import feedback, shots
+from tablecoach.core.aim import ideal
 from tablecoach.core.calibration.value import Estimate
 from tablecoach.core.records import Attempt, utc_now
 from tablecoach.core.store import Store
@@ -25,7 +26,7 @@ def kick_attempt(long_by: float, result: str = "miss", zone: str = "z") -> Attem
     setup = shots.make_setup(
         T9, shots.PRESETS["one-rail-kick"], T9.to_metres(1, 1), None, None, T9.to_metres(3, 1)
     )
-    aim = shots.solve_ideal(T9, setup)
+    aim = ideal.solve(T9, setup)
     assert aim.landing.rail == "left"
     at = T9.along_to_diamonds("left", aim.landing.at) + long_by
     return Attempt(

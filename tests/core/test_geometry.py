@@ -10,8 +10,10 @@ import shapely
 import sympy
 from shapely.geometry import LineString
 
+from tablecoach.core import aim as aims
 from tablecoach.core import shots
-from tablecoach.core.geometry import nearest_point_to_lines, unfold
+from tablecoach.core.aim import ideal
+from tablecoach.core.geometry import box_exit, box_exits, nearest_point_to_lines, unfold
 from tablecoach.core.table import builtin_table
 
 T = builtin_table("9ft")
@@ -28,7 +30,7 @@ def _random_setups(family, n, seed):
                 s = shots.make_setup(T, family, cue, target_ball=other)
             else:
                 s = shots.make_setup(T, family, cue, object_ball=other)
-            aim = shots.solve_ideal(T, s)
+            aim = ideal.solve(T, s)
         except shots.ShotError:
             continue
         out.append((s, aim))
@@ -120,7 +122,7 @@ def test_ideal_convergence_is_the_unfolded_image(name):
     # images), so the least-squares point is the image itself and the spread is zero.
     fam = shots.preset(name)
     s, aim = _random_setups(fam, 1, 5)[0]
-    conv = shots.convergence(T, s)
+    conv = aims.convergence(T, s)
     lines = [T.reflection_line(r) for r in fam.rails]
     img = unfold(s.target_point(T), fam.rails, lines).image
     assert conv.point[0] == pytest.approx(img[0], abs=1e-9)
@@ -163,7 +165,7 @@ def test_quarter_diamond_parallel_shift_misses_by_about_half_a_diamond():
     m = T.to_metres
     ref = shots.make_setup(T, fam, m(3, 1), object_ball=m(4, 2))
     new = shots.make_setup(T, fam, m(3.25, 1), object_ball=m(4.25, 2))
-    cmp = shots.compare_shift(T, ref, new)
+    cmp = aims.compare_shift(T, ref, new)
     assert 0.35 <= abs(cmp.parallel_miss) <= 0.65
     # rotating the line about the convergence point lands where the solved aim does
     assert abs(cmp.rotated_miss) < 1e-6
@@ -178,3 +180,26 @@ def test_core_imports_neither_rich_nor_textual():
     )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == ""
+
+
+def test_box_exit_matches_shapely_for_rays_from_inside_the_ball_box():
+    # Reference: shapely (general-purpose geometry library): where a long segment from a point
+    # inside the box crosses the box's boundary. Side codes follow table.RAILS (head xmin, foot
+    # xmax, left ymin, right ymax); the array form gives the same answers row by row.
+    box = T.ball_box()
+    xmin, xmax, ymin, ymax = box
+    rng = np.random.default_rng(13)
+    p = np.column_stack((rng.uniform(xmin, xmax, 200), rng.uniform(ymin, ymax, 200)))
+    ang = rng.uniform(0.0, 2.0 * math.pi, 200)
+    d = np.column_stack((np.cos(ang), np.sin(ang)))
+    ts, sides = box_exits(p, d, box)
+    outline = shapely.box(xmin, ymin, xmax, ymax).exterior
+    for i in range(200):
+        t, side = box_exit((p[i, 0], p[i, 1]), (d[i, 0], d[i, 1]), box)
+        far = LineString([p[i], p[i] + 10.0 * d[i]])
+        hit = outline.intersection(far)
+        assert t == pytest.approx(math.dist(p[i], (hit.x, hit.y)), abs=1e-9)
+        q = p[i] + t * d[i]
+        walls = (q[0] - xmin, xmax - q[0], q[1] - ymin, ymax - q[1])
+        assert abs(walls[side]) < 1e-9
+        assert ts[i] == pytest.approx(t, abs=1e-12) and sides[i] == side

@@ -10,15 +10,14 @@ import numpy as np
 import pytest
 from scipy.stats import binomtest
 
+from tablecoach.core.aim import ideal
+from tablecoach.core.aim.sights import direction_of
 from tablecoach.core.records import Attempt, ShotRecord
 from tablecoach.core.shots import (
     SPEED_BANDS,
     SPEED_PRESETS,
-    direction_of,
     make_setup,
     preset,
-    solve_ideal,
-    trace_ideal,
 )
 from tablecoach.core.stats.bias import landing_bias, landing_offsets, speed_bands
 from tablecoach.core.stats.frame import RAIL_NAMES, ordered
@@ -253,7 +252,7 @@ def test_session_list_counts_and_orders():
 
 
 def test_ideal_landing_agrees_with_the_ideal_trace():
-    # Reference: shots.trace_ideal, the project's scalar ideal trace (equal-angle reflection).
+    # Reference: ideal.trace, the project's scalar ideal trace (equal-angle reflection).
     spec = builtin_table("9ft")
     rng = np.random.default_rng(5)
     for name in ("one-rail-kick", "two-rail-kick", "three-rail-kick"):
@@ -264,7 +263,7 @@ def test_ideal_landing_agrees_with_the_ideal_trace():
             tb = (float(rng.uniform(0.5, 7.5)), float(rng.uniform(0.5, 3.5)))
             try:
                 setup = make_setup(spec, fam, spec.to_metres(*cue), spec.to_metres(*tb))
-                aim = solve_ideal(spec, setup)
+                aim = ideal.solve(spec, setup)
             except ValueError:
                 continue
             reading = spec.along_to_diamonds(fam.rails[0], aim.reading)
@@ -273,7 +272,7 @@ def test_ideal_landing_agrees_with_the_ideal_trace():
             d = direction_of(
                 spec, setup.start, fam.rails[0], spec.along_to_metres(fam.rails[0], reading)
             )
-            tr = trace_ideal(spec, setup, d)
+            tr = ideal.trace(spec, setup, d)
             # keep traces that meet only cushion (the vectorised walk ignores pocket openings)
             if tr.landing is None or len(tr.contacts) < len(fam.rails):
                 continue
@@ -379,7 +378,7 @@ def test_local_days_match_local_date(zone):
 
 
 def test_speed_bands_match_speed_name():
-    from tablecoach.core.shots import speed_name
+    from tablecoach.core.strokes import speed_name
 
     edges = [v for band in SPEED_BANDS.values() for v in band]
     # inside every band, on and just below every edge, and outside them all (below 0.1 m/s,

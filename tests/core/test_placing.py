@@ -10,7 +10,8 @@ import numpy as np
 import pytest
 
 from tablecoach.core import placing
-from tablecoach.core.drills import DrillError, builtin_drills, deal, load_drill
+from tablecoach.core.drill_packs import DrillError, load_drill
+from tablecoach.core.drills import builtin_drills, deal
 from tablecoach.core.table import BUILTIN_TABLES
 
 T9 = BUILTIN_TABLES["9ft"]

@@ -7,6 +7,7 @@ from dataclasses import replace
 import numpy as np
 import pytest
 
+from tablecoach.core import aim as aims
 from tablecoach.core import drills, shots
 from tablecoach.core.practice import Session, stats_of
 from tablecoach.core.store import Store
@@ -28,14 +29,14 @@ def session(tmp_path):
 def test_repeat_deals_the_setup_n_times_then_moves_on(session):
     session.repeat = 3
     pick = session.deal()
-    aim = shots.solve_aim(T9, pick.setup, pick.stroke, "ideal")
+    aim = aims.solve(T9, pick.setup, pick.stroke, "ideal")
     session.log_hit(aim)
     assert session.repeats_left() == 2
     again = session.again()
     assert again is not None and again.setup.family == pick.setup.family
     assert shots.record_of(T9, again.setup) == shots.record_of(T9, pick.setup)
     assert session.stroke == pick.stroke
-    session.log_miss(shots.solve_aim(T9, again.setup, again.stroke, "ideal"), kind="short")
+    session.log_miss(aims.solve(T9, again.setup, again.stroke, "ideal"), kind="short")
     assert session.repeats_left() == 1
     session.log_hit(aim)
     assert session.repeats_left() == 0
@@ -55,7 +56,7 @@ def test_streaks_count_runs_of_hits():
 
 def test_a_reading_beyond_the_sights_is_logged_at_the_rail_end(session):
     pick = session.deal()
-    aim = shots.solve_aim(T9, pick.setup, pick.stroke, "ideal")
+    aim = aims.solve(T9, pick.setup, pick.stroke, "ideal")
     top = 8.0 if aim.rail in ("left", "right") else 4.0
     beyond = replace(aim, reading=(top + 0.2) * T9.rail_unit(aim.rail))
     a = session.log_hit(beyond)
@@ -83,5 +84,5 @@ def test_a_packs_repeat_setting_reaches_the_session(tmp_path):
         s = Session(store, T9, pack, "tester", np.random.default_rng(3), "ideal")
         assert s.repeat == 3
         pick = s.deal()
-        s.log_hit(shots.solve_aim(T9, pick.setup, pick.stroke, "ideal"))
+        s.log_hit(aims.solve(T9, pick.setup, pick.stroke, "ideal"))
         assert s.repeats_left() == 2

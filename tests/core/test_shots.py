@@ -2,7 +2,9 @@
 
 import pytest
 
-from tablecoach.core import shots
+from tablecoach.core import aim as aims
+from tablecoach.core import shots, strokes
+from tablecoach.core.aim import ideal
 from tablecoach.core.table import TableError, builtin_table
 
 T = builtin_table("9ft")
@@ -13,7 +15,7 @@ def test_reading_is_over_the_sights_not_at_the_contact():
     # PHYSICS.md section 1 (WPA set-back 93.7 mm): the reading is where the stick line crosses
     # the line of sights, beyond the cushion contact; the two differ for an angled line.
     s = shots.make_setup(T, shots.preset("one-rail-kick"), m(1, 1), target_ball=m(5, 1))
-    aim = shots.solve_ideal(T, s)
+    aim = ideal.solve(T, s)
     d = aim.direction
     # independent: extend the first segment by similar triangles from contact to the sights
     extra = (T.sight_line("right") - T.reflection_line("right")) * d[0] / d[1]
@@ -24,7 +26,7 @@ def test_reading_is_over_the_sights_not_at_the_contact():
 def test_symmetric_one_rail_kick_hits_the_midpoint():
     # Mirror symmetry: equal distances from the rail -> contact halfway (common practice).
     s = shots.make_setup(T, shots.preset("one-rail-kick"), m(1, 2), target_ball=m(5, 2))
-    aim = shots.solve_ideal(T, s)
+    aim = ideal.solve(T, s)
     assert T.along_to_diamonds("right", aim.contacts[0].at) == pytest.approx(3.0, abs=1e-9)
 
 
@@ -32,14 +34,14 @@ def test_path_into_a_pocket_mouth_is_refused():
     # A one-rail kick whose contact would be at the side pocket is not a clean path.
     s = shots.make_setup(T, shots.preset("one-rail-kick"), m(3, 2), target_ball=m(5, 2))
     with pytest.raises(shots.ShotError, match="side-right pocket mouth"):
-        shots.solve_ideal(T, s)
+        ideal.solve(T, s)
 
 
 def test_other_ball_in_the_way_is_refused():
     fam = shots.make_family("cue", ["right"])
     s = shots.make_setup(T, fam, m(1, 2), object_ball=m(2.5, 3.4), target_ball=m(5, 2))
     with pytest.raises(shots.ShotError, match="another ball"):
-        shots.solve_ideal(T, s)
+        ideal.solve(T, s)
 
 
 def test_overlapping_and_off_table_balls_are_refused():
@@ -52,7 +54,7 @@ def test_overlapping_and_off_table_balls_are_refused():
 
 def test_margin_is_a_window_that_scores_inside_and_not_outside():
     s = shots.make_setup(T, shots.preset("cross-corner-bank"), m(3, 1), object_ball=m(4, 2))
-    aim = shots.solve_ideal(T, s)
+    aim = ideal.solve(T, s)
     assert aim.margin_minus > 0 and aim.margin_plus > 0
     for r, expect in (
         (aim.reading - 0.9 * aim.margin_minus, True),
@@ -60,7 +62,7 @@ def test_margin_is_a_window_that_scores_inside_and_not_outside():
         (aim.reading - aim.margin_minus - 0.002, False),
         (aim.reading + aim.margin_plus + 0.002, False),
     ):
-        assert shots.predict(T, s, r).scores is expect
+        assert aims.predict(T, s, r).scores is expect
 
 
 def test_corner_pocket_window_is_narrower_than_the_mouth_less_a_ball():
@@ -68,7 +70,7 @@ def test_corner_pocket_window_is_narrower_than_the_mouth_less_a_ball():
     # for a straight-in shot the window at the pocket is exactly that (common practice).
     fam = shots.make_family("object", ["head"], "foot-right")
     s = shots.make_setup(T, fam, m(7.2, 0.2), object_ball=m(4, 2))
-    aim = shots.solve_ideal(T, s)
+    aim = ideal.solve(T, s)
     width = aim.margin_minus + aim.margin_plus
     assert 0 < width < (T.corner_mouth - T.ball_diameter) * 3
 
@@ -80,10 +82,10 @@ def test_predict_with_the_solved_reading_scores_for_every_family():
         else:
             s = shots.make_setup(T, fam, m(2, 1), object_ball=m(3, 2))
         try:
-            aim = shots.solve_ideal(T, s)
+            aim = ideal.solve(T, s)
         except shots.ShotError:
             continue
-        tr = shots.predict(T, s, aim.reading)
+        tr = aims.predict(T, s, aim.reading)
         assert tr.scores, name
         assert tr.rails_hit == fam.rails
 
@@ -102,8 +104,8 @@ def test_speed_presets_sit_in_their_own_bands():
     for name, v in shots.SPEED_PRESETS.items():
         lo, hi = shots.SPEED_BANDS[name]
         assert lo <= v <= hi
-        assert shots.speed_name(v) == name
-    assert shots.parse_speed("fast") == shots.SPEED_PRESETS["fast"]
-    assert shots.parse_speed("1.2") == 1.2
+        assert strokes.speed_name(v) == name
+    assert strokes.parse_speed("fast") == shots.SPEED_PRESETS["fast"]
+    assert strokes.parse_speed("1.2") == 1.2
     with pytest.raises(shots.ShotError):
-        shots.parse_speed("warp")
+        strokes.parse_speed("warp")

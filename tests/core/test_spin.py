@@ -8,6 +8,7 @@ import numpy as np
 import pytest
 
 from tablecoach.core import shots, spin
+from tablecoach.core.aim import ideal
 from tablecoach.core.table import BUILTIN_TABLES
 
 T9 = BUILTIN_TABLES["9ft"]
@@ -64,7 +65,7 @@ def test_spin_steps_on_a_kick() -> None:
         None,
         T9.to_metres(3.5, 1.0),
     )
-    aim = shots.solve_ideal(T9, setup)
+    aim = ideal.solve(T9, setup)
     side = spin.running_sign(aim.rail, aim.direction)
     assert side == -1.0  # toward the foot into the right rail: left english runs
     got = [spin.spin_for(k, aim) for k in range(len(spin.SPIN_STEPS))]

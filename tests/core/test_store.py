@@ -24,7 +24,8 @@ from tablecoach.core.store.errors import StoreError
 from tablecoach.core.store.query import EVERYTHING, AttemptQuery
 from tablecoach.core.store.rows import attempt_identity
 from tablecoach.core.store.schema import SCHEMA_VERSION
-from tablecoach.core.table import BUILTIN_TABLES, TableError, table_from_mapping
+from tablecoach.core.table import BUILTIN_TABLES, TableError
+from tablecoach.core.table_files import table_from_mapping
 
 from .test_stats_read import assert_frames_equal
 

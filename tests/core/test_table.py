@@ -9,9 +9,8 @@ from tablecoach.core.table import (
     INCH,
     TableError,
     builtin_table,
-    load_table_file,
-    table_from_mapping,
 )
+from tablecoach.core.table_files import load_table_file, table_from_mapping
 
 
 def test_nine_foot_playing_surface_is_100_by_50_inches():

@@ -2,7 +2,9 @@
 
 import pytest
 
+from tablecoach.core import aim as aims
 from tablecoach.core import shots
+from tablecoach.core.aim import ideal
 from tablecoach.core.table import builtin_table
 from tablecoach.render.table_view import ASCII, UNICODE, TableView, picture_for_aim
 
@@ -16,8 +18,8 @@ def _view(name="cross-corner-bank", ascii_only=False, **kw):
         s = shots.make_setup(T, fam, m(1, 1), target_ball=m(3, 1))
     else:
         s = shots.make_setup(T, fam, m(3, 1), object_ball=m(4, 2))
-    aim = shots.solve_ideal(T, s)
-    conv = shots.convergence(T, s)
+    aim = ideal.solve(T, s)
+    conv = aims.convergence(T, s)
     return TableView(picture_for_aim(T, aim, conv), ascii_only=ascii_only, **kw)
 
 

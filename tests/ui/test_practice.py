@@ -763,7 +763,7 @@ async def test_store_error_while_logging_is_one_line_and_keeps_the_setup(make_ap
 
 
 async def test_physical_model_by_default(make_app):
-    """With the physical aim installed it is the default; a setup it cannot solve shows the
+    """The physical aim is the default; a setup it cannot solve shows the
     ideal aim with a note, and the attempt records the model that gave the reading."""
     app = make_app(model=None)
     async with app.run_test(size=SIZE) as pilot:

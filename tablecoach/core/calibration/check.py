@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from typing import Any
 
+from .. import aim as aims
 from .. import shots
 from ..table import TableSpec
 from .params import CalibrationError
@@ -31,7 +32,7 @@ sees cushion, cloth and speed at once."""
 def table_check_setups(table: TableSpec, model: str = "ideal") -> list[Any]:
     """The 5 to 10 reference shots that seed a new table's calibration, as drills.Dealt.
 
-    Each has a clean path on ``table`` under ``model`` (shots.solve_aim); shots that do not
+    Each has a clean path on ``table`` under ``model`` (aims.solve); shots that do not
     fit this table are left out, and a CalibrationError says so if fewer than 5 remain.
     """
     from ..drills import Dealt  # noqa: PLC0415  (drills imports the shot engine; keep it lazy)
@@ -46,7 +47,7 @@ def table_check_setups(table: TableSpec, model: str = "ideal") -> list[Any]:
         stroke = shots.Stroke(shots.SPEED_PRESETS[preset])
         try:
             setup = shots.make_setup(table, family, met(cue), met(obj), None, met(tb))  # type: ignore[arg-type]
-            aim = shots.solve_aim(table, setup, stroke, model)
+            aim = aims.solve(table, setup, stroke, model)
         except ValueError:
             continue
         label = f"table check: {family.title.lower()}, {preset}"

@@ -9,7 +9,10 @@ from typing import Any
 
 import numpy as np
 
+from .. import aim as aims
 from .. import shots
+from ..aim import ideal as ideal_aim
+from ..aim import sights
 from ..shots import RailPoint, Trace
 from ..table import RAILS, TableSpec
 from .evidence import Evidence, gather
@@ -53,11 +56,11 @@ class Outcomes:
 class Runner:
     """Runs every logged shot of the evidence under one table's cloth and cushion and each
     row's own speed: one vectorised batch of the physical model per family
-    (physics.aim.run_shots), with the other balls off the table (a logged landing is the
+    (aim.physical_shots.run_shots), with the other balls off the table (a logged landing is the
     travelling ball's, as a player reads it practising)."""
 
     def __init__(self, table: TableSpec, ev: Evidence) -> None:
-        from ..physics import aim as pa  # noqa: PLC0415  (heavy; only a fit needs it)
+        from ..aim import physical_shots as pa  # heavy: only a fit needs it
 
         self._pa = pa
         self.table = table
@@ -169,7 +172,7 @@ def ideal_sign(table: TableSpec, setup: shots.Setup, reading: float) -> float:
     """Which way round the table "long" is for this reading, from the ideal trace (the way the
     ball runs along its landing rail, which speed and spin do not turn round); 1 when unknown."""
     rail = setup.family.rails[0]
-    ideal = shots.trace_ideal(table, setup, shots.direction_of(table, setup.start, rail, reading))
+    ideal = ideal_aim.trace(table, setup, sights.direction_of(table, setup.start, rail, reading))
     return travel_sign(table, ideal, setup.start, len(setup.family.rails)) or 1.0
 
 
@@ -184,8 +187,8 @@ def model_landing(
     the other balls off the table (the landing a player logs), or, for a ball at rest after the
     family's rails, its last line of travel carried on to a wall. None when there is none."""
     if model != "physical":
-        return shots.predict(table, setup, reading, stroke, model).landing
-    from ..physics import aim as pa  # noqa: PLC0415
+        return aims.predict(table, setup, reading, stroke, model).landing
+    from ..aim import physical_shots as pa  # heavy: loaded lazily
 
     b = pa.shot_batch(table, [setup], balls=False)
     one = np.ones(1)
@@ -247,7 +250,7 @@ def landing_errors(
         for i in rows:
             st = shots.Stroke(float(sp[i]), float(ev.english[i]), float(ev.follow[i]))
             try:
-                land = shots.predict(table, ev.setups[i], float(ev.reading[i]), st, model).landing
+                land = aims.predict(table, ev.setups[i], float(ev.reading[i]), st, model).landing
             except ValueError:
                 land = None
             if land is not None:

@@ -5,7 +5,7 @@ from __future__ import annotations
 import math
 from dataclasses import replace
 
-from .. import shots
+from .. import shots, strokes
 from ..table import TableSpec
 
 
@@ -107,6 +107,6 @@ def with_params(table: TableSpec, values: dict[str, float]) -> TableSpec:
 
 
 def preset_of(speed: float) -> str:
-    """The named stroke a logged speed belongs to (shots.speed_name: the band between the
+    """The named stroke a logged speed belongs to (strokes.speed_name: the band between the
     neighbouring presets; below the slowest counts as slow, above the hardest as power)."""
-    return shots.speed_name(speed)
+    return strokes.speed_name(speed)

@@ -5,7 +5,7 @@ from __future__ import annotations
 
 import math
 
-from .. import shots
+from .. import shots, strokes
 from ..table import TableSpec
 from .params import PARAM_WORDS
 from .value import KEPT_BOUND, Calibration, Estimate
@@ -165,7 +165,7 @@ def _lengths(table: TableSpec | None, speed: float) -> float | None:
     if table is None:
         return None
     try:
-        lengths = shots.travel_lengths(table, speed)
+        lengths = strokes.travel_lengths(table, speed)
     except ValueError:
         return None
     return lengths if math.isfinite(lengths) else None

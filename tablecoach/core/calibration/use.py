@@ -6,7 +6,7 @@ from collections.abc import Callable
 from dataclasses import dataclass
 from typing import Any
 
-from .. import shots
+from .. import shots, strokes
 from ..store.query import AttemptQuery
 from ..table import TableSpec
 from .params import STALE, CalibrationError
@@ -32,7 +32,7 @@ def speed_for(calibration: Calibration | None, text: str | float) -> float:
     becomes the player's calibrated m/s; lengths and m/s are taken as given."""
     if isinstance(text, str) and text.strip().lower() in shots.SPEED_PRESETS:
         return stroke_for(calibration, text.strip().lower()).speed
-    return shots.parse_speed(text)
+    return strokes.parse_speed(text)
 
 
 def stored_calibration(store: Any, table_name: str, player: str | None) -> Calibration | None:

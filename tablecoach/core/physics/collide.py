@@ -5,7 +5,7 @@ line of centres n. Normal impulse Jn = m (1 + e) / 2 (v . n) (equal masses, Newt
 the ball-ball restitution e, Alciatore's typical 0.95). Friction at the contact opposes the
 relative slip u_t (the tangential part of v + w x (R n), the object's contact point being at
 rest); it is Coulomb friction with the speed-dependent coefficient fitted by Alciatore to
-Marlow's data (TP A.14 / A.24; PHYSICS.md 4):
+Marlow's data (TP A.14 / A.24; docs/model.md, "Ball-ball contact"):
 
     mu(u) = 9.951e-3 + 0.108 exp(-1.088 u),  u the slip speed in m/s,
 
@@ -76,4 +76,5 @@ def throw_angle(v_obj: np.ndarray, n: np.ndarray) -> np.ndarray:
     """Signed angle (rad) from the line of centres to the launch direction."""
     cross = n[:, 0] * v_obj[:, 1] - n[:, 1] * v_obj[:, 0]
     dot = np.sum(n * v_obj, axis=1)
-    return np.arctan2(cross, dot)
+    angle: np.ndarray = np.arctan2(cross, dot)
+    return angle

@@ -51,7 +51,7 @@ import numpy as np
 from .params import BallModel
 
 
-def _rates(
+def impulse_rates(
     m: BallModel,
     st: np.ndarray,
     mu_w: np.ndarray | float,
@@ -110,8 +110,8 @@ def fine_impact(
         idx = np.flatnonzero(active)
         x = st[idx]
         h = dp[idx][:, None]
-        k1 = _rates(m, x, m.mu_w, m.mu_s)
-        k2 = _rates(m, x + 0.5 * h * k1, m.mu_w, m.mu_s)
+        k1 = impulse_rates(m, x, m.mu_w, m.mu_s)
+        k2 = impulse_rates(m, x + 0.5 * h * k1, m.mu_w, m.mu_s)
         nx = x + h * k2
         vy0, vy1 = x[:, 1], nx[:, 1]
         comp = np.isnan(wc[idx])

@@ -1,8 +1,8 @@
 """Closed-form ball motion on the cloth: sliding, rolling, spinning and stopped phases.
 
 After W. Leckie and M. Greenspan, "An event-based pool physics simulator", Advances in Computer
-Games, LNCS 4250 (2006), with the phase equations of PHYSICS.md section 2 (Coriolis 1835;
-Alciatore's parameter ranges). Every function works on a batch: positions ``r`` (n, 2),
+Games, LNCS 4250 (2006), with the phase equations of docs/model.md, "Ball on cloth" (Coriolis
+1835; Alciatore's parameter ranges). Every function works on a batch: positions ``r`` (n, 2),
 velocities ``v`` (n, 2), spins ``w`` (n, 3) (rad/s, z up from the cloth), SI units.
 
 Frame: the table's x and y with z = x cross y taken as "up" (away from the cloth) and all cross
@@ -12,9 +12,9 @@ stick hit does that in stick.py).
 
 Sliding: the contact slip u = v + w x (-R z) = (vx - R wy, vy + R wx) keeps its direction; the
 cloth friction gives a = -mu_s g u/|u| and, from the torque r x F at the contact (0, 0, -R),
-dw/dt = (5 / (2R)) (a_y, -a_x, 0) (PHYSICS.md writes this as (5/(2R)) z x a; with the slip
-defined as above the torque gives the opposite sign, a x z; the check is that the slip then
-shrinks at 7/2 mu_s g, which the tests confirm). Sliding ends after 2|u0| / (7 mu_s g).
+dw/dt = (5 / (2R)) (a_y, -a_x, 0) (written (5/(2R)) z x a, the sign would make the slip grow;
+with the slip defined as above the torque gives a x z; the check is that the slip then shrinks
+at 7/2 mu_s g, which the tests confirm). Sliding ends after 2|u0| / (7 mu_s g).
 Rolling: a = -mu_r g v/|v|, in-plane spin locked to v (wx = -vy/R, wy = vx/R), stops after
 |v| / (mu_r g). Spin about the vertical decays at ``spin_decel`` in every phase and ends the
 spinning phase after |wz| / spin_decel.
@@ -25,6 +25,7 @@ from __future__ import annotations
 import numpy as np
 
 from .params import BallModel
+from .roots import first_quadratic_root
 
 STOPPED, SPINNING, ROLLING, SLIDING = 0, 1, 2, 3
 PHASE_NAMES = ("stopped", "spinning", "rolling", "sliding")
@@ -37,7 +38,8 @@ EPS_W = 1e-7
 
 def dot2(a: np.ndarray, b: np.ndarray) -> np.ndarray:
     """Row-wise dot product of two (n, 2) arrays (cheaper than np.sum for small batches)."""
-    return a[:, 0] * b[:, 0] + a[:, 1] * b[:, 1]
+    out: np.ndarray = a[:, 0] * b[:, 0] + a[:, 1] * b[:, 1]
+    return out
 
 
 def slip(m: BallModel, v: np.ndarray, w: np.ndarray) -> np.ndarray:
@@ -74,7 +76,7 @@ def phase_duration(m: BallModel, v: np.ndarray, w: np.ndarray, phase: np.ndarray
     """Time to the end of each ball's current phase (inf when it never ends, e.g. mu = 0).
 
     Sliding 2|u|/(7 mu_s g), rolling |v|/(mu_r g), spinning |wz|/spin_decel (Leckie and
-    Greenspan 2006; PHYSICS.md 2).
+    Greenspan 2006; docs/model.md, "Ball on cloth").
     """
     out = np.full(v.shape[0], np.inf)
     with np.errstate(divide="ignore", invalid="ignore"):
@@ -178,4 +180,72 @@ def settle(
 
 def energy(m: BallModel, v: np.ndarray, w: np.ndarray) -> np.ndarray:
     """Kinetic energy of each ball, m v^2 / 2 + I w^2 / 2 (J)."""
-    return 0.5 * m.mass * np.sum(v * v, axis=1) + 0.5 * m.inertia * np.sum(w * w, axis=1)
+    out: np.ndarray = 0.5 * m.mass * np.sum(v * v, axis=1) + 0.5 * m.inertia * np.sum(w * w, axis=1)
+    return out
+
+
+def evolve_moving(
+    m: BallModel,
+    r: np.ndarray,
+    v: np.ndarray,
+    w: np.ndarray,
+    phase: np.ndarray,
+    t: np.ndarray,
+    a: np.ndarray,
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """``evolve`` for rows that all roll or slide (simulate's loop has dropped the rest): the
+    same arithmetic without the branches for stopped and spinning balls."""
+    tt = t[:, None]
+    r2 = r + (v + 0.5 * a * tt) * tt
+    v2 = v + a * tt
+    k = 2.5 / m.radius
+    w2 = np.empty_like(w)
+    sl = phase == SLIDING
+    w2[:, 0] = np.where(sl, w[:, 0] + k * a[:, 1] * t, -v2[:, 1] / m.radius)
+    w2[:, 1] = np.where(sl, w[:, 1] - k * a[:, 0] * t, v2[:, 0] / m.radius)
+    wz = w[:, 2]
+    w2[:, 2] = np.sign(wz) * np.maximum(np.abs(wz) - m.spin_decel * t, 0.0)
+    return r2, v2, w2
+
+
+def advance(
+    m: BallModel, v: np.ndarray, w: np.ndarray, dist: np.ndarray
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The state of balls on a straight stroke line after ``dist`` metres (cue ball to ghost).
+
+    With a level cue the slip stays along the line, so the path is straight; the phases run
+    in closed form until the distance is covered. Returns v, w and whether it got there.
+    """
+    v, w = v.copy(), w.copy()
+    n = v.shape[0]
+    sp = np.hypot(v[:, 0], v[:, 1])
+    d = v / np.maximum(sp, 1e-300)[:, None]
+    left = dist.astype(float).copy()
+    reached = np.zeros(n, dtype=bool)
+    going = sp > 0
+    r = np.zeros((n, 2))
+    for _ in range(4):
+        if not np.count_nonzero(going):
+            break
+        ph, a, T = prepare(m, v, w)
+        going &= ph > SPINNING
+        along_v = dot2(v, d)
+        along_a = dot2(a, d)
+        t = first_quadratic_root(-0.5 * along_a, -along_v, left, T)
+        hit = going & np.isfinite(t)
+        tt = np.where(hit, t, np.where(np.isfinite(T), T, 0.0))
+        tt = np.where(going, tt, 0.0)
+        if np.count_nonzero(ph <= SPINNING):
+            _, v2, w2 = evolve(m, r, v, w, ph, tt, a)
+        else:  # every ball rolls or slides: the loop's own evolve, same arithmetic
+            _, v2, w2 = evolve_moving(m, r, v, w, ph, tt, a)
+        moved = along_v * tt + 0.5 * along_a * tt * tt
+        ended = going & ~hit
+        if np.count_nonzero(ended):  # settle changes only the balls whose phase ended
+            settle(m, v2, w2, ended, ph)
+        v = np.where(going[:, None], v2, v)
+        w = np.where(going[:, None], w2, w)
+        left = np.where(going, left - moved, left)
+        reached |= hit
+        going &= ~hit
+    return v, w, reached

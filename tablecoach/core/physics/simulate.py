@@ -7,7 +7,7 @@ wall crossing inside a pocket mouth). No time step is taken between events. All 
 shots of a batch advance together: one loop pass moves every unfinished row to its own next
 event, so a batch of hundreds of shots costs a few dozen numpy passes.
 
-Conventions follow the ideal trace in shots.py: the ball centre moves in the box one radius
+Conventions follow the ideal trace (aim/ideal.py): the ball centre moves in the box one radius
 inside the cushion noses; a crossing of that box inside a pocket mouth is a pocket entry
 (clean when the line of travel clears both jaw points by a radius); the first ball the row
 meets ends its path, after which it runs on (balls ignored) to find its landing, the first
@@ -20,14 +20,16 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ..table import POCKETS, RAILS, TableSpec
+from ..table import OUTWARD_NORMALS, RAILS, TableSpec
+from .approach import ball_times, closest
 from .cushion import rail_impact
-from .motion import ROLLING, SLIDING, SPINNING, dot2, evolve, prepare, settle
+from .motion import ROLLING, SPINNING, evolve, evolve_moving, prepare, settle
 from .params import BallModel
-from .roots import first_quadratic_root, first_quartic_root
+from .roots import first_quadratic_root
+from .table_arrays import on_cushion, table_arrays
 
-_NORMALS = np.array([[-1.0, 0.0], [1.0, 0.0], [0.0, -1.0], [0.0, 1.0]])
-"""Outward normals of head, foot, left, right (RAILS order)."""
+_NORMALS = np.array(OUTWARD_NORMALS)
+"""Outward normals of head, foot, left, right (table.RAILS order), as an array."""
 
 
 @dataclass(slots=True)
@@ -82,49 +84,6 @@ class SimResult:
     end_speed: np.ndarray = field(default_factory=lambda: np.zeros(0))
 
 
-def _pocket_arrays(table: TableSpec) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-    ps = table.pockets()
-    ja = np.array([ps[n].jaw_a for n in POCKETS])
-    jb = np.array([ps[n].jaw_b for n in POCKETS])
-    aim = np.array([ps[n].aim for n in POCKETS])
-    member = np.array([[r in ps[n].rails for n in POCKETS] for r in RAILS])  # (4, 6)
-    return ja, jb, aim, member
-
-
-def _segment_table(table: TableSpec) -> tuple[np.ndarray, np.ndarray]:
-    """Cushion stretches of each rail as (4, 2) arrays of starts and ends (nan-padded)."""
-    lo = np.full((4, 2), np.nan)
-    hi = np.full((4, 2), np.nan)
-    for code, name in enumerate(RAILS):
-        for j, (a, b) in enumerate(table.cushion_segments(name)):
-            lo[code, j], hi[code, j] = a, b
-    return lo, hi
-
-
-_CACHE: list[tuple[TableSpec, tuple]] = []
-"""Per-table constants of the last few tables, keyed by identity (hashing a spec is slow)."""
-_CACHE_SIZE = 8
-
-
-def _table_arrays(table: TableSpec) -> tuple:
-    """Pocket arrays and cushion stretches of a table, computed once per table object."""
-    for t, val in _CACHE:
-        if t is table:
-            return val
-    val = (_pocket_arrays(table), _segment_table(table))
-    _CACHE.insert(0, (table, val))
-    del _CACHE[_CACHE_SIZE:]
-    return val
-
-
-def _on_cushion(
-    seg: tuple[np.ndarray, np.ndarray], rail: np.ndarray, along: np.ndarray
-) -> np.ndarray:
-    lo, hi = seg
-    al = along[:, None]
-    return np.any((al >= lo[rail]) & (al <= hi[rail]), axis=1)
-
-
 def simulate(
     m: BallModel,
     table: TableSpec,
@@ -156,9 +115,7 @@ def simulate(
     maxw = nf + 1
     rail_codes = np.array([RAILS.index(x) for x in rails], dtype=np.int64)
     R = m.radius
-    lo = np.array([R, R])
-    hi = np.array([table.length - R, table.width - R])
-    (ja, jb, paim, member), seg_tab = _table_arrays(table)
+    (ja, jb, paim, member), seg_tab = table_arrays(table)
     r = np.array(r0, dtype=float)
     v = np.array(v0, dtype=float)
     w = np.array(w0, dtype=float)
@@ -188,7 +145,7 @@ def simulate(
     segments: list[Segment] = []
     sgn = np.array([1.0, -1.0, 1.0, -1.0])
     ax4 = np.array([0, 0, 1, 1])
-    wall4 = np.array([lo[0], hi[0], lo[1], hi[1]])
+    wall4 = np.array(table.ball_box())  # the walls in RAILS order
     bvalid = ~np.isnan(balls[:, :, 0])
     events = 0
     sp0 = np.hypot(v[:, 0], v[:, 1])
@@ -245,7 +202,7 @@ def simulate(
             if rows.size:
                 p = ri[rows] - bb[rows, cols]
                 vv, aa = vi[rows], a[rows]
-                tb = _ball_times(p, vv, aa, tw_end[rows], 2.0 * R)
+                tb = ball_times(p, vv, aa, tw_end[rows], 2.0 * R)
                 if k == 1:  # one ball: no choice to make between balls
                     t_b[rows] = tb
                     b_id = np.where(np.isfinite(t_b), 0, -1)
@@ -259,7 +216,7 @@ def simulate(
         dt = np.where(np.isfinite(dt), dt, 0.0)
         if record:
             segments.append(Segment(ri.copy(), vi.copy(), wi.copy(), ph.copy(), dt.copy(), idx))
-        r2, v2, w2 = _evolve_moving(m, ri, vi, wi, ph, dt, a)
+        r2, v2, w2 = evolve_moving(m, ri, vi, wi, ph, dt, a)
         sp = np.hypot(v2[:, 0], v2[:, 1])
         mv = sp > 1e-12
         last_dir[idx[mv]] = v2[mv] / sp[mv, None]
@@ -276,7 +233,7 @@ def simulate(
             else:
                 tc, to_wall = dt, is_wall
             to_rest = (ph == ROLLING) & (t_end <= tc) & ~to_wall
-            _closest(
+            closest(
                 ri, vi, a, tc, target_point[idx], after, to_rest, to_wall, best, miss, at_rest, idx
             )
         # ball contact: note it, and run on through the ball (balls ignored from now)
@@ -304,7 +261,7 @@ def simulate(
             hits[rows, slot] = code
             hit_at[rows, slot] = along
             walls[rows] = cnt + 1
-            cush = _on_cushion(seg_tab, code, along)
+            cush = on_cushion(seg_tab, code, along)
             keep = np.ones(rows.size, dtype=bool)
             if any_lean and nf:  # off the family's order: nothing more to learn from the row
                 off = (cnt < nf) & (code != rail_codes[np.minimum(cnt, nf - 1)])
@@ -398,139 +355,6 @@ def simulate(
         rail_vn,
         np.hypot(v[:, 0], v[:, 1]),
     )
-
-
-def _evolve_moving(
-    m: BallModel,
-    r: np.ndarray,
-    v: np.ndarray,
-    w: np.ndarray,
-    phase: np.ndarray,
-    t: np.ndarray,
-    a: np.ndarray,
-) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """motion.evolve for rows that all roll or slide (the loop has dropped the rest): the
-    same arithmetic without the branches for stopped and spinning balls."""
-    tt = t[:, None]
-    r2 = r + (v + 0.5 * a * tt) * tt
-    v2 = v + a * tt
-    k = 2.5 / m.radius
-    w2 = np.empty_like(w)
-    sl = phase == SLIDING
-    w2[:, 0] = np.where(sl, w[:, 0] + k * a[:, 1] * t, -v2[:, 1] / m.radius)
-    w2[:, 1] = np.where(sl, w[:, 1] - k * a[:, 0] * t, v2[:, 0] / m.radius)
-    wz = w[:, 2]
-    w2[:, 2] = np.sign(wz) * np.maximum(np.abs(wz) - m.spin_decel * t, 0.0)
-    return r2, v2, w2
-
-
-def _ball_times(
-    p: np.ndarray, v: np.ndarray, a: np.ndarray, t_max: np.ndarray, reach: float
-) -> np.ndarray:
-    """First time the centre r + v t + a t^2/2 comes within ``reach`` of a ball (p = r - c).
-
-    A path whose acceleration is along its velocity is straight: the contact is where the
-    line meets the circle of radius ``reach``, and its time a quadratic root. A curved path
-    (sliding with the slip across the velocity) is the quartic |p + v t + a t^2/2|^2 = reach^2
-    (Leckie and Greenspan 2006), solved in roots.py.
-    """
-    vx, vy, ax, ay = v[:, 0], v[:, 1], a[:, 0], a[:, 1]
-    spd = np.sqrt(vx * vx + vy * vy)
-    amag = np.sqrt(ax * ax + ay * ay)
-    cross = np.abs(vx * ay - vy * ax)
-    straight = cross <= 1e-12 * np.maximum(spd * amag, 1e-300)
-    every = bool(straight.all())
-    out = np.full(p.shape[0], np.inf)
-    if every or np.count_nonzero(straight):
-        # on columns, the whole batch at once when every path is straight
-        if every:
-            px, py, sx, sy, hx, hy, sp, tm = p[:, 0], p[:, 1], vx, vy, ax, ay, spd, t_max
-        else:
-            ps, vs, as_ = p[straight], v[straight], a[straight]
-            px, py, sx, sy = ps[:, 0], ps[:, 1], vs[:, 0], vs[:, 1]
-            hx, hy, sp, tm = as_[:, 0], as_[:, 1], spd[straight], t_max[straight]
-        sp_div = np.maximum(sp, 1e-300)
-        ux, uy = sx / sp_div, sy / sp_div
-        b = px * ux + py * uy
-        cc = (px * px + py * py) - reach * reach
-        disc = b * b - cc
-        s_hit = -b - np.sqrt(np.maximum(disc, 0.0))
-        ok = (disc >= 0) & (s_hit >= 0) & (sp > 0)
-        # distance along the line s(t) = |v| t + (a.u) t^2 / 2 reaching s_hit
-        t = first_quadratic_root(-0.5 * (hx * ux + hy * uy), -sp, np.where(ok, s_hit, -1.0), tm)
-        if every:
-            return np.where(ok, t, np.inf)
-        out[straight] = np.where(ok, t, np.inf)
-    curved = ~straight
-    if np.count_nonzero(curved):
-        pc, vc, ac = p[curved], v[curved], a[curved]
-        coef = np.stack(
-            (
-                0.25 * dot2(ac, ac),
-                dot2(vc, ac),
-                dot2(vc, vc) + dot2(pc, ac),
-                2.0 * dot2(pc, vc),
-                dot2(pc, pc) - reach * reach,
-            ),
-            axis=1,
-        )
-        out[curved] = first_quartic_root(coef, t_max[curved])
-    return out
-
-
-def _closest(
-    r: np.ndarray,
-    v: np.ndarray,
-    a: np.ndarray,
-    dt: np.ndarray,
-    c: np.ndarray,
-    sel: np.ndarray,
-    to_rest: np.ndarray,
-    to_wall: np.ndarray,
-    best: np.ndarray,
-    miss: np.ndarray,
-    at_rest: np.ndarray,
-    idx: np.ndarray,
-) -> None:
-    """Update the closest approach of point c to the path r + v t + a t^2/2, t in [0, dt].
-
-    Minimises |r(t) - c|^2 by Newton steps on (r(t) - c) . v(t) from the straight-line
-    estimate, clipped to the interval; the signed distance is positive with c left of travel.
-    """
-    # on columns (x and y apart): the same arithmetic as row-wise dot products, fewer calls
-    if sel.all():
-        rs, cs, vs, as_, T = r, c, v, a, dt
-    else:
-        rs, cs, vs, as_, T = r[sel], c[sel], v[sel], a[sel], dt[sel]
-    px, py = rs[:, 0] - cs[:, 0], rs[:, 1] - cs[:, 1]
-    vx, vy, ax, ay = vs[:, 0], vs[:, 1], as_[:, 0], as_[:, 1]
-    hx, hy = 0.5 * ax, 0.5 * ay
-    v2 = vx * vx + vy * vy
-    t = np.clip(-(px * vx + py * vy) / np.maximum(v2, 1e-300), 0.0, T)
-    for _ in range(3):
-        tt = t * t
-        qx, qy = px + vx * t + hx * tt, py + vy * t + hy * tt
-        ux, uy = vx + ax * t, vy + ay * t
-        g = qx * ux + qy * uy
-        dg = (ux * ux + uy * uy) + (qx * ax + qy * ay)
-        t = np.clip(t - g / np.where(np.abs(dg) > 1e-300, dg, 1.0), 0.0, T)
-    tt = t * t
-    qx, qy = px + vx * t + hx * tt, py + vy * t + hy * tt
-    ux, uy = vx + ax * t, vy + ay * t
-    dist = np.hypot(qx, qy)
-    us = np.hypot(ux, uy)
-    cross = ux * -qy - uy * -qx
-    side = np.sign(cross)
-    side = np.where((us > 1e-12) & (side != 0), side, 1.0)
-    # a stretch that ends on a wall with the point still ahead (a pocket mouth beyond the
-    # box): measure on the line of travel carried on past the wall
-    ahead = to_wall[sel] & (t >= T * (1.0 - 1e-12)) & ((-qx * ux + -qy * uy) > 0)
-    dist = np.where(ahead, np.abs(cross) / np.maximum(us, 1e-300), dist)
-    rows = idx[sel]
-    better = dist < best[rows]
-    best[rows[better]] = dist[better]
-    miss[rows[better]] = side[better] * dist[better]
-    at_rest[rows[better]] = (to_rest[sel] & (t >= T * (1.0 - 1e-9)))[better]
 
 
 def sample_path(

@@ -36,7 +36,7 @@ class LandingBias:
 
 
 def speed_bands(speed: np.ndarray) -> np.ndarray:
-    """``shots.speed_name`` of each speed, vectorised (same bands, same edges: below the
+    """``strokes.speed_name`` of each speed, vectorised (same bands, same edges: below the
     slowest band counts as its stroke, above the hardest, or not a number, as the hardest)."""
     names = list(SPEED_BANDS)
     conds = [(speed >= lo) & (speed < hi) for lo, hi in SPEED_BANDS.values()]
@@ -111,6 +111,6 @@ def bias_of(cols: Frame, offsets: np.ndarray) -> list[LandingBias]:
 def landing_bias(
     attempts: Sequence[Attempt], table_of: Callable[[str], TableSpec | None] | None = None
 ) -> list[LandingBias]:
-    """Landing bias by family and speed band (shots.speed_name), largest groups first."""
+    """Landing bias by family and speed band (strokes.speed_name), largest groups first."""
     cols = frame_of(attempts)
     return bias_of(cols, offsets_of(cols, table_of))

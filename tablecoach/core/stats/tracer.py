@@ -26,7 +26,7 @@ def ideal_landings(
     sight point (the reading on ``aim_rail``'s line of sights, 93.7 mm behind the nose, WPA) and
     reflects ideally about walls one ball radius inside the noses; the landing is the wall
     crossing after as many walls as the family has rails, the definition of
-    ``shots.trace_ideal`` (pocket openings are treated as cushion here). Returns the landing
+    ``ideal_aim.trace`` (pocket openings are treated as cushion here). Returns the landing
     rail codes (index into head, foot, left, right), the landing points in diamonds along their
     rails, and the sense of travel round the perimeter (+1 or -1) at the landing.
     """

@@ -6,7 +6,8 @@ import json
 from collections.abc import Callable
 
 from ..records import utc_now
-from ..table import BUILTIN_TABLES, TableError, TableSpec, table_from_mapping, table_to_mapping
+from ..table import BUILTIN_TABLES, TableError, TableSpec
+from ..table_files import table_from_mapping, table_to_mapping
 from .connection import Connection
 from .errors import StoreError
 from .rows import iso_utc

@@ -12,6 +12,7 @@ from textual.containers import Horizontal, Vertical
 from textual.screen import Screen
 from textual.widgets import Footer
 
+from tablecoach.core import aim as aims
 from tablecoach.core import shots
 from tablecoach.core.practice import REDRAWS, Session
 from tablecoach.core.shots import Aim, Convergence, Stroke
@@ -304,12 +305,12 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
         """The aim under the session's model, else the ideal aim with a note (worker thread)."""
         table = self.session.table
         try:
-            return shots.solve_playable(table, setup, stroke, model)
+            return aims.solve_playable(table, setup, stroke, model)
         except ValueError as exc:
             if model == "ideal":
                 return None, f"no aim: {exc}"
             try:
-                aim = shots.solve_aim(table, setup, stroke, "ideal")
+                aim = aims.solve(table, setup, stroke, "ideal")
             except ValueError:
                 return None, f"no aim: {exc}"
             reason = str(exc).split(":")[0].replace(f" under the {model} model", "")
@@ -317,7 +318,7 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
 
     def _conv_now(self, token: int, setup: shots.Setup, stroke: Stroke, model: str) -> None:
         try:
-            conv = shots.convergence(self.session.table, setup, None, stroke, model)
+            conv = aims.convergence(self.session.table, setup, None, stroke, model)
         except ValueError:
             conv = None
         self.post_message(ConvergenceFound(token, conv))

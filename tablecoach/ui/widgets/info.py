@@ -10,7 +10,8 @@ from textual.widgets import Static
 
 from tablecoach.core import placing
 from tablecoach.core.practice import Pick, Stats, shown_reading
-from tablecoach.core.shots import Aim, Convergence, Stroke, speed_name, travel_lengths
+from tablecoach.core.shots import Aim, Convergence, Stroke
+from tablecoach.core.strokes import speed_name, travel_lengths
 from tablecoach.core.table import TableSpec
 from tablecoach.render import words as w
 

@@ -12,7 +12,7 @@ import pytest
 from tablecoach.core import shots
 from tablecoach.core.calibration.model import model_landing
 from tablecoach.core.calibration.params import with_params
-from tablecoach.core.drills import parse_drill
+from tablecoach.core.drill_packs import parse_drill
 from tablecoach.core.records import Attempt
 from tablecoach.core.table import builtin_table
 

@@ -9,6 +9,7 @@ import numpy as np
 import pytest
 
 from tablecoach.core import shots
+from tablecoach.core.aim import ideal as ideal_aim
 from tablecoach.core.calibration import evidence as evi
 from tablecoach.core.calibration.fit import fit_table
 
@@ -19,7 +20,7 @@ def _kick() -> tuple[shots.Setup, shots.Aim]:
     s = shots.make_setup(
         T9, shots.PRESETS["one-rail-kick"], T9.to_metres(1, 1), None, None, T9.to_metres(3, 1)
     )
-    return s, shots.solve_ideal(T9, s)
+    return s, ideal_aim.solve(T9, s)
 
 
 def test_each_attempt_says_what_it_is() -> None:

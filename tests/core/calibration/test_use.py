@@ -10,7 +10,9 @@ from datetime import timedelta
 
 import pytest
 
+from tablecoach.core import aim as aims
 from tablecoach.core import shots
+from tablecoach.core.aim import ideal as ideal_aim
 from tablecoach.core.calibration import use
 from tablecoach.core.calibration.check import table_check_setups
 from tablecoach.core.calibration.model import landing_error, landing_errors
@@ -108,7 +110,7 @@ def test_landing_error_sign_is_long_along_the_path() -> None:
     s = shots.make_setup(
         T9, shots.PRESETS["one-rail-kick"], T9.to_metres(1, 1), None, None, T9.to_metres(3, 1)
     )
-    aim = shots.solve_ideal(T9, s)
+    aim = ideal_aim.solve(T9, s)
     assert aim.landing.rail == "left"
     same = logged(T9, s, aim.reading, "medium", aim.landing)
     assert landing_error(T9, same, model="ideal") == pytest.approx(0.0, abs=1e-5)
@@ -157,7 +159,7 @@ def test_table_check_is_five_to_ten_clean_shots(name: str) -> None:
     setups = table_check_setups(table)
     assert 5 <= len(setups) <= 10
     for d in setups:
-        shots.solve_ideal(table, d.setup)  # raises ShotError without a clean path
+        ideal_aim.solve(table, d.setup)  # raises ShotError without a clean path
         assert d.label.startswith("table check: ")
     fams = {d.setup.family.name for d in setups}
     assert len(fams) >= 4
@@ -174,8 +176,8 @@ def test_travel_sign_uses_the_run_onto_the_landing_rail() -> None:
     s = shots.make_setup(
         T9, shots.preset("one-rail-kick"), T9.to_metres(1, 1), target_ball=T9.to_metres(5, 1)
     )
-    aim = shots.solve_ideal(T9, s)
-    tr = shots.predict(T9, s, aim.reading + 0.3 * T9.diamond)
+    aim = ideal_aim.solve(T9, s)
+    tr = aims.predict(T9, s, aim.reading + 0.3 * T9.diamond)
     assert not tr.scores and tr.landing is not None and tr.landing.rail == "left"
     assert len(tr.contacts) > 1  # the trace went on past the landing rail
     run_dx = tr.path[2][0] - tr.path[1][0]

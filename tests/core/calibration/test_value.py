@@ -7,7 +7,7 @@ from dataclasses import replace
 
 import pytest
 
-from tablecoach.core import shots
+from tablecoach.core import shots, strokes
 from tablecoach.core.calibration import params
 from tablecoach.core.calibration.params import CalibrationError
 from tablecoach.core.calibration.use import speed_for, stroke_for
@@ -99,7 +99,7 @@ def test_sentences_speak_a_players_words() -> None:
     )
     # the stroke in lengths of travel on the calibrated table, beside the book's 3 lengths
     # (shots.STROKE_LENGTHS: common practice, no source)
-    here = shots.travel_lengths(cal.apply(T9), 2.7)
+    here = strokes.travel_lengths(cal.apply(T9), 2.7)
     medium = [t for t in text if t.startswith("Your medium sends the ball")]
     assert medium == [
         f"Your medium sends the ball {here:.1f} lengths on this table (the book's medium: 3): "
@@ -107,7 +107,7 @@ def test_sentences_speak_a_players_words() -> None:
     ]
     # physics: more rolling resistance, more sliding friction and a deader cushion than the
     # default table (Alciatore, PHYSICS.md 2; Mathavan et al. 2010) take travel off a stroke
-    assert here < shots.travel_lengths(T9, 2.7)
+    assert here < strokes.travel_lengths(T9, 2.7)
     # restitution 0.92 against the default 0.98, further off than its sd 0.02: deader cushions,
     # and the posterior sd 0.02 against the prior's 0.05 (below half of it) is said
     resti = [t for t in text if t.startswith("Cushion liveliness")]
@@ -160,7 +160,7 @@ def test_prior_sd_reads_the_published_ranges() -> None:
     # In lengths of travel (physics/travel.py) a medium at +-2 sd still travels further than a
     # lag and less far than a fast stroke (shots.STROKE_LENGTHS: common practice, no source).
     lo, hi = (
-        shots.travel_lengths(T9, shots.SPEED_PRESETS["medium"] * math.exp(k * 2 * sd))
+        strokes.travel_lengths(T9, shots.SPEED_PRESETS["medium"] * math.exp(k * 2 * sd))
         for k in (-1, 1)
     )
     assert shots.STROKE_LENGTHS["lag"] < lo < 3.0 < hi < shots.STROKE_LENGTHS["fast"]

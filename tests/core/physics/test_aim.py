@@ -8,8 +8,10 @@ from dataclasses import replace
 import numpy as np
 import pytest
 
-from tablecoach.core import shots
-from tablecoach.core.physics import aim
+from tablecoach.core import aim as aims
+from tablecoach.core import shots, strokes
+from tablecoach.core.aim import ideal as ideal_aim
+from tablecoach.core.aim import physical, sights
 from tablecoach.core.physics.params import model_of
 from tablecoach.core.physics.simulate import simulate
 from tablecoach.core.physics.stick import stick_hit
@@ -63,13 +65,13 @@ def _ideal_table() -> TableSpec:
 @pytest.mark.parametrize("family", [k for k in SETUPS if not k.endswith("-b")])
 def test_ideal_limit_reproduces_the_mirror_aim(family: str) -> None:
     # PHYSICS.md 3: with e = 1, no friction and contact at the equator the rebound is the
-    # law of reflection, so the physical aim is the mirror aim of shots.solve_ideal.
+    # law of reflection, so the physical aim is the mirror aim of ideal_aim.solve.
     t = _ideal_table()
     assert t.contact_angle == 0.0
     s = _setup(t, family)
     st = shots.Stroke(1.4)
-    ideal = shots.solve_ideal(t, s, st)
-    phys = aim.solve_physical(t, s, st)
+    ideal = ideal_aim.solve(t, s, st)
+    phys = physical.solve(t, s, st)
     assert phys.model == "physical"
     assert abs(phys.reading - ideal.reading) < 1e-6
     assert phys.landing.rail == ideal.landing.rail
@@ -81,8 +83,8 @@ def test_ideal_limit_reproduces_the_mirror_aim(family: str) -> None:
     assert abs(phys.margin_plus - ideal.margin_plus) < 1e-3
     # and the forward trace of a reading off the aim lands where the mirror trace lands
     r = ideal.reading + 0.01
-    tr_p = aim.predict_physical(t, s, st, r)
-    tr_i = shots.trace_ideal(t, s, shots.direction_of(t, s.start, s.family.rails[0], r))
+    tr_p = physical.predict(t, s, st, r)
+    tr_i = ideal_aim.trace(t, s, sights.direction_of(t, s.start, s.family.rails[0], r))
     assert tr_p.scores == tr_i.scores and tr_p.landing is not None and tr_i.landing is not None
     assert tr_p.landing.rail == tr_i.landing.rail
     assert abs(tr_p.landing.at - tr_i.landing.at) < 1e-6
@@ -90,13 +92,13 @@ def test_ideal_limit_reproduces_the_mirror_aim(family: str) -> None:
 
 def test_ideal_limit_convergence_point_matches_the_mirror_one() -> None:
     # Under reflection every aim line passes through the target's unfolded image
-    # (geometry.unfold), so the spread is zero and the point is that of shots.convergence.
+    # (geometry.unfold), so the spread is zero and the point is that of aims.convergence.
     t = _ideal_table()
     s = _setup(t, "three-rail-kick")
-    starts = shots.neighbourhood(t, s.start, 0.3, 3)
+    starts = aims.neighbourhood(t, s.start, 0.3, 3)
     st = shots.Stroke(1.4)
-    ideal = shots.convergence(t, s, starts, st, "ideal")
-    phys = aim.convergence_physical(t, s, starts, st)
+    ideal = aims.convergence(t, s, starts, st, "ideal")
+    phys = physical.convergence(t, s, starts, st)
     assert phys.spread < 1e-6
     assert math.dist(phys.point, ideal.point) < 1e-4
 
@@ -113,15 +115,15 @@ def test_predict_with_the_solved_reading_lands_on_the_target(
     # says; a reading past the scoring window does not score.
     t = _with_restitution(e)
     s = _setup(t, family)
-    st = shots.Stroke(shots.parse_speed(speed))
-    a = aim.solve_physical(t, s, st)
-    tr = aim.predict_physical(t, s, st, a.reading)
+    st = shots.Stroke(strokes.parse_speed(speed))
+    a = physical.solve(t, s, st)
+    tr = physical.predict(t, s, st, a.reading)
     assert tr.scores, tr.outcome
     assert tr.rails_hit == s.family.rails
     assert tr.landing is not None and tr.landing.rail == a.landing.rail
     assert abs(tr.landing.at - a.landing.at) < 1e-3
     assert a.margin_minus > 0 and a.margin_plus > 0
-    past = aim.predict_physical(t, s, st, a.reading + a.margin_plus + 0.02)
+    past = physical.predict(t, s, st, a.reading + a.margin_plus + 0.02)
     assert not past.scores
 
 
@@ -131,9 +133,9 @@ def test_spin_and_speed_move_the_physical_aim_off_the_mirror(e: float) -> None:
     # on a real table the aim is not the mirror aim, and english moves it.
     t = _with_restitution(e)
     s = _setup(t, "three-rail-kick-b")
-    ideal = shots.solve_ideal(t, s)
-    plain = aim.solve_physical(t, s, shots.Stroke(3.85))
-    side = aim.solve_physical(t, s, shots.Stroke(3.85, english=0.5))
+    ideal = ideal_aim.solve(t, s)
+    plain = physical.solve(t, s, shots.Stroke(3.85))
+    side = physical.solve(t, s, shots.Stroke(3.85, english=0.5))
     assert abs(plain.reading - ideal.reading) > 0.01
     assert abs(side.reading - plain.reading) > 0.005
 
@@ -183,9 +185,9 @@ def test_speed_effects_compound_with_every_rail(e: float, cue, target) -> None:
     s = shots.make_setup(
         t, shots.preset("three-rail-kick"), t.to_metres(*cue), None, None, t.to_metres(*target)
     )
-    r = shots.solve_ideal(t, s).reading
-    a = aim.predict_physical(t, s, shots.Stroke(3.2), r)
-    b = aim.predict_physical(t, s, shots.Stroke(3.85), r)
+    r = ideal_aim.solve(t, s).reading
+    a = physical.predict(t, s, shots.Stroke(3.2), r)
+    b = physical.predict(t, s, shots.Stroke(3.85), r)
     assert a.rails_hit[:3] == b.rails_hit[:3] == s.family.rails
     assert a.landing is not None and b.landing is not None
     after_one = abs(shots.landing_distance(t, a.contacts[1], b.contacts[1]))
@@ -198,22 +200,22 @@ def test_no_reading_scores_gives_a_plain_reason() -> None:
     t = builtin_table("9ft")
     s = _setup(t, "two-rail-bank")
     with pytest.raises(shots.ShotError, match="physical model"):
-        aim.solve_physical(t, s, shots.Stroke(0.5))
+        physical.solve(t, s, shots.Stroke(0.5))
 
 
 def test_miscue_limit_is_a_shot_error() -> None:
     t = builtin_table("9ft")
     s = _setup(t, "one-rail-kick")
     with pytest.raises(shots.ShotError, match="miscue"):
-        aim.solve_physical(t, s, shots.Stroke(1.4, english=1.0, follow=0.5))
+        physical.solve(t, s, shots.Stroke(1.4, english=1.0, follow=0.5))
 
 
 def test_physical_convergence_has_a_spread_and_uses_the_shots_hook() -> None:
     # DESIGN.md: under the physical model the aim lines nearly meet; the spread is not zero.
     t = builtin_table("9ft")
     s = _setup(t, "one-rail-kick")
-    starts = shots.neighbourhood(t, s.start, 0.4, 3)
-    conv = shots.convergence(t, s, starts, shots.Stroke(2.55), "physical")
+    starts = aims.neighbourhood(t, s.start, 0.4, 3)
+    conv = aims.convergence(t, s, starts, shots.Stroke(2.55), "physical")
     assert conv.model == "physical" and len(conv.starts) >= 5
     assert 0.0 < conv.spread < 0.05
 
@@ -225,6 +227,6 @@ def test_rotating_through_the_convergence_point_beats_a_parallel_shift() -> None
     f = shots.preset("one-rail-kick")
     ref = shots.make_setup(t, f, t.to_metres(2, 1), None, None, t.to_metres(5, 1.5))
     new = shots.make_setup(t, f, t.to_metres(2.3, 1.2), None, None, t.to_metres(5, 1.5))
-    c = shots.compare_shift(t, ref, new, shots.Stroke(2.55), "physical")
+    c = aims.compare_shift(t, ref, new, shots.Stroke(2.55), "physical")
     assert c.parallel_miss is not None and c.rotated_miss is not None
     assert abs(c.rotated_miss) < abs(c.parallel_miss)

@@ -8,7 +8,7 @@ from dataclasses import replace
 import numpy as np
 import pytest
 
-from tablecoach.core.physics.cushion import _rates, fine_impact, rail_impact, stepped_impact
+from tablecoach.core.physics.cushion import fine_impact, impulse_rates, rail_impact, stepped_impact
 from tablecoach.core.physics.motion import energy
 from tablecoach.core.physics.params import BallModel
 
@@ -72,7 +72,7 @@ def test_recalled_step_equations_match_a_rigid_body_derivation(model: BallModel)
     th = m.theta
     rng = np.random.default_rng(5)
     st = np.concatenate((rng.normal(0, 1, (40, 2)), rng.normal(0, 40, (40, 3))), axis=1)
-    got = _rates(m, st, m.mu_w, m.mu_s)
+    got = impulse_rates(m, st, m.mu_w, m.mu_s)
     r_i = R * np.array([0.0, math.cos(th), math.sin(th)])
     r_c = np.array([0.0, 0.0, -R])
     n_i = -r_i / R  # pushes the ball away from the cushion

@@ -7,18 +7,14 @@ import math
 import numpy as np
 
 from tablecoach.core import shots
-from tablecoach.core.physics import aim
+from tablecoach.core.aim import physical_batch
 from tablecoach.core.physics.collide import strike
 from tablecoach.core.physics.cushion import rail_impact, stepped_impact
 from tablecoach.core.physics.motion import evolve
 from tablecoach.core.physics.params import BallModel
 from tablecoach.core.physics.roots import T_MIN, first_quadratic_root
-from tablecoach.core.physics.simulate import (
-    _pocket_arrays,
-    _segment_table,
-    _table_arrays,
-    sample_path,
-)
+from tablecoach.core.physics.simulate import sample_path
+from tablecoach.core.physics.table_arrays import pocket_arrays, segment_table, table_arrays
 from tablecoach.core.table import TableSpec, builtin_table
 
 
@@ -28,15 +24,15 @@ def test_table_constants_are_cached_per_table_object() -> None:
     tables = [builtin_table("9ft"), builtin_table("7ft"), builtin_table("9ft")]
     tables.append(tables[0].with_params(nose_height_ratio=0.6))
     for t in tables * 2:
-        (ja, jb, paim, member), (lo, hi) = _table_arrays(t)
-        ja0, jb0, paim0, member0 = _pocket_arrays(t)
-        lo0, hi0 = _segment_table(t)
+        (ja, jb, paim, member), (lo, hi) = table_arrays(t)
+        ja0, jb0, paim0, member0 = pocket_arrays(t)
+        lo0, hi0 = segment_table(t)
         for got, want in ((ja, ja0), (jb, jb0), (paim, paim0), (member, member0)):
             np.testing.assert_array_equal(got, want)
         np.testing.assert_array_equal(lo, lo0)
         np.testing.assert_array_equal(hi, hi0)
     # and two sizes of table really do get different pocket positions
-    assert not np.array_equal(_table_arrays(tables[0])[0][2], _table_arrays(tables[1])[0][2])
+    assert not np.array_equal(table_arrays(tables[0])[0][2], table_arrays(tables[1])[0][2])
 
 
 def test_strike_matches_the_cross_product_form(model: BallModel) -> None:
@@ -115,8 +111,8 @@ def _setup(t: TableSpec) -> shots.Setup:
 def test_sampled_path_is_each_stretch_evolved_in_turn(table: TableSpec, model: BallModel) -> None:
     # The batched path against evolving every recorded stretch on its own (motion.evolve).
     s = _setup(table)
-    pr = aim._problems(table, [s])
-    res, _ = aim._run(
+    pr = physical_batch.problems(table, [s])
+    res, _ = physical_batch.run(
         model, table, pr, np.zeros(1, dtype=np.int64), pr.centre[:1], shots.Stroke(3.2), True
     )
     want: list[tuple[float, float]] = []

@@ -7,8 +7,8 @@ import json
 import pytest
 
 from tablecoach import cli
-from tablecoach.core import shots
-from tablecoach.core.physics import aim
+from tablecoach.core import shots, strokes
+from tablecoach.core.aim import physical
 from tablecoach.core.table import builtin_table
 
 
@@ -20,7 +20,7 @@ def test_predict_json_lands_and_scores_at_the_solved_reading(
     s = shots.make_setup(
         t, shots.preset("one-rail-kick"), t.to_metres(2, 1), None, None, t.to_metres(5, 1.5)
     )
-    a = aim.solve_physical(t, s, shots.Stroke(shots.parse_speed("medium")))
+    a = physical.solve(t, s, shots.Stroke(strokes.parse_speed("medium")))
     reading = round(a.reading / t.diamond, 4)
     base = ["--data-dir", str(tmp_path), "predict", "--family", "one-rail-kick"]
     base += ["--cue", "2,1", "--target-ball", "5,1.5", "--speed", "medium"]

@@ -11,7 +11,8 @@ import math
 import numpy as np
 import pytest
 
-from tablecoach.core import shots
+from tablecoach.core import aim as aims
+from tablecoach.core import shots, strokes
 from tablecoach.core.physics.collide import strike
 from tablecoach.core.physics.cushion import fine_impact, rail_impact, stepped_impact
 from tablecoach.core.physics.params import BallModel, model_of
@@ -77,7 +78,7 @@ def test_named_strokes_match_their_lengths_on_the_default_table() -> None:
         assert shots.SPEED_PRESETS[name] == pytest.approx(
             speed_for_lengths(M, T, lengths), rel=5e-3
         )
-        assert shots.travel_lengths(T, shots.SPEED_PRESETS[name]) == pytest.approx(
+        assert strokes.travel_lengths(T, shots.SPEED_PRESETS[name]) == pytest.approx(
             lengths, rel=1e-2
         )
 
@@ -88,11 +89,11 @@ def test_lengths_parse_and_follow_the_table() -> None:
     from dataclasses import replace
 
     slow_cloth = T.with_params(cloth=replace(T.cloth, mu_roll=0.012))
-    assert shots.parse_speed("3L") == pytest.approx(speed_for_lengths(M, T, 3.0))
-    assert shots.parse_speed("3 lengths", slow_cloth) > shots.parse_speed("3L", T)
-    assert shots.parse_speed("medium", slow_cloth) > shots.parse_speed("medium")
+    assert strokes.parse_speed("3L") == pytest.approx(speed_for_lengths(M, T, 3.0))
+    assert strokes.parse_speed("3 lengths", slow_cloth) > strokes.parse_speed("3L", T)
+    assert strokes.parse_speed("medium", slow_cloth) > strokes.parse_speed("medium")
     with pytest.raises(shots.ShotError):
-        shots.parse_speed("nanL")
+        strokes.parse_speed("nanL")
 
 
 # ----- the cushion ---------------------------------------------------------------------------
@@ -183,7 +184,7 @@ def test_a_medium_one_rail_kick_aims_at_a_mirror_between_groove_and_sights(
     s = shots.make_setup(
         T, shots.preset("one-rail-kick"), T.to_metres(*cue), None, None, T.to_metres(*target)
     )
-    aim = shots.solve_aim(T, s, shots.Stroke(shots.SPEED_PRESETS[stroke]), "physical")
+    aim = aims.solve(T, s, shots.Stroke(shots.SPEED_PRESETS[stroke]), "physical")
     assert s.family.rails == ("right",) and s.target_ball is not None
     groove = T.width - R
     a, b = groove - s.cue[1], groove - s.target_ball[1]
