@@ -20,11 +20,11 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
-import numpy as np  # noqa: E402
-from bench_store import invented  # noqa: E402
+import numpy as np
+from bench_store import invented
 
-from tablecoach.core import backup  # noqa: E402
-from tablecoach.core.store import Store  # noqa: E402
+from tablecoach.core import backup
+from tablecoach.core.store import Store
 
 
 def _median(fn, repeat: int) -> float:  # type: ignore[no-untyped-def]

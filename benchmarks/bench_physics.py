@@ -34,7 +34,7 @@ from tablecoach.core.physics.stick import stick_hit
 from tablecoach.core.table import builtin_table
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))  # the checkout, for tests/
-from tests.core.physics.reference_integrator import integrate  # noqa: E402  (after the path)
+from tests.core.physics.reference_integrator import integrate
 
 T = builtin_table("9ft")
 

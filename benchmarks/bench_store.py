@@ -20,12 +20,12 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
-import numpy as np  # noqa: E402
+import numpy as np
 
-from tablecoach.core.records import Attempt, ShotRecord  # noqa: E402
-from tablecoach.core.stats.read import read_frame  # noqa: E402
-from tablecoach.core.store import Store  # noqa: E402
-from tablecoach.core.store.query import AttemptQuery as Q  # noqa: E402
+from tablecoach.core.records import Attempt, ShotRecord
+from tablecoach.core.stats.read import read_frame
+from tablecoach.core.store import Store
+from tablecoach.core.store.query import AttemptQuery as Q
 
 FAMILIES = [
     ShotRecord("cue", ("right",), (1.5, 1.0), None, None, (3.0, 2.0), "one-rail-kick"),

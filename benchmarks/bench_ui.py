@@ -107,14 +107,14 @@ async def keys(model: str, repeat: int) -> dict[str, list[float]]:
         app = build_app(player="bench", seed=2, model=model)
         async with app.run_test(size=(100, 30)) as pilot:
             frames: list[tuple[float, object]] = []
-            display = app._display
+            display = app._display  # noqa: SLF001  (a probe on Textual's display hook)
             probe = [lambda: None]
 
             def traced(screen, renderable) -> None:  # type: ignore[no-untyped-def]
                 display(screen, renderable)
                 frames.append((time.perf_counter(), probe[0]()))
 
-            app._display = traced  # type: ignore[method-assign]
+            app._display = traced  # type: ignore[method-assign]  # noqa: SLF001
 
             async def settle() -> None:
                 for _ in range(3):

@@ -56,7 +56,7 @@ def _progress() -> Any:
 
 def run(args: argparse.Namespace) -> int:
     from ..core.calibration.params import CalibrationError
-    from ..core.calibration.report import head, stroke_sentences, table_sentences
+    from ..core.calibration.report import head, sentences, stroke_sentences, table_sentences
     from ..core.calibration.use import calibrate_from_store
     from ..core.store import Store
     from ..paths import db_path
@@ -75,8 +75,8 @@ def run(args: argparse.Namespace) -> int:
     if args.json:
         out: dict[str, Any] = cals[0].as_dict() if len(cals) == 1 else {}
         out["saved"] = saved
-        out["sentences"] = cals[0].sentences(table) if len(cals) == 1 else []
-        out["players"] = {c.player: {**c.as_dict(), "sentences": c.sentences(table)} for c in cals}
+        out["sentences"] = sentences(cals[0], table) if len(cals) == 1 else []
+        out["players"] = {c.player: {**c.as_dict(), "sentences": sentences(c, table)} for c in cals}
         json.dump(out, sys.stdout, indent=2, sort_keys=True)
         sys.stdout.write("\n")
         return 0

@@ -145,7 +145,7 @@ def read_backup(lines: Iterator[str], source: str) -> dict[str, _Section]:
     def fail(msg: str) -> BackupError:
         return BackupError(f"{source}, line {n}: {msg}")
 
-    for n, raw in enumerate(lines, start=1):  # noqa: B007 - n is read by fail()
+    for n, raw in enumerate(lines, start=1):
         if not raw.strip():
             continue
         if ended:

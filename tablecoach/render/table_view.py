@@ -9,7 +9,7 @@ the left rail (y = 0) runs along the top, as seen by a player standing at the he
 from __future__ import annotations
 
 import math
-from collections.abc import Iterable, Sequence
+from collections.abc import Callable, Iterable, Sequence
 from dataclasses import dataclass, field
 
 from rich.console import Console, ConsoleOptions, RenderResult
@@ -257,13 +257,14 @@ class TableView:
             else:
                 put(right + 1, round(oy + rd * rows), g.aim["foot"], "aim")
         # balls last
-        for p, ch, style in (
+        balls: tuple[tuple[Point | None, str, str], ...] = (
             (self.picture.target_ball, g.target, "target"),
             (self.picture.obj, g.obj, "obj"),
             (self.picture.cue, g.cue, "cue"),
-        ):
-            if p is not None:
-                c, r = cell(p)
+        )
+        for ball, ch, style in balls:
+            if ball is not None:
+                c, r = cell(ball)
                 put(c, r, ch, style)
         # convergence point or an arrow toward it
         cp = self.picture.convergence
@@ -298,8 +299,8 @@ class TableView:
     def _polyline(
         self,
         pts: Sequence[Point],
-        cell,  # type: ignore[no-untyped-def]
-        put,  # type: ignore[no-untyped-def]
+        cell: Callable[[Point], tuple[int, int]],
+        put: Callable[..., None],
         ch: str,
         style: str,
         over: bool,
@@ -356,8 +357,9 @@ def legend_text(ascii_only: bool = False, width: int | None = None) -> Text:
 def picture_for_aim(table, aim, conv=None) -> Picture:  # type: ignore[no-untyped-def]
     """A Picture of a solved aim (core.shots.Aim) and its convergence (core.shots.Convergence)."""
 
-    def d(p):  # type: ignore[no-untyped-def]
-        return table.to_diamonds(*p)
+    def d(p: Point) -> Point:
+        x, y = table.to_diamonds(*p)
+        return (float(x), float(y))
 
     s = aim.setup
     contacts = []

@@ -35,7 +35,7 @@ def table_check_setups(table: TableSpec, model: str = "ideal") -> list[Any]:
     Each has a clean path on ``table`` under ``model`` (aims.solve); shots that do not
     fit this table are left out, and a CalibrationError says so if fewer than 5 remain.
     """
-    from ..drills import Dealt  # noqa: PLC0415  (drills imports the shot engine; keep it lazy)
+    from ..drills import Dealt
 
     out: list[Any] = []
     for k, (fam, cue, obj, tb, preset) in enumerate(TABLE_CHECK):

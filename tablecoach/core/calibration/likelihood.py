@@ -59,25 +59,25 @@ def censored_window(m: np.ndarray, w: np.ndarray, sd: np.ndarray | float) -> np.
     player's scatter sd (all metres): P(m) = Phi((w - m)/sd) - Phi((-w - m)/sd) and the residual
     sign(m) sqrt(2 (log P(0) - log P(m))). Zero at m = 0, smooth through it, and growing like
     (|m| - w)/sd far outside the window."""
-    from scipy.special import log_ndtr  # type: ignore[import-untyped]  # noqa: PLC0415
+    from scipy.special import log_ndtr  # type: ignore[import-untyped]
 
     def logp(x: np.ndarray) -> np.ndarray:
         a = (w - x) / sd
         b = (-w - x) / sd
         la, lb = log_ndtr(a), log_ndtr(b)
-        return la + np.log1p(-np.exp(np.minimum(lb - la, -1e-300)))
+        return np.asarray(la + np.log1p(-np.exp(np.minimum(lb - la, -1e-300))), dtype=float)
 
     am = np.abs(m)
     d = np.maximum(logp(np.zeros_like(am)) - logp(am), 0.0)
-    return np.sign(m) * np.sqrt(2.0 * d)
+    return np.asarray(np.sign(m) * np.sqrt(2.0 * d), dtype=float)
 
 
 def censored_above(x: np.ndarray, sd: float) -> np.ndarray:
     """Residual of "the true value is at least 0", the model's value being x with scatter sd:
     sqrt(-2 log Phi(x / sd)); near 0 far above, growing like -x/sd far below."""
-    from scipy.special import log_ndtr  # noqa: PLC0415
+    from scipy.special import log_ndtr
 
-    return np.sqrt(np.maximum(-2.0 * log_ndtr(x / sd), 0.0))
+    return np.asarray(np.sqrt(np.maximum(-2.0 * log_ndtr(x / sd), 0.0)), dtype=float)
 
 
 def landing_noise(ev: Evidence, out: Outcomes) -> float:
@@ -160,7 +160,7 @@ def robust_loss(n_data: int):  # type: ignore[no-untyped-def]
 
 def cauchy_weights(r: np.ndarray) -> np.ndarray:
     """rho'(r^2) of the Cauchy loss: each residual's weight at the optimum."""
-    return 1.0 / (1.0 + r * r / CAUCHY_C**2)
+    return np.asarray(1.0 / (1.0 + r * r / CAUCHY_C**2), dtype=float)
 
 
 def rms(r: np.ndarray) -> float:

@@ -149,7 +149,7 @@ def _name(key: str) -> str:
 def _words_table(cal: Calibration, table: TableSpec | None) -> TableSpec | None:
     """The calibrated table to say lengths of travel on, or None when it is not known."""
     if table is None:
-        from ..table import builtin_table  # noqa: PLC0415
+        from ..table import builtin_table
 
         try:
             table = builtin_table(cal.table)

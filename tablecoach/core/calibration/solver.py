@@ -84,7 +84,7 @@ class Problem:
         self.evaluations = 0
 
     def theta(self, u: np.ndarray) -> np.ndarray:
-        return self.centre + self.sd * u
+        return np.asarray(self.centre + self.sd * u, dtype=float)
 
     def table_at(self, u: np.ndarray) -> TableSpec:
         th = self.theta(u)
@@ -93,7 +93,7 @@ class Problem:
     def row_speeds(self, u: np.ndarray) -> np.ndarray:
         th = self.theta(u)
         factor = np.exp(th[N_T:] - self.book)
-        return self.ev.logged * factor[self.ev.stroke]
+        return np.asarray(self.ev.logged * factor[self.ev.stroke], dtype=float)
 
     def outcomes(self, u: np.ndarray, speed_shifts: Sequence[float] = (0.0,)) -> list[Outcomes]:
         """The model's outcomes at u, once for each shift of every speed (prior sd), all in
@@ -178,7 +178,7 @@ def _inner(prob: Problem, lin: Linear, free: np.ndarray, radius: float) -> np.nd
     prior sd round the linearisation point, within the bounds), by scipy's least_squares:
     first with plain squares (one basin, from the linearisation point), then with the Cauchy
     loss from there."""
-    from scipy.optimize import least_squares  # type: ignore[import-untyped]  # noqa: PLC0415
+    from scipy.optimize import least_squares  # type: ignore[import-untyped]
 
     u_c = lin.u
     nd = 2 * len(prob.ev)

@@ -92,7 +92,7 @@ def resolve_table(
 ) -> tuple[TableSpec, str]:
     """For the aim and predict commands: the table to use and its status line. ``store`` is an
     open Store; with None, the built-in table and "not calibrated yet"."""
-    from ..table import DEFAULT_TABLE, builtin_table  # noqa: PLC0415
+    from ..table import DEFAULT_TABLE, builtin_table
 
     name = table_name or DEFAULT_TABLE
     if store is None:
@@ -124,7 +124,7 @@ def calibrate_from_store(
     Without a player, the table's cloth and cushion come from everyone's attempts on it and
     each player's strokes from their own; with one, from that player's attempts alone. One
     CalibrationError line when there is nothing to fit."""
-    from .fit import fit_table  # noqa: PLC0415  (the fit loads scipy and the physics)
+    from .fit import fit_table
 
     table = store.get_table(table_name)
     attempts = store.attempts(AttemptQuery(player=player, table=table_name)) if player else None

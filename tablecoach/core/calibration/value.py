@@ -139,12 +139,6 @@ class Calibration:
         """``calibrated from N attempts``."""
         return f"calibrated from {self.attempts} attempt{'s' if self.attempts != 1 else ''}"
 
-    def sentences(self, table: TableSpec | None = None) -> list[str]:
-        """The calibration in a player's words (report.sentences)."""
-        from .report import sentences  # noqa: PLC0415
-
-        return sentences(self, table)
-
     # ----- storage -----------------------------------------------------------------------------
     def as_dict(self) -> dict[str, Any]:
         """Plain JSON values for Store.save_calibration (read back with from_dict)."""

@@ -90,9 +90,7 @@ def _create(path: Path) -> None:
     try:
         conn = sqlite3.connect(str(tmp), isolation_level=None)
         try:
-            fresh = Connection(conn, tmp)
-            fresh._checked = True  # nothing in it to check
-            fresh._migrate()
+            Connection(conn, tmp).build_schema()
         finally:
             conn.close()
         with tmp.open("rb") as fh:
@@ -228,6 +226,11 @@ class Connection:
         if self._inspect()[1] < SCHEMA_VERSION:
             self.check()  # a migration writes: never into a damaged file
             self._migrate()
+
+    def build_schema(self) -> None:
+        """Build the schema in a brand-new file (nothing in it to check first)."""
+        self._checked = True
+        self._migrate()
 
     def _migrate(self) -> None:
         """Create the schema or bring it up to date, in one transaction (re-checked inside it,

@@ -242,7 +242,8 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
         self.error = ""
         pick = self.session.pick
         assert pick is not None
-        known = self.solved.get(self._key())
+        key = self._key()
+        known = self.solved.get(key) if key is not None else None
         if known is not None:  # shown before in this session (undo, or speeds cycled round)
             self.aim, self.conv, self.model_note = known
             self._refresh()
@@ -410,7 +411,7 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
         self.app.push_screen(screen)
 
     def action_setup(self) -> None:
-        self.app.action_open_setup()  # type: ignore[attr-defined]
+        self.app.action_open_setup()
 
     def action_help(self) -> None:
         from .help import HelpScreen
@@ -418,4 +419,4 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
         self.app.push_screen(HelpScreen())
 
     def action_quit_session(self) -> None:
-        self.app.action_summary()  # type: ignore[attr-defined]
+        self.app.action_summary()

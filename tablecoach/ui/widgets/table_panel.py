@@ -52,7 +52,7 @@ class TablePanel(Widget):
     TablePanel { height: 1fr; }
     """
 
-    def __init__(self, ascii_only: bool = False, id: str | None = None) -> None:  # noqa: A002
+    def __init__(self, ascii_only: bool = False, id: str | None = None) -> None:
         super().__init__(id=id)
         self.ascii_only = ascii_only
         self._picture = Picture()

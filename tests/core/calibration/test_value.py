@@ -10,6 +10,7 @@ import pytest
 from tablecoach.core import shots, strokes
 from tablecoach.core.calibration import params
 from tablecoach.core.calibration.params import CalibrationError
+from tablecoach.core.calibration.report import sentences
 from tablecoach.core.calibration.use import speed_for, stroke_for
 from tablecoach.core.calibration.value import Calibration, Estimate, Shift, StaleCalibration
 
@@ -92,7 +93,7 @@ def test_apply_and_strokes() -> None:
 
 def test_sentences_speak_a_players_words() -> None:
     cal = calibration()
-    text = cal.sentences()
+    text = sentences(cal)
     assert text[0].startswith("Calibrated from 42 attempts (30 landings, 12 hits)")
     assert "Three-rail kicks at medium land 0.4 diamond longer here than on the default table." in (
         text
@@ -131,10 +132,10 @@ def test_sentences_speak_a_players_words() -> None:
             for e in cal.params
         ),
     )
-    assert any("livelier" in t for t in livelier.sentences())
+    assert any("livelier" in t for t in sentences(livelier))
     # a table the calibration cannot be said on: no lengths, the rest unchanged
     other = replace(cal, table="garage")
-    assert any(t.startswith("Your medium is 2.70 m/s") for t in other.sentences())
+    assert any(t.startswith("Your medium is 2.70 m/s") for t in sentences(other))
 
 
 def test_prior_sd_reads_the_published_ranges() -> None:
