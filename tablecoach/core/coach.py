@@ -112,21 +112,15 @@ def zone_of_attempt(a: Attempt) -> Zone:
 # ----- Beta posteriors ------------------------------------------------------------------------
 
 
-def beta_quantile(a: float, b: float, q: float, grid: int = 2001) -> float:
-    """The q-quantile of Beta(a, b), by integrating the density on a fine grid.
-
-    The density x^(a-1) (1-x)^(b-1) / B(a, b) is the standard Beta law; the grid uses the
-    midpoints of ``grid`` equal cells, accurate to about 1e-3 for a, b >= 0.5 (checked against
-    scipy.stats.beta in the tests).
-    """
+def beta_quantile(a: float, b: float, q: float) -> float:
+    """The q-quantile of Beta(a, b): scipy.special.betaincinv, the inverse of the regularised
+    incomplete beta function (imported here only: nothing on the practice screen's start needs
+    an interval)."""
     if not (0.0 < q < 1.0):
         raise ValueError(f"quantile {q} must lie strictly between 0 and 1")
-    x = (np.arange(grid) + 0.5) / grid
-    logpdf = (a - 1.0) * np.log(x) + (b - 1.0) * np.log1p(-x)
-    pdf = np.exp(logpdf - logpdf.max())
-    cdf = np.cumsum(pdf)
-    cdf /= cdf[-1]
-    return float(np.interp(q, cdf, x))
+    from scipy.special import betaincinv  # type: ignore[import-untyped]
+
+    return float(betaincinv(a, b, q))
 
 
 @dataclass(frozen=True, slots=True)
@@ -134,7 +128,8 @@ class ZoneStats:
     """What the coach knows about one zone.
 
     ``alpha``/``beta`` are the Beta posterior's parameters, ``mean`` its mean, ``low``/``high``
-    the central ``INTERVAL`` interval, ``family_rate`` the rate the prior was shrunk toward.
+    (computed when asked) the central ``INTERVAL`` interval, ``family_rate`` the rate the prior
+    was shrunk toward.
     ``bias`` is the mean landing error in diamonds (positive: long, the ball landed further
     along its path than the model said for the aim used; None when no landing could be
     compared), ``bias_n`` how many landings it averages.
@@ -145,11 +140,19 @@ class ZoneStats:
     alpha: float
     beta: float
     mean: float
-    low: float
-    high: float
     family_rate: float
     bias: float | None = None
     bias_n: int = 0
+
+    @property
+    def low(self) -> float:
+        """The lower end of the central INTERVAL interval of the posterior."""
+        return beta_quantile(self.alpha, self.beta, (1.0 - INTERVAL) / 2.0)
+
+    @property
+    def high(self) -> float:
+        """The upper end of the central INTERVAL interval of the posterior."""
+        return beta_quantile(self.alpha, self.beta, (1.0 + INTERVAL) / 2.0)
 
     @property
     def record(self) -> str:
@@ -192,9 +195,7 @@ def stats_for(
 ) -> ZoneStats:
     """A ZoneStats from counts, shrunk toward ``family_rate``."""
     a, b = posterior(made, tried, family_rate)
-    lo = beta_quantile(a, b, (1.0 - INTERVAL) / 2.0)
-    hi = beta_quantile(a, b, (1.0 + INTERVAL) / 2.0)
-    return ZoneStats(made, tried, a, b, a / (a + b), lo, hi, family_rate, bias, bias_n)
+    return ZoneStats(made, tried, a, b, a / (a + b), family_rate, bias, bias_n)
 
 
 LandingError = Callable[[Attempt], float | None]

@@ -36,15 +36,6 @@ def shown_reading(table: TableSpec, aim: Aim) -> float:
     return round(table.along_to_diamonds(aim.rail, aim.reading), 2)
 
 
-def zone_label(zone: Any) -> str:
-    """A zone (the coach's Zone, a string or None) as the short label stored with an attempt."""
-    if zone is None:
-        return ""
-    if isinstance(zone, str):
-        return zone
-    return str(getattr(zone, "label", zone))
-
-
 @dataclass(frozen=True, slots=True)
 class Pick:
     """One setup to shoot: the dealt setup and stroke, its zone and why it was picked."""
@@ -240,7 +231,7 @@ class Session:
         """The player's landing bias in the zone of this setup at this stroke, as advice ("you
         land 0.3 long here (6 landings): aim to land 0.3 shorter"); "" with too few landings.
         Slow under the physical model: call it from a worker."""
-        label = zone_label(zone_of(shots.record_of(self.table, setup), stroke.speed))
+        label = zone_of(shots.record_of(self.table, setup), stroke.speed).label
         seen = [*self.earlier, *self.logged]
         got = feedback.zone_bias(self.table, seen, label, self.model, self.calibration)
         return "" if got is None else feedback.bias_words(*got)
@@ -291,7 +282,7 @@ class Session:
             model=aim.model,
             drill=drill_name(self.drill),
             note=note,
-            zone=zone_label(zone_of(shot, aim.stroke.speed)),  # as played: speed moves it
+            zone=zone_of(shot, aim.stroke.speed).label,  # as played: speed moves it
             miss_kind=miss_kind,  # type: ignore[arg-type]
             session=self.id,
         )

@@ -12,7 +12,7 @@ m = T.to_metres
 
 
 def test_reading_is_over_the_sights_not_at_the_contact():
-    # PHYSICS.md section 1 (WPA set-back 93.7 mm): the reading is where the stick line crosses
+    # docs/model.md (WPA set-back 93.7 mm): the reading is where the stick line crosses
     # the line of sights, beyond the cushion contact; the two differ for an angled line.
     s = shots.make_setup(T, shots.preset("one-rail-kick"), m(1, 1), target_ball=m(5, 1))
     aim = ideal.solve(T, s)

@@ -1,4 +1,4 @@
-"""Table model against the WPA Equipment Specifications (PHYSICS.md, section 1)."""
+"""Table model against the WPA Equipment Specifications (docs/model.md, section 1)."""
 
 import math
 
@@ -54,14 +54,14 @@ def test_sight_spacing_is_an_eighth_of_the_length_and_setback_93_7_mm():
 
 def test_cushion_contact_angle_from_nose_height():
     # WPA nose height 63.5 % of the ball diameter -> sin(theta) = (h - R)/R = 0.27
-    # (Mathavan, Jackson and Parkin 2010 contact geometry; PHYSICS.md section 3).
+    # (Mathavan, Jackson and Parkin 2010 contact geometry; docs/model.md).
     t = builtin_table("9ft")
     assert t.nose_height == pytest.approx(0.635 * 0.05715)
     assert math.sin(t.contact_angle) == pytest.approx(0.27, abs=1e-9)
 
 
 def test_reflection_lines_sit_one_radius_inside_the_noses():
-    # Derived in PHYSICS.md section 1: ball centres reflect about a line R inside the nose.
+    # Derived in docs/model.md: ball centres reflect about a line R inside the nose.
     t = builtin_table("9ft")
     r = t.ball_radius
     assert t.reflection_line("head") == pytest.approx(r)

@@ -14,7 +14,7 @@ from .. import shots
 from ..aim import ideal as ideal_aim
 from ..aim import sights
 from ..shots import RailPoint, Trace
-from ..table import RAILS, TableSpec
+from ..table import PERIMETER_BASE, PERIMETER_SENSE, RAILS, TableSpec
 from .evidence import Evidence, gather
 
 
@@ -22,12 +22,10 @@ def perimeter_positions(table: TableSpec, codes: np.ndarray, at: np.ndarray) -> 
     """shots.perimeter_position over arrays: rail codes (RAILS order; <0 gives nan) and metres
     along each rail -> diamonds round the table (left 0-8, foot 8-12, right 12-20, head
     20-24)."""
-    out = np.full(codes.shape, np.nan)
     along = np.where(codes >= 2, at / table.diamond, at / table.diamond_across)
-    out = np.where(codes == RAILS.index("left"), along, out)
-    out = np.where(codes == RAILS.index("foot"), 8.0 + along, out)
-    out = np.where(codes == RAILS.index("right"), 20.0 - along, out)
-    return np.where(codes == RAILS.index("head"), 24.0 - along, out)
+    k = np.maximum(codes, 0)
+    walk = np.asarray(PERIMETER_BASE)[k] + np.asarray(PERIMETER_SENSE)[k] * along
+    return np.asarray(np.where(codes >= 0, walk, np.nan), dtype=float)
 
 
 def wrap(d: np.ndarray) -> np.ndarray:
@@ -165,7 +163,7 @@ def travel_sign(table: TableSpec, trace: Trace, start: tuple[float, float], n_ra
     if abs(along) < 1e-9:
         return 0.0
     s = 1.0 if along > 0 else -1.0
-    return s if land.rail in ("left", "foot") else -s
+    return s * PERIMETER_SENSE[RAILS.index(land.rail)]
 
 
 def ideal_sign(table: TableSpec, setup: shots.Setup, reading: float) -> float:

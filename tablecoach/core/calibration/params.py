@@ -37,7 +37,7 @@ PARAM_BOUNDS: dict[str, tuple[float, float]] = {
     "cushion.friction": (0.0, 0.4),
 }
 """Hard bounds of each fitted parameter: the ranges table.py validates custom tables against
-(cloth ranges from Alciatore's typical-parameter pages, PHYSICS.md section 2); an energetic
+(cloth ranges from Alciatore's typical-parameter pages, docs/model.md); an energetic
 restitution cannot exceed 1."""
 
 RESTITUTION_PRIOR_SD = 0.05
@@ -56,7 +56,7 @@ PRIOR_SD: dict[str, float] = {
     "cushion.friction": 0.4 / 4.0,
 }
 """Prior standard deviations. Sliding friction 0.15-0.4 and rolling resistance 0.005-0.015
-are Alciatore's published ranges (PHYSICS.md 2) read as +-2 sd; cushion restitution is
+are Alciatore's published ranges (docs/model.md) read as +-2 sd; cushion restitution is
 RESTITUTION_PRIOR_SD (a judgement, see there); cushion friction has no published range in the
 reference sheet, so the validation range 0-0.4 around Mathavan et al.'s 0.14 is used (a wide,
 weak prior)."""

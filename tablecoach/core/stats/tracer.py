@@ -1,7 +1,7 @@
 """The ideal ball's landing for many aim readings at once (a vectorised ray walk round the walls).
 
-THE ONE COPY of the ray-to-wall crossing in the stats: to be replaced by the shared ray-box exit
-of core/geometry.py when that lands.
+The crossing of each wall is geometry.box_exits (the one ray-box exit of the core); the walk
+round the perimeter is table.PERIMETER_BASE and PERIMETER_SENSE.
 """
 
 from __future__ import annotations
@@ -10,7 +10,8 @@ from collections.abc import Sequence
 
 import numpy as np
 
-from ..table import TableSpec
+from ..geometry import box_exits
+from ..table import PERIMETER_BASE, PERIMETER_SENSE, TableSpec
 
 
 def ideal_landings(
@@ -31,7 +32,6 @@ def ideal_landings(
     rails, and the sense of travel round the perimeter (+1 or -1) at the landing.
     """
     n = len(readings)
-    L, W, r = spec.length, spec.width, spec.ball_radius
     p = np.empty((n, 2))
     p[:, 0] = starts[:, 0] * spec.diamond
     p[:, 1] = starts[:, 1] * spec.diamond_across
@@ -44,42 +44,26 @@ def ideal_landings(
         sight[:, 1] = readings * spec.diamond_across
     d = sight - p
     d /= np.maximum(np.hypot(d[:, 0], d[:, 1]), 1e-12)[:, None]
-    xmin, xmax, ymin, ymax = r, L - r, r, W - r
+    box = spec.ball_box()
+    flip = np.array([[-1.0, 1.0], [1.0, -1.0]])
     code = np.zeros(n, dtype=np.int64)
     along = np.zeros(n)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        for _ in range(len(rails) + 1):
-            tx = np.where(
-                d[:, 0] > 1e-15,
-                (xmax - p[:, 0]) / d[:, 0],
-                np.where(d[:, 0] < -1e-15, (xmin - p[:, 0]) / d[:, 0], np.inf),
-            )
-            ty = np.where(
-                d[:, 1] > 1e-15,
-                (ymax - p[:, 1]) / d[:, 1],
-                np.where(d[:, 1] < -1e-15, (ymin - p[:, 1]) / d[:, 1], np.inf),
-            )
-            use_x = tx <= ty
-            t = np.maximum(np.where(use_x, tx, ty), 0.0)
-            p = p + t[:, None] * d
-            code = np.where(use_x, np.where(d[:, 0] > 0, 1, 0), np.where(d[:, 1] > 0, 3, 2))
-            along = np.where(use_x, p[:, 1], p[:, 0])
-            last_d = d.copy()
-            d = np.where(use_x[:, None], d * np.array([-1.0, 1.0]), d * np.array([1.0, -1.0]))
+    last_d = d
+    for _ in range(len(rails) + 1):
+        t, code = box_exits(p, d, box)
+        p = p + t[:, None] * d
+        along = np.where(code < 2, p[:, 1], p[:, 0])
+        last_d = d
+        d = d * flip[code >> 1]  # reflect: x sides flip dx, y sides flip dy
     along_d = np.where(code >= 2, along / spec.diamond, along / spec.diamond_across)
-    # sense round the perimeter: left +x, foot +y, right -x, head -y (perimeter_array)
-    tangent = np.select(
-        [code == 2, code == 1, code == 3],
-        [last_d[:, 0], last_d[:, 1], -last_d[:, 0]],
-        -last_d[:, 1],
-    )
-    sense = np.where(tangent >= 0.0, 1.0, -1.0)
+    # sense round the perimeter (table.PERIMETER_SENSE along the rail's own axis)
+    axis_d = np.where(code < 2, last_d[:, 1], last_d[:, 0])
+    sense = np.where(np.asarray(PERIMETER_SENSE)[code] * axis_d >= 0.0, 1.0, -1.0)
     return code, along_d, sense
 
 
 def perimeter_array(code: np.ndarray, at: np.ndarray) -> np.ndarray:
-    return np.select(
-        [code == 2, code == 1, code == 3],
-        [at, 8.0 + at, 12.0 + (8.0 - at)],
-        20.0 + (4.0 - at),
-    )
+    """Points ``at`` diamonds along rails ``code`` as diamonds round the table
+    (table.PERIMETER_BASE and PERIMETER_SENSE, vectorised)."""
+    base, sense = np.asarray(PERIMETER_BASE), np.asarray(PERIMETER_SENSE)
+    return np.asarray(base[code] + sense[code] * at, dtype=float)

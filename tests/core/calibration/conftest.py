@@ -25,7 +25,7 @@ TRUE = {
     "cushion.friction": 0.20,
 }
 """An invented table: sliding friction and rolling resistance inside Alciatore's ranges
-(0.15-0.4, 0.005-0.015; PHYSICS.md 2); an energetic restitution of 0.92, a deader cushion than
+(0.15-0.4, 0.005-0.015; docs/model.md); an energetic restitution of 0.92, a deader cushion than
 Mathavan et al.'s 0.98 (1.2 prior sd below it); cushion friction 0.20 against their 0.14."""
 TRUE_SPEED = {"slow": 1.35, "medium": 2.70, "fast": 3.20, "power": 4.0}
 """The invented player's strokes in m/s: slow and medium about 13 % harder than the book's

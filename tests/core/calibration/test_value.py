@@ -107,7 +107,7 @@ def test_sentences_speak_a_players_words() -> None:
         "2.70 +- 0.05 m/s."
     ]
     # physics: more rolling resistance, more sliding friction and a deader cushion than the
-    # default table (Alciatore, PHYSICS.md 2; Mathavan et al. 2010) take travel off a stroke
+    # default table (Alciatore, docs/model.md; Mathavan et al. 2010) take travel off a stroke
     assert here < strokes.travel_lengths(T9, 2.7)
     # restitution 0.92 against the default 0.98, further off than its sd 0.02: deader cushions,
     # and the posterior sd 0.02 against the prior's 0.05 (below half of it) is said
@@ -143,7 +143,7 @@ def test_prior_sd_reads_the_published_ranges() -> None:
 
     import numpy as np
 
-    # Alciatore's ranges (PHYSICS.md 2): sliding 0.15-0.4, rolling 0.005-0.015, as +-2 sd.
+    # Alciatore's ranges (docs/model.md): sliding 0.15-0.4, rolling 0.005-0.015, as +-2 sd.
     assert params.PRIOR_SD["cloth.mu_slide"] == pytest.approx(0.0625)
     assert params.PRIOR_SD["cloth.mu_roll"] == pytest.approx(0.0025)
     # Cushion restitution: the energetic coefficient of Mathavan, Jackson and Parkin (2010),

@@ -53,7 +53,7 @@ def _setup(t: TableSpec, name: str) -> shots.Setup:
 
 
 def _ideal_table() -> TableSpec:
-    # The ideal limit (PHYSICS.md 3): restitution 1, no cushion or cloth sliding friction,
+    # The ideal limit (docs/model.md): restitution 1, no cushion or cloth sliding friction,
     # no ball-ball friction, contact at the equator (nose at the ball's centre height).
     return builtin_table("9ft").with_params(
         cloth=Cloth(0.0, 0.01, 10.0),
@@ -64,7 +64,7 @@ def _ideal_table() -> TableSpec:
 
 @pytest.mark.parametrize("family", [k for k in SETUPS if not k.endswith("-b")])
 def test_ideal_limit_reproduces_the_mirror_aim(family: str) -> None:
-    # PHYSICS.md 3: with e = 1, no friction and contact at the equator the rebound is the
+    # docs/model.md: with e = 1, no friction and contact at the equator the rebound is the
     # law of reflection, so the physical aim is the mirror aim of ideal_aim.solve.
     t = _ideal_table()
     assert t.contact_angle == 0.0
@@ -129,7 +129,7 @@ def test_predict_with_the_solved_reading_lands_on_the_target(
 
 @pytest.mark.parametrize("e", RESTITUTIONS)
 def test_spin_and_speed_move_the_physical_aim_off_the_mirror(e: float) -> None:
-    # Common practice (PHYSICS.md 3): past one rail, speed and spin decide where the ball goes;
+    # Common practice (docs/model.md): past one rail, speed and spin decide where the ball goes;
     # on a real table the aim is not the mirror aim, and english moves it.
     t = _with_restitution(e)
     s = _setup(t, "three-rail-kick-b")
@@ -178,7 +178,7 @@ def test_a_firm_ball_comes_off_more_perpendicular_than_a_slow_one(e: float) -> N
 @pytest.mark.parametrize("e", RESTITUTIONS)
 @pytest.mark.parametrize("cue,target", [((3.0, 3.0), (3.0, 1.0)), ((2.0, 2.0), (3.0, 2.0))])
 def test_speed_effects_compound_with_every_rail(e: float, cue, target) -> None:
-    # Common practice (PHYSICS.md 3): speed effects compound with every rail. The same
+    # Common practice (docs/model.md): speed effects compound with every rail. The same
     # three-rail stroke at two speeds: its landing after three rails moves more than its
     # crossing after one rail.
     t = _with_restitution(e)
@@ -211,7 +211,7 @@ def test_miscue_limit_is_a_shot_error() -> None:
 
 
 def test_physical_convergence_has_a_spread_and_uses_the_shots_hook() -> None:
-    # DESIGN.md: under the physical model the aim lines nearly meet; the spread is not zero.
+    # docs/model.md: under the physical model the aim lines nearly meet; the spread is not zero.
     t = builtin_table("9ft")
     s = _setup(t, "one-rail-kick")
     starts = aims.neighbourhood(t, s.start, 0.4, 3)
@@ -221,7 +221,7 @@ def test_physical_convergence_has_a_spread_and_uses_the_shots_hook() -> None:
 
 
 def test_rotating_through_the_convergence_point_beats_a_parallel_shift() -> None:
-    # DESIGN.md (common practice, no source): shifting a trusted aim line parallel to a new
+    # Common practice, no source: shifting a trusted aim line parallel to a new
     # position is a common error; the line through the convergence point lands nearer.
     t = builtin_table("9ft")
     f = shots.preset("one-rail-kick")

@@ -19,7 +19,7 @@ def _line(cut_deg: float) -> np.ndarray:
 
 def test_without_friction_the_object_leaves_on_the_line_of_centres(model: BallModel) -> None:
     # Newton's rule for equal masses: object speed (1 + e)/2 v cos(cut) along the line of
-    # centres (PHYSICS.md 4 restitution; standard impact mechanics).
+    # centres (docs/model.md restitution; standard impact mechanics).
     m = replace(model, mu_ball=0.0)
     n = _line(30.0)
     vo, wo = strike(m, np.array([[1.2, 0.0]]), np.zeros((1, 3)), n)
@@ -28,7 +28,7 @@ def test_without_friction_the_object_leaves_on_the_line_of_centres(model: BallMo
 
 
 def test_half_ball_stun_throw_is_a_few_degrees(model: BallModel) -> None:
-    # Alciatore TP A.14 (PHYSICS.md 4): throw is largest for slow stun hits near half-ball, up
+    # Alciatore TP A.14 (docs/model.md): throw is largest for slow stun hits near half-ball, up
     # to about 4.8 degrees; it is toward the cue ball's sideways motion (cut-induced throw).
     n = _line(30.0)
     vo, _ = strike(model, np.array([[1.0, 0.0]]), np.zeros((1, 3)), n)

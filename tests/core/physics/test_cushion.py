@@ -23,7 +23,7 @@ def _rolling(v: np.ndarray, R: float) -> np.ndarray:
 def test_no_friction_at_the_equator_keeps_tangent_and_scales_normal_by_e(
     model: BallModel, name: str
 ) -> None:
-    # Limiting case (PHYSICS.md 3): e = restitution, no friction, contact at the equator:
+    # Limiting case (docs/model.md): e = restitution, no friction, contact at the equator:
     # vy' = -e vy (the energetic and Newton coefficients agree when nothing else acts),
     # the tangential velocity and all spins unchanged.
     m = replace(model, mu_w=0.0, mu_s=0.0, theta=0.0, e_cushion=0.8)
@@ -39,7 +39,7 @@ def test_no_friction_at_the_equator_keeps_tangent_and_scales_normal_by_e(
 
 @pytest.mark.parametrize("name", list(IMPACTS))
 def test_ideal_limit_is_the_law_of_reflection(model: BallModel, name: str) -> None:
-    # PHYSICS.md 3: e = 1, no friction, contact at the equator: angle in = angle out.
+    # docs/model.md: e = 1, no friction, contact at the equator: angle in = angle out.
     m = replace(model.with_cushion(name), mu_w=0.0, mu_s=0.0, theta=0.0, e_cushion=1.0)
     normal = np.array([[0.0, 1.0], [1.0, 0.0], [-1.0, 0.0], [0.0, -1.0]])
     v = np.array([[0.6, 1.1], [0.9, -0.4], [-1.3, 0.5], [0.2, -2.0]])

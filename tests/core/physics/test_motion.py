@@ -29,7 +29,7 @@ def _run_phase(m: BallModel, v: np.ndarray, w: np.ndarray, t: float):
 
 @pytest.mark.parametrize("v0", [0.5, 1.4, 3.0])
 def test_stun_start_rolls_after_2v_over_7mug_at_five_sevenths(model: BallModel, v0: float) -> None:
-    # PHYSICS.md 2 (Alciatore TP 4.1, after Coriolis 1835): a stun start rolls after
+    # docs/model.md (Alciatore TP 4.1, after Coriolis 1835): a stun start rolls after
     # t = 2 v0 / (7 mu_s g), at 5/7 v0, having slid d = 12 v0^2 / (49 mu_s g).
     m = model
     v = np.array([[v0, 0.0]])
@@ -45,7 +45,7 @@ def test_stun_start_rolls_after_2v_over_7mug_at_five_sevenths(model: BallModel, 
 
 
 def test_rolling_stops_after_v2_over_2_mur_g(model: BallModel) -> None:
-    # PHYSICS.md 2: rolling resistance a = -mu_r g; distance to stop v^2 / (2 mu_r g).
+    # docs/model.md: rolling resistance a = -mu_r g; distance to stop v^2 / (2 mu_r g).
     m = model
     v = np.array([[0.0, 1.2]])
     w = np.array([[-1.2 / m.radius, 0.0, 0.0]])

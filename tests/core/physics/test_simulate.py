@@ -75,7 +75,7 @@ def test_ball_contact_is_met_at_one_diameter(model: BallModel, table: TableSpec)
 def test_walls_are_met_on_the_box_one_radius_inside_the_noses(
     model: BallModel, table: TableSpec
 ) -> None:
-    # Contract (DESIGN.md): ball centres touch a cushion one radius inside the nose line.
+    # Contract (docs/coordinates.md): ball centres touch a cushion one radius inside the nose line.
     m = model
     v, w = stick_hit(m, np.array([[0.6, 0.8]]), 2.0)
     res = _run(m, table, np.array([[0.5, 0.3]]), v, w, rails=("right",))

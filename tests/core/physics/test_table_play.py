@@ -25,7 +25,7 @@ R = M.radius
 
 
 def _settled(v: np.ndarray, w: np.ndarray) -> np.ndarray:
-    """Velocity once the ball rolls again (PHYSICS.md 2, natural roll after sliding):
+    """Velocity once the ball rolls again (docs/model.md, natural roll after sliding):
     v = 5/7 (v0x + 2/5 R w0y, v0y - 2/5 R w0x)."""
     return np.stack(
         (5 / 7 * (v[:, 0] + 0.4 * R * w[:, 1]), 5 / 7 * (v[:, 1] - 0.4 * R * w[:, 0])), axis=1
@@ -57,7 +57,7 @@ def test_an_ordinary_three_length_stroke_is_in_the_published_fast_band() -> None
 
 
 def test_lengths_count_the_cushions() -> None:
-    # Open cloth, no cushion (PHYSICS.md 2, after Coriolis): a stun start slides
+    # Open cloth, no cushion (docs/model.md, after Coriolis): a stun start slides
     # 12 v^2 / (49 mu_s g) and rolls (5/7 v)^2 / (2 mu_r g). A stroke that stops before the far
     # cushion travels exactly that; one that reaches a cushion travels less than open cloth
     # would allow, because the cushion takes speed.
@@ -110,7 +110,7 @@ def test_a_perpendicular_rolling_hit_loses_about_half_its_speed() -> None:
 
 @pytest.mark.parametrize("angle", [30.0, 45.0, 60.0])
 def test_a_slow_rolling_ball_settles_a_little_wider_not_far_wider(angle: float) -> None:
-    # Common practice (and PHYSICS.md 3, kick mirrors): a rolling ball comes off a cushion
+    # Common practice (and docs/model.md, kick mirrors): a rolling ball comes off a cushion
     # somewhat wider than it came in (its topspin carries it along the rail), which is why the
     # mirror for a medium kick sits behind the groove; the old defaults (restitution 0.75 used
     # as the energetic coefficient) settled a 30-degree hit at 49 degrees. Here: wider, by
@@ -174,7 +174,7 @@ def test_stepped_cushion_agrees_with_the_fine_integration(e: float, mu_w: float)
 def test_a_medium_one_rail_kick_aims_at_a_mirror_between_groove_and_sights(
     cue: tuple[float, float], target: tuple[float, float], stroke: str
 ) -> None:
-    # Alciatore, kick-mirror FAQ (as quoted in PHYSICS.md 3), and J. Loy's kick pages: for
+    # Alciatore, kick-mirror FAQ (as quoted in docs/model.md), and J. Loy's kick pages: for
     # medium-speed (Alciatore's medium band, 0.89-1.9 m/s: our slow and lag strokes),
     # medium-distance one-rail kicks the mirror image taken about the cushion
     # works, with the mirror line between the groove (where ball centres run, R inside the
@@ -199,7 +199,7 @@ def test_a_medium_one_rail_kick_aims_at_a_mirror_between_groove_and_sights(
 
 
 def _open_cloth(v: np.ndarray, w: np.ndarray) -> np.ndarray:
-    """Distance (m) a ball travels on open cloth from (v, w) (PHYSICS.md 2: sliding at
+    """Distance (m) a ball travels on open cloth from (v, w) (docs/model.md: sliding at
     mu_s g until natural roll, then rolling at mu_r g), along its final roll."""
     u = np.stack((v[:, 0] - R * w[:, 1], v[:, 1] + R * w[:, 0]), axis=1)
     t_slide = 2.0 * np.hypot(*u.T) / (7.0 * M.mu_s * M.g)
