@@ -16,10 +16,11 @@ from typing import Any
 
 import numpy as np
 
+from . import strokes
 from .aim import ideal
 from .drill_packs import Drill, DrillError, DrillItem, Rect, load_drill
 from .placing import snap, spans
-from .shots import Aim, Family, Setup, ShotError, Stroke, make_setup
+from .shots import STROKE_LENGTHS, Aim, Family, Setup, ShotError, Stroke, make_setup
 from .table import TableError, TableSpec
 
 DEFAULT_DRILL = "mixed"
@@ -164,7 +165,7 @@ def _draw(
         si = int(rng.integers(len(item.speeds)))
         pocket = item.pockets[int(rng.integers(len(item.pockets)))] if item.pockets else None
         pts = {b: table.to_metres(*_point(table, rng, rs, drill.grid)) for b, rs in regions.items()}
-        stroke = Stroke(item.speeds[si], item.english, item.follow)
+        stroke = Stroke(item_speed(table, item, si), item.english, item.follow)
         try:
             for b, p in pts.items():
                 table.check_position(p[0], p[1], f"{b} ball")
@@ -219,6 +220,18 @@ def deal(
     if not blocked:
         slots = [slots[i] for i in rng.permutation(len(slots))]
     return [_draw(table, drill, k, rng) for k in slots]
+
+
+def item_speed(table: TableSpec, item: DrillItem, k: int) -> float:
+    """The m/s of an item's k-th speed on ``table``: a named stroke or lengths of travel are a
+    distance, so their m/s is this table's (strokes.book_strokes, strokes.stroke_speed); a
+    number of m/s is taken as written."""
+    label = item.speed_label(k)
+    if label in STROKE_LENGTHS:
+        return strokes.book_strokes(table)[label]
+    if label.endswith("L"):
+        return strokes.stroke_speed(table, float(label[:-1]))
+    return item.speeds[k]
 
 
 def deal_item(table: TableSpec, drill: Drill, k: int, rng: np.random.Generator) -> Dealt:

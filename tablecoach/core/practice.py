@@ -212,7 +212,7 @@ class Session:
         calibrated m/s for it when the table is calibrated, else the published preset."""
         i = SPEED_CYCLE.index(self.preset) if self.preset in SPEED_CYCLE else -1
         self.preset = SPEED_CYCLE[(i + 1) % len(SPEED_CYCLE)]
-        speed = shots.SPEED_PRESETS[self.preset]
+        speed = strokes.book_strokes(self.table)[self.preset]
         if self.calibration is not None:
             from .calibration.use import stroke_for  # heavy: loaded lazily
 

@@ -89,11 +89,11 @@ def landing_text(table: TableSpec, p: RailPoint | None) -> str:
 
 
 def speed_text(table: TableSpec, stroke: Stroke) -> str:
-    """Speed name, m/s off the tip and table lengths of roll on open cloth."""
+    """The named stroke, its lengths of travel on this table (cushions counted) and m/s."""
     lengths = travel_lengths(table, stroke.speed)
     return (
-        f"{speed_name(stroke.speed)}, {stroke.speed:.2f} m/s off the tip "
-        f"(rolls {lengths:.1f} table lengths)"
+        f"{speed_name(stroke.speed, table)}: {lengths:.1f} lengths of travel, "
+        f"{stroke.speed:.2f} m/s off the tip"
     )
 
 

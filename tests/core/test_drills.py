@@ -76,7 +76,9 @@ def test_every_pack_deals_clean_setups(name: str, table: str) -> None:
         # a clean ideal path exists and obeys the mirror law at each cushion
         aim = aims.solve(t, s, d.stroke, "ideal")
         _reflects(aim.path, s.family.rails)
-        assert d.stroke.speed in item.speeds
+        # a named stroke is a distance: its m/s is this table's (docs/model.md, strokes)
+        on_table = [drills.item_speed(t, item, k) for k in range(len(item.speeds))]
+        assert d.stroke.speed in on_table
         assert d.label.split(", ")[1] in item.names
 
 
@@ -255,3 +257,15 @@ def test_installed_layout_uses_packaged_packs(tmp_path: Path) -> None:
     where, names = out.stdout.split()
     assert Path(where) == site / "tablecoach" / "_drills"
     assert names.split(",") == BUILTIN
+
+
+def test_a_named_stroke_is_softer_on_a_shorter_table() -> None:
+    # Lengths of travel (docs/model.md): three lengths of a 7-ft table are less distance than
+    # three lengths of a 9-ft one, so "medium" there is a softer stroke; m/s given as a number
+    # stays as written.
+    pack = drills.builtin_drills()["mixed"]
+    item = pack.items[0]
+    k = item.names.index("medium")
+    assert drills.item_speed(BUILTIN_TABLES["7ft"], item, k) < drills.item_speed(
+        BUILTIN_TABLES["9ft"], item, k
+    )

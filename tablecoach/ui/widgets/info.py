@@ -9,6 +9,7 @@ from rich.text import Text
 from textual.widgets import Static
 
 from tablecoach.core import placing
+from tablecoach.core.aim import POWER_CAUTION as POWER_CAUTION_SPEED
 from tablecoach.core.practice import Pick, Stats, shown_reading
 from tablecoach.core.shots import Aim, Convergence, Stroke
 from tablecoach.core.strokes import speed_name, travel_lengths
@@ -18,7 +19,7 @@ from tablecoach.render import words as w
 from .bigtype import big
 
 POWER_CAUTION = (
-    "power speed: keep the laptop and onlookers off the rail and out of the balls' way; "
+    "a hard stroke: keep the laptop and onlookers off the rail and out of the balls' way; "
     "follow the room's rules on power shots"
 )
 
@@ -63,8 +64,8 @@ def headline(
         t.append("AIM ", style="bold")
         t.append(f" {reading} ", style="bold reverse")
         t.append(f" {aim.rail} rail sights\n", style="bold")
-    t.append(f"{speed_name(stroke.speed).upper()} ", style="bold")
-    t.append(f"{travel_lengths(table, stroke.speed):.1f} table lengths")
+    t.append(f"{speed_name(stroke.speed, table).upper()} ", style="bold")
+    t.append(f"{travel_lengths(table, stroke.speed):.1f} lengths of travel")
     t.append(f" {stroke.speed:.2f} m/s\n", style="dim")
     t.append(w.spin_text(stroke, aim), style="bold")
     return t
@@ -103,7 +104,7 @@ def card(
         parts.append(Text("working out the aim...", style="italic"))
     else:
         parts.append(headline(table, stroke, aim, large, ascii_only))
-    if stroke.speed >= 3.2:
+    if stroke.speed >= POWER_CAUTION_SPEED:
         parts.append(Text(POWER_CAUTION, style="yellow"))
     title = Text(setup.family.title or setup.family.name, style="bold")
     title.append(f": {w.target_text(setup)}", style="")
