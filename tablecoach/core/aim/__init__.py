@@ -1,4 +1,4 @@
-"""Aim models behind one interface: solve, solve_playable, predict, convergence, compare_shift.
+"""Aim models behind one interface: solve, playable, predict, convergence, shift comparisons.
 
 Two models, chosen by name (MODELS): ``"ideal"`` (mirror reflection, aim/ideal.py) and
 ``"physical"`` (the event simulation of core/physics, aim/physical.py, loaded on first use so
@@ -24,6 +24,7 @@ from ..shots import (
 from ..strokes import book_strokes, speed_name
 from ..table import TableSpec
 from . import ideal
+from .shift import ReferenceShift, shift_from_reference
 from .sights import direction_of, reading_of
 
 MODELS = ("ideal", "physical")
@@ -174,3 +175,27 @@ def compare_shift(
     pm = landing_distance(table, pl, sl) if pl else None
     rm = landing_distance(table, rl, sl) if rl else None
     return ShiftComparison(par, pl, rot, rl, new_aim.reading, sl, pm, rm)
+
+
+def shift(
+    table: TableSpec,
+    setup: Setup,
+    ref_start: Point,
+    ref_reading: float,
+    solved: Aim,
+    conv: Convergence,
+    stroke: Stroke | None = None,
+    model: str = "ideal",
+) -> ReferenceShift:
+    """A reference line (travelling ball's start, reading in metres on the first rail) moved
+    to ``setup``: shifted parallel, turned about ``conv``'s point, and ``solved``, each traced
+    under ``model`` with its closest approach to the target (aim/shift.py)."""
+    return shift_from_reference(
+        table,
+        setup,
+        ref_start,
+        ref_reading,
+        solved,
+        conv.point,
+        lambda r: predict(table, setup, r, stroke or solved.stroke, model),
+    )
