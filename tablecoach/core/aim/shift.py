@@ -16,7 +16,7 @@ from dataclasses import dataclass
 
 from ..geometry import Point, box_exit, unit
 from ..shots import Aim, RailPoint, Setup, ShotError, Trace
-from ..table import RAILS, TableSpec, axis_of
+from ..table import RAILS, RailName, TableSpec, axis_of
 from .sights import direction_of, reading_of
 
 
@@ -50,11 +50,10 @@ def rail_point(table: TableSpec, p: RailPoint) -> Point:
 
 
 def reference_direction(
-    table: TableSpec, setup: Setup, ref_start: Point, ref_reading: float
+    table: TableSpec, rail: RailName, ref_start: Point, ref_reading: float
 ) -> Point:
     """The reference line's direction, checked: its start on the table and its first cushion
-    the family's first rail. Raises ShotError (one line) otherwise."""
-    rail = setup.family.rails[0]
+    ``rail`` (the family's first rail). Raises ShotError (one line) otherwise."""
     table.check_position(ref_start[0], ref_start[1], "the reference start (--ref-start)")
     d = direction_of(table, ref_start, rail, ref_reading)
     _, code = box_exit(ref_start, d, table.ball_box())
@@ -129,7 +128,7 @@ def shift_from_reference(
     (the aim of ``setup``); ``trace`` follows a reading under the chosen model (it may raise
     ShotError: that line's miss is then None)."""
     rail = setup.family.rails[0]
-    ref_dir = reference_direction(table, setup, ref_start, ref_reading)
+    ref_dir = reference_direction(table, rail, ref_start, ref_reading)
     start = setup.start
     par = reading_of(table, start, ref_dir, rail)
     to_point = (point[0] - start[0], point[1] - start[1])
