@@ -69,3 +69,13 @@ class CalibrationDone(Message):
         self.calibration = calibration
         self.changes = tuple(changes)
         self.error = error
+
+
+class ShiftFound(Message):
+    """The player's reference line for this family moved to the setup on screen
+    (core/aim/shift.py's ReferenceShift); ``token`` names the setup it was for."""
+
+    def __init__(self, token: int, shift: Any) -> None:
+        super().__init__()
+        self.token = token
+        self.shift = shift

@@ -6,7 +6,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from .. import validate
-from ..records import utc_now
+from ..records import Attempt, utc_now
 from .connection import Connection
 from .errors import StoreError
 from .rows import check_name, iso_utc
@@ -38,6 +38,27 @@ class Reference:
     note: str = ""
     id: int | None = None
     when: str = ""
+
+
+def reference_of(attempt: Attempt) -> Reference:
+    """A logged hit's line as a reference: the travelling ball's start and the reading used."""
+    shot = attempt.shot
+    start = shot.object if shot.travel == "object" and shot.object is not None else shot.cue
+    return Reference(
+        player=attempt.player,
+        table=attempt.table,
+        family=shot.family,
+        travel=shot.travel,
+        rails=shot.rails,
+        start=start,
+        reading=attempt.aim_used,
+        speed=attempt.speed,
+        pocket=shot.pocket,
+        target=shot.target_ball,
+        english=attempt.english,
+        follow=attempt.follow,
+        note="kept after a hit",
+    )
 
 
 def check_reference(ref: Reference) -> None:

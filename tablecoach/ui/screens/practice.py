@@ -16,12 +16,14 @@ from tablecoach.core import aim as aims
 from tablecoach.core import shots
 from tablecoach.core.practice import REDRAWS, Session
 from tablecoach.core.shots import Aim, Convergence, Stroke
+from tablecoach.render.shift_view import shift_lines, with_shift
 
 from ..messages import AimSolved, ConvergenceFound, DealerRefreshed, SetupDealt
 from ..widgets.info import InfoCard, MessageLine, NotesPanel, SessionBar, card, notes, session_line
 from ..widgets.table_panel import TablePanel, draw, picture_of
 from .calibrate_offer import CalibrationOffer
 from .coach_keys import CoachKeys
+from .reference_keys import ReferenceKeys
 from .shot_keys import ShotKeys
 from .stroke_keys import StrokeKeys
 
@@ -33,7 +35,9 @@ SOLVING_SHOWN_AFTER = 0.08
 """Seconds an aim solve may take before the screen says it is working on it."""
 
 
-class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[None]):
+class PracticeScreen(
+    ShotKeys, StrokeKeys, CoachKeys, ReferenceKeys, CalibrationOffer, Screen[None]
+):
     """One session of practice. Every key is in the footer and in the command palette."""
 
     BINDINGS = [
@@ -47,6 +51,7 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
         Binding("e", "spin", "Spin"),
         Binding("b", "large", "Big", show=False),
         Binding("p", "pin", "Pin", show=False),
+        Binding("k", "keep_line", "Keep line", show=False),
         Binding("c", "calibrate", "Calibrate", show=False),
         Binding("v", "history", "History", show=False),
         Binding("t", "setup", "Setup", show=False),
@@ -66,6 +71,7 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
         ("spin", "Change spin", "Running, reverse english, follow, draw, centre; re-solves (e)"),
         ("large", "Large reading", "Show the aim reading in large type, or not (b)"),
         ("pin", "Pin this zone", "Keep practising this zone (p again to unpin)"),
+        ("keep_line", "Keep this line", "After a hit: its line becomes the family's reference (k)"),
         ("history", "History", "Streaks, rates and trends (v)"),
         (
             "table_check",
@@ -89,6 +95,8 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
         self.ascii_only = ascii_only
         self.aim: Aim | None = None
         self.conv: Convergence | None = None
+        self.shift: Any = None  # the family's reference line moved here (reference_keys.py)
+        self.shift_for = -1
         self.error = ""
         self.token = 0
         self.pinned = False
@@ -129,9 +137,10 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
             picture, lines = self.drawn
             panel.show(s.table, None, None, None, self._table_note(), lines, picture)
         else:
-            panel.show(
-                s.table, pick.setup if pick else None, self.aim, self.conv, self._table_note()
-            )
+            picture = picture_of(s.table, pick.setup if pick else None, self.aim, self.conv)
+            if self.shift is not None and self.aim is not None:
+                picture = with_shift(s.table, picture, self.shift)
+            panel.show(s.table, None, None, None, self._table_note(), None, picture)
         self.drawn = None
         # fixed-size panels: their text changes without a new layout of the screen
         self.query_one(InfoCard).update(
@@ -146,6 +155,9 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
                 self.large,
                 self.ascii_only,
                 self.bias_note[1] if self.bias_note[0] == self.token else "",
+                shift_lines(s.table, self.aim.setup, self.shift, self.ascii_only)
+                if self.shift is not None and self.aim is not None
+                else None,
             ),
             layout=False,
         )
@@ -184,6 +196,7 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
         self.token += 1
         self.aim = None
         self.conv = None
+        self.shift = None
         self.error = ""
         if self.ahead is not None:
             self._take_ahead()
@@ -239,6 +252,7 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
         self.token += 1
         self.aim = None
         self.conv = None
+        self.shift = None
         self.error = ""
         pick = self.session.pick
         assert pick is not None
@@ -377,6 +391,9 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
         self.conv = message.convergence
         self._remember()
         self._refresh()
+        if self.shift_for != message.token:
+            self.shift_for = message.token
+            self.start_shift(message.token, self.aim, self.conv)
 
     # ----- keys --------------------------------------------------------------------------------
     def _ready(self) -> Aim | None:

@@ -81,9 +81,11 @@ def card(
     large: bool = False,
     ascii_only: bool = False,
     bias: str = "",
+    shift: list[Text] | None = None,
 ) -> RenderableType:
     """The setup card: a warning first when the model has one, the reading and stroke in
-    large, then what the shot is, where the balls go, margin, landing and convergence."""
+    large, then what the shot is, where the balls go, margin, landing and convergence (or,
+    with a reference line for the family, ``shift``: that line slid, turned and solved)."""
     if pick is None:
         if error:
             return Text(error, style="bold red")
@@ -103,6 +105,11 @@ def card(
         parts.append(Text("working out the aim...", style="italic"))
     else:
         parts.append(headline(table, stroke, aim, large, ascii_only))
+        if shift:  # the reference line slid, turned about the point, and solved: up top
+            lines = Rows()
+            for i, said in enumerate(shift):
+                lines.add_row("Line" if i == 0 else "", said)
+            parts.append(lines)
     if stroke.speed >= 3.2:
         parts.append(Text(POWER_CAUTION, style="yellow"))
     title = Text(setup.family.title or setup.family.name, style="bold")
@@ -114,13 +121,14 @@ def card(
         grid.add_row("Place" if i == 0 else "", line)
     if aim is not None and not error:
         grid.add_row("Margin", w.margin_text(table, aim))
-        shift = w.placement_text(table, aim, placing.aim_shift(table, setup))
-        if shift:
-            grid.add_row("", Text(shift, style="dim"))
+        hint = w.placement_text(table, aim, placing.aim_shift(table, setup))
+        if hint and not shift:
+            grid.add_row("", Text(hint, style="dim"))
         grid.add_row("Lands", f"{w.landing_text(table, aim.landing)} (predicted)")
         if bias:
             grid.add_row("You", Text(bias, style="bold"))
-        grid.add_row("Conv.", w.convergence_text(table, conv) if conv else "working it out...")
+        if not shift:
+            grid.add_row("Conv.", w.convergence_text(table, conv) if conv else "working it out...")
         if aim.cut_angle is not None:
             grid.add_row("Cut", f"{math.degrees(aim.cut_angle):.0f} degrees on the object ball")
         grid.add_row("Contact", w.contact_text(table, aim))

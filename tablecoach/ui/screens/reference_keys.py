@@ -1,0 +1,81 @@
+"""The practice screen's reference lines: keep the line of a hit (k), and move the family's
+reference line to each new setup (parallel, turned about the convergence point, solved).
+
+A mixin of PracticeScreen: the store lookup and the three traces run in a worker.
+"""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING, Any
+
+from textual import work
+
+from tablecoach.core import aim as aims
+from tablecoach.core.shots import Aim, Convergence, ShotError
+from tablecoach.core.store.errors import StoreError
+from tablecoach.core.store.refs import reference_of
+from tablecoach.render import words as w
+
+from ..messages import ShiftFound
+
+
+class ReferenceKeys:
+    """k on the practice screen, and the reference line on the card (mixed into PracticeScreen)."""
+
+    session: Any
+    token: int
+    shift: Any
+
+    if TYPE_CHECKING:  # provided by PracticeScreen (and Screen); never defined here
+
+        def say(self, text: str, error: bool = False) -> None: ...
+        def post_message(self, message: Any) -> bool: ...
+        def _refresh(self) -> None: ...
+
+    def action_keep_line(self) -> None:
+        """Keep the line of the hit just logged as this family's reference on this table."""
+        logged = self.session.logged
+        if not logged or logged[-1].result != "hit":
+            self.say("k keeps the line of a hit: log a hit first (h), then k")
+            return
+        a = logged[-1]
+        try:
+            self.session.store.add_reference(reference_of(a))
+        except (StoreError, ValueError) as exc:
+            self.say(f"line not kept: {exc}", True)
+            return
+        self.say(
+            f"kept your {w.num(a.aim_used)} line as the {a.shot.family} reference (? explains)"
+        )
+
+    def start_shift(self, token: int, aim: Aim | None, conv: Convergence | None) -> None:
+        """Look for this family's reference and move it to the setup (in a worker)."""
+        if aim is not None and conv is not None:
+            self._shift_worker(token, aim, conv)
+
+    @work(thread=True, exclusive=True, group="shift")
+    def _shift_worker(self, token: int, aim: Aim, conv: Convergence) -> None:
+        s = self.session
+        fam = aim.setup.family
+        try:
+            ref = s.store.reference_for(
+                s.player, s.table.name, fam.travel, fam.rails, aim.setup.pocket
+            )
+        except StoreError:
+            return
+        if ref is None:
+            return
+        rail = fam.rails[0]
+        start = s.table.to_metres(*ref.start)
+        reading = s.table.along_to_metres(rail, ref.reading)
+        try:
+            moved = aims.shift(s.table, aim.setup, start, reading, aim, conv, aim.stroke, aim.model)
+        except (ShotError, ValueError):
+            return  # a reference that no longer fits this table: nothing drawn
+        self.post_message(ShiftFound(token, moved))
+
+    def on_shift_found(self, message: ShiftFound) -> None:
+        if message.token != self.token:
+            return
+        self.shift = message.shift
+        self._refresh()

@@ -1,0 +1,64 @@
+"""Reference lines on the practice screen: k keeps the line of a hit; the next setup of the
+family shows it slid parallel, turned about the convergence point, and the model's aim."""
+
+from __future__ import annotations
+
+from tablecoach import paths
+from tablecoach.core.store import Store
+from tablecoach.core.store.refs import Reference
+
+from .test_practice import SIZE, settle, stored, text_of
+
+
+def keep_kick_line() -> None:
+    """A one-rail kick reference for the test player, kept before the app starts."""
+    with Store.open(paths.db_path()) as s:
+        s.add_reference(
+            Reference("tester", "9ft", "one-rail-kick", "cue", ("right",), (2.0, 1.0), 3.8, 2.4)
+        )
+
+
+async def test_k_keeps_the_line_of_a_hit_and_the_next_setup_turns_it(make_app):
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("k")  # nothing logged yet: nothing kept
+        await settle(pilot)
+        assert app.store.references() == []
+        assert "log a hit first" in text_of(app, "#message")
+        await pilot.press("h")
+        await settle(pilot)
+        [hit] = stored(app)
+        await pilot.press("k")
+        await settle(pilot)
+        [ref] = app.store.references()
+        assert (ref.player, ref.table, ref.family, ref.travel) == (
+            "tester",
+            "9ft",
+            "one-rail-kick",
+            "cue",
+        )
+        assert ref.start == hit.shot.cue and ref.reading == hit.aim_used
+        assert "kept your" in text_of(app, "#message")
+        await pilot.press("n")  # the next one-rail kick: the kept line moved to it
+        await settle(pilot)
+        screen = app.screen
+        moved = screen.shift
+        assert moved is not None
+        # ideal model (docs/model.md): the line through the convergence point is the aim
+        assert abs(moved.rotated.reading - moved.solved.reading) < 1e-6
+        assert abs(moved.solved.reading - screen.aim.reading) < 1e-9
+        card = text_of(app, "#card")
+        assert "line slid" in card and "turned about" in card and "the model says" in card
+
+
+async def test_the_convergence_point_is_drawn_at_100x30(make_app):
+    keep_kick_line()
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        assert app.screen.shift is not None
+        svg = app.export_screenshot()
+        # the point's glyph and both moved lines' glyphs are on screen, not an arrow only
+        for glyph in ("\u271a", "\u2225", "\u2218"):
+            assert glyph in svg or f"&#{ord(glyph)};" in svg, glyph
