@@ -40,6 +40,8 @@ class Glyphs:
     aim: dict[str, str] = field(default_factory=dict)
     parallel: str = "∥"  # a reference line slid parallel (render/shift_view.py)
     turned: str = "∘"  # the line turned about the convergence point
+    softer: str = "╌"  # the same reading at the next softer named stroke
+    firmer: str = "┅"  # and at the next firmer one
 
 
 UNICODE = Glyphs(
@@ -76,6 +78,8 @@ ASCII = Glyphs(
     aim={"left": "v", "right": "^", "head": ">", "foot": "<"},
     parallel="'",
     turned="~",
+    softer="-",
+    firmer="#",
 )
 
 STYLES = {
@@ -94,6 +98,8 @@ STYLES = {
     "aim": Style(color="bright_cyan", bold=True),
     "parallel": Style(color="bright_red"),
     "turned": Style(color="bright_cyan"),
+    "softer": Style(color="bright_blue"),
+    "firmer": Style(color="bright_magenta"),
     "heat": Style(),
 }
 
@@ -116,6 +122,8 @@ class Picture:
     parallel: Sequence[Point] = ()  # a reference line slid parallel to this start, its path
     turned: Sequence[Point] = ()  # the line turned about the convergence point, its path
     zoom_out: bool = False  # draw smaller rather than leave the convergence point off
+    softer: Sequence[Point] = ()  # the aim's reading at the next softer named stroke
+    firmer: Sequence[Point] = ()  # and at the next firmer one
 
 
 POCKET_DIAMONDS: dict[str, Point] = {
@@ -268,6 +276,8 @@ class TableView:
         pic = self.picture
         self._polyline(pic.parallel, cell, put, g.parallel, "parallel", over=True, inside=True)
         self._polyline(pic.turned, cell, put, g.turned, "turned", over=True, inside=True)
+        self._polyline(pic.softer, cell, put, g.softer, "softer", over=True, inside=True)
+        self._polyline(pic.firmer, cell, put, g.firmer, "firmer", over=True, inside=True)
         self._polyline(self.picture.path, cell, put, g.path, "path", over=True, inside=True)
         for p in self.picture.contacts:
             c, r = cell(p)

@@ -79,3 +79,13 @@ class ShiftFound(Message):
         super().__init__()
         self.token = token
         self.shift = shift
+
+
+class SpeedsFound(Message):
+    """The shown reading traced at the next softer and firmer named strokes
+    (core.aim.speed_neighbours); ``token`` names the setup it was for."""
+
+    def __init__(self, token: int, paths: Any) -> None:
+        super().__init__()
+        self.token = token
+        self.paths = paths

@@ -62,3 +62,18 @@ async def test_the_convergence_point_is_drawn_at_100x30(make_app):
         # the point's glyph and both moved lines' glyphs are on screen, not an arrow only
         for glyph in ("\u271a", "\u2225", "\u2218"):
             assert glyph in svg or f"&#{ord(glyph)};" in svg, glyph
+
+
+async def test_w_shows_the_reading_at_the_neighbouring_strokes(make_app):
+    app = make_app(model="physical")
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("w")
+        await settle(pilot)
+        paths = app.screen.speed_paths
+        assert paths and {kind for kind, _, _ in paths} <= {"softer", "firmer"}
+        card = text_of(app, "#card")
+        assert "as played" in card and any(f"{name}:" in card for _, name, _ in paths)
+        await pilot.press("w")
+        await settle(pilot)
+        assert app.screen.speed_paths is None and "as played" not in text_of(app, "#card")

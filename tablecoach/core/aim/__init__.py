@@ -199,3 +199,29 @@ def shift(
         conv.point,
         lambda r: predict(table, setup, r, stroke or solved.stroke, model),
     )
+
+
+def speed_neighbours(
+    table: TableSpec,
+    aim: Aim,
+    strokes: dict[str, float] | None = None,
+) -> list[tuple[str, str, Trace]]:
+    """The same reading played at the next softer and the next firmer named stroke (``strokes``:
+    name -> m/s, default this table's book strokes), under the aim's model, as ("softer" or
+    "firmer", stroke name, trace); a stroke the model cannot follow is left out."""
+    if strokes is None:
+        strokes = book_strokes(table)
+    v = aim.stroke.speed
+    softer = [(s, n) for n, s in strokes.items() if s < v * 0.999]
+    firmer = [(s, n) for n, s in strokes.items() if s > v * 1.001]
+    picks = [("softer", max(softer))] if softer else []
+    picks += [("firmer", min(firmer))] if firmer else []
+    out: list[tuple[str, str, Trace]] = []
+    for kind, (speed, name) in picks:
+        stroke = Stroke(speed, aim.stroke.english, aim.stroke.follow)
+        try:
+            tr = predict(table, aim.setup, aim.reading, stroke, aim.model)
+        except ShotError:
+            continue
+        out.append((kind, name, tr))
+    return out

@@ -34,6 +34,11 @@ KEYS = (
         "keep this line: after a hit, its start and reading become this family's reference "
         "line on this table (also `tablecoach refs`)",
     ),
+    (
+        "w",
+        "speed paths: this reading's path at the next softer and firmer named stroke, to see "
+        "how speed moves each rail and the landing (w again hides them)",
+    ),
     ("p", "pin this zone for the next 10 setups; p again unpins (with the coach)"),
     ("v", "history: streaks, rates and trends"),
     ("c", "calibrate this table from your landings (in the background; offered after 30 new)"),

@@ -16,7 +16,6 @@ from tablecoach.core import aim as aims
 from tablecoach.core import shots
 from tablecoach.core.practice import REDRAWS, Session
 from tablecoach.core.shots import Aim, Convergence, Stroke
-from tablecoach.render.shift_view import shift_lines, with_shift
 
 from ..messages import AimSolved, ConvergenceFound, DealerRefreshed, SetupDealt
 from ..widgets.info import InfoCard, MessageLine, NotesPanel, SessionBar, card, notes, session_line
@@ -52,6 +51,7 @@ class PracticeScreen(
         Binding("b", "large", "Big", show=False),
         Binding("p", "pin", "Pin", show=False),
         Binding("k", "keep_line", "Keep line", show=False),
+        Binding("w", "speed_paths", "Speed paths", show=False),
         Binding("c", "calibrate", "Calibrate", show=False),
         Binding("v", "history", "History", show=False),
         Binding("t", "setup", "Setup", show=False),
@@ -72,6 +72,7 @@ class PracticeScreen(
         ("large", "Large reading", "Show the aim reading in large type, or not (b)"),
         ("pin", "Pin this zone", "Keep practising this zone (p again to unpin)"),
         ("keep_line", "Keep this line", "After a hit: its line becomes the family's reference (k)"),
+        ("speed_paths", "Speed paths", "This reading at the next softer and firmer stroke (w)"),
         ("history", "History", "Streaks, rates and trends (v)"),
         (
             "table_check",
@@ -97,6 +98,8 @@ class PracticeScreen(
         self.conv: Convergence | None = None
         self.shift: Any = None  # the family's reference line moved here (reference_keys.py)
         self.shift_for = -1
+        self.speeds_on = False
+        self.speed_paths: Any = None  # the reading at the neighbouring strokes (stroke_keys.py)
         self.error = ""
         self.token = 0
         self.pinned = False
@@ -138,8 +141,7 @@ class PracticeScreen(
             panel.show(s.table, None, None, None, self._table_note(), lines, picture)
         else:
             picture = picture_of(s.table, pick.setup if pick else None, self.aim, self.conv)
-            if self.shift is not None and self.aim is not None:
-                picture = with_shift(s.table, picture, self.shift)
+            picture = self.decorated(picture)
             panel.show(s.table, None, None, None, self._table_note(), None, picture)
         self.drawn = None
         # fixed-size panels: their text changes without a new layout of the screen
@@ -155,9 +157,7 @@ class PracticeScreen(
                 self.large,
                 self.ascii_only,
                 self.bias_note[1] if self.bias_note[0] == self.token else "",
-                shift_lines(s.table, self.aim.setup, self.shift, self.ascii_only)
-                if self.shift is not None and self.aim is not None
-                else None,
+                self.card_lines(),
             ),
             layout=False,
         )
@@ -196,7 +196,7 @@ class PracticeScreen(
         self.token += 1
         self.aim = None
         self.conv = None
-        self.shift = None
+        self.shift = self.speed_paths = None
         self.error = ""
         if self.ahead is not None:
             self._take_ahead()
@@ -252,7 +252,7 @@ class PracticeScreen(
         self.token += 1
         self.aim = None
         self.conv = None
-        self.shift = None
+        self.shift = self.speed_paths = None
         self.error = ""
         pick = self.session.pick
         assert pick is not None
@@ -394,6 +394,7 @@ class PracticeScreen(
         if self.shift_for != message.token:
             self.shift_for = message.token
             self.start_shift(message.token, self.aim, self.conv)
+            self.start_speeds(message.token, self.aim)
 
     # ----- keys --------------------------------------------------------------------------------
     def _ready(self) -> Aim | None:

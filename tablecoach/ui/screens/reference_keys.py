@@ -15,6 +15,9 @@ from tablecoach.core.shots import Aim, Convergence, ShotError
 from tablecoach.core.store.errors import StoreError
 from tablecoach.core.store.refs import reference_of
 from tablecoach.render import words as w
+from tablecoach.render.shift_view import shift_lines, with_shift
+from tablecoach.render.speed_view import speed_lines, with_speeds
+from tablecoach.render.table_view import Picture
 
 from ..messages import ShiftFound
 
@@ -25,6 +28,9 @@ class ReferenceKeys:
     session: Any
     token: int
     shift: Any
+    speed_paths: Any
+    aim: Any
+    ascii_only: bool
 
     if TYPE_CHECKING:  # provided by PracticeScreen (and Screen); never defined here
 
@@ -79,3 +85,28 @@ class ReferenceKeys:
             return
         self.shift = message.shift
         self._refresh()
+
+    def decorated(self, picture: Picture) -> Picture:
+        """The table picture with the reference line moved here and the speed paths, if any."""
+        aim, table = self.aim, self.session.table
+        if aim is None:
+            return picture
+        if self.shift is not None:
+            picture = with_shift(table, picture, self.shift)
+        if self.speed_paths:
+            picture = with_speeds(table, picture, self.speed_paths)
+        return picture
+
+    def card_lines(self) -> list[tuple[str, Any]] | None:
+        """The card's rows under the reading: the reference line, then the speed paths."""
+        aim, table = self.aim, self.session.table
+        if aim is None:
+            return None
+        rows: list[tuple[str, Any]] = []
+        if self.shift is not None:
+            for i, t in enumerate(shift_lines(table, aim.setup, self.shift, self.ascii_only)):
+                rows.append(("Line" if i == 0 else "", t))
+        if self.speed_paths:
+            for i, t in enumerate(speed_lines(table, aim, self.speed_paths, self.ascii_only)):
+                rows.append(("Speed" if i == 0 else "", t))
+        return rows or None

@@ -81,11 +81,12 @@ def card(
     large: bool = False,
     ascii_only: bool = False,
     bias: str = "",
-    shift: list[Text] | None = None,
+    extra: list[tuple[str, Text]] | None = None,
 ) -> RenderableType:
     """The setup card: a warning first when the model has one, the reading and stroke in
-    large, then what the shot is, where the balls go, margin, landing and convergence (or,
-    with a reference line for the family, ``shift``: that line slid, turned and solved)."""
+    large, then what the shot is, where the balls go, margin, landing and convergence.
+    ``extra`` rows (label, line) go just under the reading: the reference line slid, turned
+    and solved (which then stands for the convergence row), the speed paths."""
     if pick is None:
         if error:
             return Text(error, style="bold red")
@@ -105,10 +106,10 @@ def card(
         parts.append(Text("working out the aim...", style="italic"))
     else:
         parts.append(headline(table, stroke, aim, large, ascii_only))
-        if shift:  # the reference line slid, turned about the point, and solved: up top
+        if extra:
             lines = Rows()
-            for i, said in enumerate(shift):
-                lines.add_row("Line" if i == 0 else "", said)
+            for label, said in extra:
+                lines.add_row(label, said)
             parts.append(lines)
     if stroke.speed >= 3.2:
         parts.append(Text(POWER_CAUTION, style="yellow"))
@@ -122,6 +123,7 @@ def card(
     if aim is not None and not error:
         grid.add_row("Margin", w.margin_text(table, aim))
         hint = w.placement_text(table, aim, placing.aim_shift(table, setup))
+        shift = any(label == "Line" for label, _ in extra or ())
         if hint and not shift:
             grid.add_row("", Text(hint, style="dim"))
         grid.add_row("Lands", f"{w.landing_text(table, aim.landing)} (predicted)")
