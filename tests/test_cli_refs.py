@@ -83,3 +83,20 @@ def test_removing_a_line_that_is_not_there_says_so(capsys):
     assert cli(capsys, *ADD, "--player", "dee")[0] == 0
     code, _, err = cli(capsys, "refs", "remove", "99")
     assert_refused(code, err, "no reference line 99")
+
+
+def test_the_rotation_drill_is_written_as_a_pack_and_summed_up(capsys, tmp_path):
+    code, out, err = cli(capsys, *ADD, "--player", "dee", "--json")
+    assert code == 0, err
+    ref_id = json.loads(out)["id"]
+    code, out, err = cli(capsys, "refs", "drill", str(ref_id), "--json")
+    assert code == 0, err
+    name = json.loads(out)["drill"]
+    assert (tmp_path / "config" / "drills" / f"{name}.toml").is_file()
+    # the pack is one of the player's own now: the pack checker deals from it
+    code, out, err = cli(capsys, "drills", "show", name, "--sample", "5", "--json")
+    assert code == 0, err
+    code, out, err = cli(capsys, "refs", "rates", str(ref_id), "--json")
+    assert code == 0 and json.loads(out)["by_distance"] == [], err
+    code, _, err = cli(capsys, "refs", "drill", "99")
+    assert_refused(code, err, "no reference line 99")

@@ -58,6 +58,15 @@ def register(sub: Any) -> None:
     a = acts.add_parser("remove", help="remove a reference line by its number")
     _action_common(a)
     a.add_argument("id", type=whole(1, 2**62), help="the number `refs list` shows")
+    a = acts.add_parser(
+        "drill", help="write the rotation drill around a reference line (a pack of your own)"
+    )
+    _action_common(a)
+    a.add_argument("id", type=whole(1, 2**62), help="the number `refs list` shows")
+    a.add_argument("--count", type=whole(1, 500), default=20, help="setups a round (20)")
+    a = acts.add_parser("rates", help="make rates by distance from a reference line's start")
+    _action_common(a)
+    a.add_argument("id", type=whole(1, 2**62), help="the number `refs list` shows")
     p.set_defaults(func=run, action=None, json=False)
 
 
@@ -164,7 +173,7 @@ def run(args: argparse.Namespace) -> int:
     store = open_store(create=args.action == "add")
     if store is None:
         refs: list[Any] = []
-        if args.action == "remove":
+        if args.action != "list":
             raise ValueError(f"there is no reference line {args.id}: `tablecoach refs list`")
     else:
         with store:
@@ -176,6 +185,8 @@ def run(args: argparse.Namespace) -> int:
                 else:
                     print(f"kept reference line {ref.id}: {ref.family}, reading {ref.reading:g}")
                 return 0
+            if args.action in ("drill", "rates"):
+                return _rotation(args, store)
             if args.action == "remove":
                 if not store.remove_reference(args.id):
                     raise ValueError(
@@ -198,4 +209,41 @@ def run(args: argparse.Namespace) -> int:
             f"from {x:g},{y:g}, reading {r.reading:g}, {r.speed:.2f} m/s"
             + (f"  {r.note}" if r.note else "")
         )
+    return 0
+
+
+def _rotation(args: argparse.Namespace, store: Any) -> int:
+    """`refs drill ID` writes the rotation pack; `refs rates ID` sums its attempts up."""
+    from ..core import rotation
+    from ..core.store.query import AttemptQuery
+    from ..paths import ensure_dir, user_drills_dir
+    from .options import resolve_table
+
+    ref = next((r for r in store.references() if r.id == args.id), None)
+    if ref is None:
+        raise ValueError(f"there is no reference line {args.id}: `tablecoach refs list` shows them")
+    if args.action == "drill":
+        table, _, _ = resolve_table(ref.table, ref.player)
+        text = rotation.pack_text(table, ref, args.count)
+        rotation.rotation_drill(table, ref, args.count)  # checked like any pack
+        path = ensure_dir(user_drills_dir()) / f"{rotation.pack_name(ref)}.toml"
+        path.write_text(text, encoding="utf-8")
+        name = rotation.pack_name(ref)
+        if args.json:
+            json.dump({"drill": name, "file": str(path)}, sys.stdout, indent=2)
+            sys.stdout.write("\n")
+        else:
+            print(f"wrote {path}: practise it with `tablecoach --drill {name} --table {ref.table}`")
+        return 0
+    got = store.attempts(AttemptQuery(player=ref.player, table=ref.table))
+    rates = rotation.rates_by_distance(ref, [a for a in got if a.drill == rotation.pack_name(ref)])
+    if args.json:
+        rows = [{"distance": r.distance, "attempts": r.attempts, "hits": r.hits} for r in rates]
+        json.dump({"reference": args.id, "by_distance": rows}, sys.stdout, indent=2)
+        sys.stdout.write("\n")
+        return 0
+    if not rates:
+        print(f"no attempts of the rotation drill around line {args.id} yet")
+    for r in rates:
+        print(f"{r.distance:>5g} diamond away: {r.hits} of {r.attempts} made ({r.rate:.0%})")
     return 0

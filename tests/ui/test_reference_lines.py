@@ -14,7 +14,17 @@ def keep_kick_line() -> None:
     """A one-rail kick reference for the test player, kept before the app starts."""
     with Store.open(paths.db_path()) as s:
         s.add_reference(
-            Reference("tester", "9ft", "one-rail-kick", "cue", ("right",), (2.0, 1.0), 3.8, 2.4)
+            Reference(
+                "tester",
+                "9ft",
+                "one-rail-kick",
+                "cue",
+                ("right",),
+                (2.0, 1.0),
+                3.8,
+                2.4,
+                target=(5.0, 1.5),
+            )
         )
 
 
@@ -77,3 +87,32 @@ async def test_w_shows_the_reading_at_the_neighbouring_strokes(make_app):
         await pilot.press("w")
         await settle(pilot)
         assert app.screen.speed_paths is None and "as played" not in text_of(app, "#card")
+
+
+async def test_the_rotation_drill_deals_around_the_reference_and_shows_the_turn(make_app):
+    import numpy as np
+
+    from tablecoach.core import rotation
+    from tablecoach.core.table import builtin_table
+
+    keep_kick_line()
+    with Store.open(paths.db_path()) as s:
+        [ref] = s.references()
+    folder = paths.user_drills_dir()
+    folder.mkdir(parents=True, exist_ok=True)
+    text = rotation.pack_text(builtin_table("9ft"), ref)
+    (folder / f"{rotation.pack_name(ref)}.toml").write_text(text, encoding="utf-8")
+    app = make_app(drill=rotation.pack_name(ref))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        screen = app.screen
+        table = screen.session.table
+        off = np.subtract(table.to_diamonds(*screen.aim.setup.start), ref.start)
+        assert 0.25 - 1e-9 <= np.max(np.abs(off)) <= 1.0 + 1e-9
+        assert screen.shift is not None and "turned about" in text_of(app, "#card")
+        await pilot.press("h")
+        await settle(pilot)
+        [a] = stored(app)
+        assert a.drill == rotation.pack_name(ref)
+        [rate] = rotation.rates_by_distance(ref, [a])
+        assert (rate.attempts, rate.hits) == (1, 1)
