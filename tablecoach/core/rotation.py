@@ -14,6 +14,7 @@ from dataclasses import dataclass
 
 from .drill_packs import Drill, parse_drill
 from .records import Attempt
+from .shots import PRESETS
 from .store.refs import Reference
 from .strokes import speed_name
 from .table import TableSpec
@@ -75,9 +76,13 @@ def pack_text(table: TableSpec, ref: Reference, count: int = 20) -> str:
         f"count = {int(count)}",
         "",
         "[[item]]",
-        f'family = "{ref.family}"' if ref.family != "custom" else f'travel = "{ref.travel}"',
     ]
-    if ref.family == "custom":
+    if ref.family in PRESETS:
+        lines.append(f'family = "{ref.family}"')
+    else:  # a family given by its structure (a pack's own name, or "custom")
+        if ref.family != "custom":
+            lines.append(f'family = "{ref.family}"')
+        lines.append(f'travel = "{ref.travel}"')
         lines.append("rails = [" + ", ".join(f'"{r}"' for r in ref.rails) + "]")
     lines.append(f'speeds = ["{stroke}"]')
     if ref.travel == "object":

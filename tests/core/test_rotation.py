@@ -33,7 +33,22 @@ KICK = Reference(
 )
 
 
-@pytest.mark.parametrize("ref", [BANK, KICK], ids=["bank", "kick"])
+# a family a pack named by its structure (the mixed pack's left-rail corner bank)
+OWN = Reference(
+    "ana",
+    "9ft",
+    "left-rail-corner-bank",
+    "object",
+    ("left",),
+    (5.5, 1.5),
+    6.0,
+    2.39,
+    pocket="foot-right",
+    id=3,
+)
+
+
+@pytest.mark.parametrize("ref", [BANK, KICK, OWN], ids=["bank", "kick", "own-family"])
 def test_dealt_starts_lie_a_quarter_to_one_diamond_either_side(ref: Reference) -> None:
     dealt = drills.deal(T, rotation.rotation_drill(T, ref, 60), np.random.default_rng(4))
     starts = np.array([T.to_diamonds(*d.setup.start) for d in dealt])
