@@ -124,7 +124,8 @@ DATE = st.one_of(
 OPTIONS = {
     "aim": {"--english": NUM, "--follow": NUM, "--speed": SPEED, "--cue": POINT, "--object": POINT,
             "--target-ball": POINT, "--table": WEIRD_TEXT, "--player": WEIRD_TEXT,
-            "--pocket": WEIRD_TEXT, "--rails": WEIRD_TEXT},
+            "--pocket": WEIRD_TEXT, "--rails": WEIRD_TEXT, "--ref-start": POINT,
+            "--ref-reading": NUM},
     "predict": {"--reading": NUM, "--english": NUM, "--follow": NUM, "--speed": SPEED,
                 "--cue": POINT, "--object": POINT, "--table": WEIRD_TEXT},
     "history": {"--since": DATE, "--until": DATE, "--session": NUM, "--tz": WEIRD_TEXT,
@@ -134,6 +135,9 @@ OPTIONS = {
     "drills show": {"--sample": NUM, "--seed": NUM, "--table": WEIRD_TEXT},
     "export": {"--player": WEIRD_TEXT, "--table": WEIRD_TEXT},
     "speeds": {"--table": WEIRD_TEXT, "--player": WEIRD_TEXT},
+    "refs add": {"--start": POINT, "--reading": NUM, "--speed": SPEED, "--english": NUM,
+                 "--target-ball": POINT, "--table": WEIRD_TEXT, "--player": WEIRD_TEXT,
+                 "--note": WEIRD_TEXT, "--pocket": WEIRD_TEXT},
 }  # fmt: skip
 BASE = {
     "aim": ["--family", "cross-corner-bank", "--cue", "3,1", "--object", "4,2", "--model",
@@ -144,6 +148,8 @@ BASE = {
     "speeds": ["--json"],
     "tables show": ["9ft", "--json"],
     "drills show": ["mixed", "--json"],
+    "refs add": ["--family", "cross-corner-bank", "--start", "4,2", "--reading", "5.5",
+                 "--player", "fuzz", "--json"],
 }  # fmt: skip
 
 

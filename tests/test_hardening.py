@@ -673,11 +673,14 @@ def test_backup_and_restore_reproduce_the_store_exactly(
     with Store.open(old) as s:
         sid = s.start_session("Zoë", "mine", "my-own")
         s.end_session(sid)
+    # and a reference line of one's own (schema version 4)
+    ref = ("refs", "add", "--family", "cross-corner-bank", "--start", "4,2", "--reading", "5.5")
+    assert cli(capsys, *ref, "--player", "Zoë", "--table", "mine")[0] == 0
     backup = tmp_path / "everything.jsonl"
     code, out, err = cli(capsys, "backup", str(backup))
     assert code == 0, err
     counts = _rows(old)
-    assert counts["calibrations"] and counts["tables"] and counts["sessions"]
+    assert counts["calibrations"] and counts["tables"] and counts["sessions"] and counts["refs"]
     # the new laptop: another data folder and another config folder
     new = tmp_path / "new" / "data" / "tablecoach.sqlite3"
     monkeypatch.setenv("TABLECOACH_DATA_DIR", str(new.parent))

@@ -24,6 +24,7 @@ COMMANDS = (
     "aim",
     "predict",
     "speeds",
+    "refs",
     "tables",
     "drills",
     "importer",

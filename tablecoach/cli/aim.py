@@ -9,7 +9,7 @@ from dataclasses import replace
 from typing import Any
 
 from ..core import aim as aims
-from .options import add_common, add_shot_options, setup_from_args
+from .options import add_common, add_shot_options, number, parse_point, setup_from_args
 
 
 def register(sub: Any) -> None:
@@ -21,6 +21,21 @@ def register(sub: Any) -> None:
     )
     add_common(p)
     add_shot_options(p)
+    r = p.add_argument_group("reference line (a line you trust, moved to this position)")
+    r.add_argument(
+        "--ref-start",
+        default=None,
+        metavar="X,Y",
+        help="the travelling ball's start of the reference shot in diamonds (object ball for "
+        "banks, cue ball for kicks)",
+    )
+    r.add_argument(
+        "--ref-reading",
+        type=number(-100.0, 100.0, "diamonds"),
+        default=None,
+        metavar="R",
+        help="the reference shot's reading on the first rail, in diamonds",
+    )
     p.add_argument("--ascii", action="store_true", help="plain ASCII diagram")
     p.add_argument("--no-diagram", action="store_true", help="numbers only")
     p.set_defaults(func=run)
@@ -95,6 +110,10 @@ def run(args: argparse.Namespace) -> int:
     except shots.ShotError:
         conv = None
     data = aim_to_json(table, aim, conv, status)
+    moved = None
+    if args.ref_start is not None or args.ref_reading is not None:
+        moved = _shift(args, table, setup, aim, conv)
+        data["shift"] = shift_to_json(table, setup, moved)
     if args.json:
         json.dump(data, sys.stdout, indent=2)
         sys.stdout.write("\n")
@@ -102,4 +121,39 @@ def run(args: argparse.Namespace) -> int:
     from ..render.text import aim_report
 
     aim_report(table, aim, conv, data, ascii_only=args.ascii, diagram=not args.no_diagram)
+    if moved is not None:
+        from ..render.words import shift_text
+
+        print(f"reference: {shift_text(table, setup, moved)}")
     return 0
+
+
+def _shift(args: argparse.Namespace, table: Any, setup: Any, aim: Any, conv: Any) -> Any:
+    """The reference line of --ref-start/--ref-reading moved to this setup (core/aim/shift.py)."""
+    from ..core.shots import ShotError
+
+    if args.ref_start is None or args.ref_reading is None:
+        raise ShotError("a reference line needs both --ref-start X,Y and --ref-reading R")
+    start_d = parse_point(args.ref_start, "--ref-start")
+    assert start_d is not None
+    if conv is None:
+        raise ShotError("no convergence point for this setup, so there is no line to turn about")
+    rail = setup.family.rails[0]
+    start = table.to_metres(*start_d)
+    reading = table.along_to_metres(rail, args.ref_reading)
+    return aims.shift(table, setup, start, reading, aim, conv, aim.stroke, args.model)
+
+
+def shift_to_json(table: Any, setup: Any, moved: Any) -> dict[str, Any]:
+    """The contract's ``shift`` object: readings on the first rail and misses, in diamonds."""
+    u = table.rail_unit(setup.family.rails[0])
+
+    def line(x: Any) -> dict[str, Any]:
+        miss = None if x.miss is None else round(x.miss / table.diamond, 4)
+        return {"reading": round(x.reading / u, 4), "miss": miss}
+
+    return {
+        "parallel": line(moved.parallel),
+        "rotated": line(moved.rotated),
+        "solved": line(moved.solved),
+    }

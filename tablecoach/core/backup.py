@@ -38,7 +38,14 @@ from .store.schema import SCHEMA_VERSION
 from .table_files import table_from_mapping
 
 BACKUP_VERSION = 1
-STORE_SECTIONS: tuple[str, ...] = ("players", "tables", "sessions", "attempts", "calibrations")
+STORE_SECTIONS: tuple[str, ...] = (
+    "players",
+    "tables",
+    "sessions",
+    "attempts",
+    "calibrations",
+    "refs",
+)
 """Store tables written to a backup, in an order that restores cleanly (sessions before the
 attempts that name them)."""
 DRILLS = "drills"
@@ -277,6 +284,17 @@ def _check_calibration(row: dict[str, Any]) -> None:
     validate.when_text(row.get("at"), "at")
 
 
+def _check_ref(row: dict[str, Any]) -> None:
+    from .store.refs import reference_from_row
+
+    _whole(row.get("id"), "id")
+    validate.when_text(row.get("at"), "at")
+    try:
+        reference_from_row(row)
+    except StoreError as exc:
+        raise validate.InputError(str(exc)) from None
+
+
 def _check_drill(row: dict[str, Any]) -> None:
     from .drill_packs import parse_drill
 
@@ -307,6 +325,7 @@ _ROW_CHECKS: dict[str, Callable[[dict[str, Any]], None]] = {
     "sessions": _check_session,
     "attempts": _check_attempt_row,
     "calibrations": _check_calibration,
+    "refs": _check_ref,
     DRILLS: _check_drill,
 }
 

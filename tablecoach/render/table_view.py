@@ -38,6 +38,10 @@ class Glyphs:
     convergence: str
     arrows: dict[str, str] = field(default_factory=dict)
     aim: dict[str, str] = field(default_factory=dict)
+    parallel: str = "∥"  # a reference line slid parallel (render/shift_view.py)
+    turned: str = "∘"  # the line turned about the convergence point
+    softer: str = "╌"  # the same reading at the next softer named stroke
+    firmer: str = "┅"  # and at the next firmer one
 
 
 UNICODE = Glyphs(
@@ -72,6 +76,10 @@ ASCII = Glyphs(
     convergence="X",
     arrows={"up": "X", "down": "X", "left": "X", "right": "X"},  # at the edge toward it
     aim={"left": "v", "right": "^", "head": ">", "foot": "<"},
+    parallel="'",
+    turned="~",
+    softer="-",
+    firmer="#",
 )
 
 STYLES = {
@@ -88,6 +96,10 @@ STYLES = {
     "target": Style(color="bright_magenta", bold=True),
     "convergence": Style(color="bright_cyan", bold=True),
     "aim": Style(color="bright_cyan", bold=True),
+    "parallel": Style(color="bright_red"),
+    "turned": Style(color="bright_cyan"),
+    "softer": Style(color="bright_blue"),
+    "firmer": Style(color="bright_magenta"),
     "heat": Style(),
 }
 
@@ -107,6 +119,11 @@ class Picture:
     aim_rail: str | None = None
     aim_reading: float | None = None
     shading: dict[tuple[int, int], str] = field(default_factory=dict)  # cell -> char
+    parallel: Sequence[Point] = ()  # a reference line slid parallel to this start, its path
+    turned: Sequence[Point] = ()  # the line turned about the convergence point, its path
+    zoom_out: bool = False  # draw smaller rather than leave the convergence point off
+    softer: Sequence[Point] = ()  # the aim's reading at the next softer named stroke
+    firmer: Sequence[Point] = ()  # and at the next firmer one
 
 
 POCKET_DIAMONDS: dict[str, Point] = {
@@ -151,7 +168,7 @@ class TableView:
         convergence point when it is within the margin."""
         x0, x1, y0, y1 = 0.0, 8.0, 0.0, 4.0
         c = self.picture.convergence
-        m = self.margin
+        m = max(self.margin, 12.0) if self.picture.zoom_out else self.margin
         if c is not None and -m <= c[0] <= 8 + m and -m <= c[1] <= 4 + m:
             x0, x1 = min(x0, c[0]), max(x1, c[0])
             y0, y1 = min(y0, c[1]), max(y1, c[1])
@@ -174,11 +191,27 @@ class TableView:
                 if w <= width and (height is None or h <= height):
                     return self.rows, ext
             return self.rows, table_only
+        # zoomed out, the whole extent is tried at every scale before the table alone
+        order = (ext_full, table_only) if not self.picture.zoom_out else (ext_full,)
         for rows in range(self.max_rows, 0, -1):
-            for ext in (ext_full, table_only):
+            for ext in order:
                 w, h = self._size(rows, ext)
                 if w <= width and (height is None or h <= height):
                     return rows, ext
+        if self.picture.zoom_out:
+            return self.fit_table_only(width, height)
+        return 1, table_only
+
+    def fit_table_only(
+        self, width: int, height: int | None
+    ) -> tuple[int, tuple[float, float, float, float]]:
+        """The largest scale that fits the table alone (when not even 1 row a diamond fits
+        the convergence point in)."""
+        table_only = (0.0, 8.0, 0.0, 4.0)
+        for rows in range(self.max_rows, 0, -1):
+            w, h = self._size(rows, table_only)
+            if w <= width and (height is None or h <= height):
+                return rows, table_only
         return 1, table_only
 
     # ----- drawing -----------------------------------------------------------------------
@@ -240,6 +273,11 @@ class TableView:
             put(c, r, g.pocket, style)
         # extension toward the convergence point, then the path over it
         self._polyline(self.picture.extension, cell, put, g.extension, "extension", over=False)
+        pic = self.picture
+        self._polyline(pic.parallel, cell, put, g.parallel, "parallel", over=True, inside=True)
+        self._polyline(pic.turned, cell, put, g.turned, "turned", over=True, inside=True)
+        self._polyline(pic.softer, cell, put, g.softer, "softer", over=True, inside=True)
+        self._polyline(pic.firmer, cell, put, g.firmer, "firmer", over=True, inside=True)
         self._polyline(self.picture.path, cell, put, g.path, "path", over=True, inside=True)
         for p in self.picture.contacts:
             c, r = cell(p)

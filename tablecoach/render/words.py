@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from tablecoach.core import placing
+from tablecoach.core.aim.shift import ReferenceShift
 from tablecoach.core.practice import shown_reading
 from tablecoach.core.shots import (
     Aim,
@@ -154,6 +155,32 @@ def convergence_text(table: TableSpec, conv: Convergence | None) -> str:
     if spread < 0.005:
         return f"x {num(x, 1)}, y {num(y, 1)}{off}; nearby aim lines all meet there"
     return f"x {num(x, 1)}, y {num(y, 1)}{off}; nearby aim lines within {spread:.2f} diamond"
+
+
+def shift_text(table: TableSpec, setup: Setup, shift: ReferenceShift) -> str:
+    """A reference line moved to this position, in one sentence: what the parallel shift
+    misses by, the reading turned about the convergence point, and the model's reading."""
+    rail = setup.family.rails[0]
+    u = table.rail_unit(rail)
+    what = "the pocket" if setup.pocket is not None else "the target ball"
+
+    def miss(m: float | None) -> str:
+        if m is None:
+            return "goes where the model cannot follow"
+        if m / table.diamond < 0.005:
+            return f"reaches {what}"
+        return f"misses {what} by {num(m / table.diamond)} diamond"
+
+    par = shift.parallel
+    text = (
+        f"a parallel shift from your {num(shift.reference_reading / u)} line "
+        f"({num(par.reading / u)}) {miss(par.miss)}; "
+        f"turn it about the point: {num(shift.rotated.reading / u)}"
+    )
+    rot = shift.rotated.miss
+    if rot is not None and rot / table.diamond >= 0.005:
+        text += f" ({miss(rot)})"
+    return text + f"; the model says {num(shift.solved.reading / u)}"
 
 
 MODEL_WORDS = {

@@ -69,3 +69,23 @@ class CalibrationDone(Message):
         self.calibration = calibration
         self.changes = tuple(changes)
         self.error = error
+
+
+class ShiftFound(Message):
+    """The player's reference line for this family moved to the setup on screen
+    (core/aim/shift.py's ReferenceShift); ``token`` names the setup it was for."""
+
+    def __init__(self, token: int, shift: Any) -> None:
+        super().__init__()
+        self.token = token
+        self.shift = shift
+
+
+class SpeedsFound(Message):
+    """The shown reading traced at the next softer and firmer named strokes
+    (core.aim.speed_neighbours); ``token`` names the setup it was for."""
+
+    def __init__(self, token: int, paths: Any) -> None:
+        super().__init__()
+        self.token = token
+        self.paths = paths

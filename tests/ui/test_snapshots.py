@@ -45,3 +45,12 @@ def test_summary_after_a_hit_100x30(make_app, snap_compare):
 
     app = make_app(theme="textual-dark")
     assert snap_compare(app, terminal_size=(100, 30), run_before=before)
+
+
+def test_practice_with_a_reference_line_100x30(make_app, snap_compare):
+    # a kept one-rail kick line: the card shows it slid, turned and solved, the point drawn
+    from .test_reference_lines import keep_kick_line
+
+    keep_kick_line()
+    app = make_app()
+    assert snap_compare(app, terminal_size=(100, 30), run_before=settle)

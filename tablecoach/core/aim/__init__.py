@@ -1,4 +1,4 @@
-"""Aim models behind one interface: solve, solve_playable, predict, convergence, compare_shift.
+"""Aim models behind one interface: solve, playable, predict, convergence, shift comparisons.
 
 Two models, chosen by name (MODELS): ``"ideal"`` (mirror reflection, aim/ideal.py) and
 ``"physical"`` (the event simulation of core/physics, aim/physical.py, loaded on first use so
@@ -24,6 +24,7 @@ from ..shots import (
 from ..strokes import book_strokes, speed_name
 from ..table import TableSpec
 from . import ideal
+from .shift import ReferenceShift, shift_from_reference
 from .sights import direction_of, reading_of
 
 MODELS = ("ideal", "physical")
@@ -174,3 +175,53 @@ def compare_shift(
     pm = landing_distance(table, pl, sl) if pl else None
     rm = landing_distance(table, rl, sl) if rl else None
     return ShiftComparison(par, pl, rot, rl, new_aim.reading, sl, pm, rm)
+
+
+def shift(
+    table: TableSpec,
+    setup: Setup,
+    ref_start: Point,
+    ref_reading: float,
+    solved: Aim,
+    conv: Convergence,
+    stroke: Stroke | None = None,
+    model: str = "ideal",
+) -> ReferenceShift:
+    """A reference line (travelling ball's start, reading in metres on the first rail) moved
+    to ``setup``: shifted parallel, turned about ``conv``'s point, and ``solved``, each traced
+    under ``model`` with its closest approach to the target (aim/shift.py)."""
+    return shift_from_reference(
+        table,
+        setup,
+        ref_start,
+        ref_reading,
+        solved,
+        conv.point,
+        lambda r: predict(table, setup, r, stroke or solved.stroke, model),
+    )
+
+
+def speed_neighbours(
+    table: TableSpec,
+    aim: Aim,
+    strokes: dict[str, float] | None = None,
+) -> list[tuple[str, str, Trace]]:
+    """The same reading played at the next softer and the next firmer named stroke (``strokes``:
+    name -> m/s, default this table's book strokes), under the aim's model, as ("softer" or
+    "firmer", stroke name, trace); a stroke the model cannot follow is left out."""
+    if strokes is None:
+        strokes = book_strokes(table)
+    v = aim.stroke.speed
+    softer = [(s, n) for n, s in strokes.items() if s < v * 0.999]
+    firmer = [(s, n) for n, s in strokes.items() if s > v * 1.001]
+    picks = [("softer", max(softer))] if softer else []
+    picks += [("firmer", min(firmer))] if firmer else []
+    out: list[tuple[str, str, Trace]] = []
+    for kind, (speed, name) in picks:
+        stroke = Stroke(speed, aim.stroke.english, aim.stroke.follow)
+        try:
+            tr = predict(table, aim.setup, aim.reading, stroke, aim.model)
+        except ShotError:
+            continue
+        out.append((kind, name, tr))
+    return out

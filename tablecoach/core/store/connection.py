@@ -24,6 +24,7 @@ from .schema import (
     SCHEMA_VERSION,
     V1_TABLES,
     V2_TABLES,
+    V4_TABLES,
     run_script,
 )
 
@@ -205,7 +206,7 @@ class Connection:
                 f"the database {p} was written by a newer tablecoach (schema {version}, this "
                 f"one reads up to {SCHEMA_VERSION}); upgrade tablecoach to use it"
             )
-        expected = V1_TABLES if version == 1 else V2_TABLES
+        expected = V1_TABLES if version == 1 else V4_TABLES if version >= 4 else V2_TABLES
         missing = expected - names
         if version < 1 or missing:
             raise StoreError(

@@ -6,7 +6,7 @@ import sqlite3
 
 from .rows import COL_NAMES, COLS, attempt_identity, from_row
 
-SCHEMA_VERSION = 3
+SCHEMA_VERSION = 4
 """The schema this code writes (PRAGMA user_version). Version 1 is the first schema."""
 
 APPLICATION_ID = 0x74636F61
@@ -65,6 +65,7 @@ CREATE INDEX attempts_session ON attempts(session_id);
 
 V1_TABLES = {"players", "tables", "sessions", "attempts"}
 V2_TABLES = V1_TABLES | {"calibrations"}
+V4_TABLES = V2_TABLES | {"refs"}
 
 
 def run_script(conn: sqlite3.Connection, script: str) -> None:
@@ -190,5 +191,36 @@ def _migrate_2_to_3(conn: sqlite3.Connection) -> None:
     run_script(conn, _HISTORY_INDEXES)
 
 
-MIGRATIONS = {1: _migrate_1_to_2, 2: _migrate_2_to_3}
+def _migrate_3_to_4(conn: sqlite3.Connection) -> None:
+    """Version 4: reference lines, a player's trusted shots per table and family (store/refs.py).
+
+    Positions and the reading in diamonds (as attempts keep them), the stroke in m/s."""
+    run_script(
+        conn,
+        """
+        CREATE TABLE refs (
+            id INTEGER PRIMARY KEY,
+            player TEXT NOT NULL,
+            table_name TEXT NOT NULL,
+            family TEXT NOT NULL,
+            travel TEXT NOT NULL,
+            rails TEXT NOT NULL,
+            pocket TEXT,
+            target_x REAL,
+            target_y REAL,
+            start_x REAL NOT NULL,
+            start_y REAL NOT NULL,
+            reading REAL NOT NULL,
+            speed REAL NOT NULL,
+            english REAL NOT NULL DEFAULT 0,
+            follow REAL NOT NULL DEFAULT 0,
+            note TEXT NOT NULL DEFAULT '',
+            at TEXT NOT NULL
+        );
+        CREATE INDEX refs_key ON refs(player, table_name, family, id);
+        """,
+    )
+
+
+MIGRATIONS = {1: _migrate_1_to_2, 2: _migrate_2_to_3, 3: _migrate_3_to_4}
 """from-version -> step; applying them in order takes any older file to SCHEMA_VERSION."""

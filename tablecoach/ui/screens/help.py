@@ -29,6 +29,16 @@ KEYS = (
         "follow, of draw, centre ball (the aim is solved again)",
     ),
     ("b", "the aim reading in large type, to read from the table; b again for the usual size"),
+    (
+        "k",
+        "keep this line: after a hit, its start and reading become this family's reference "
+        "line on this table (also `tablecoach refs`)",
+    ),
+    (
+        "w",
+        "speed paths: this reading's path at the next softer and firmer named stroke, to see "
+        "how speed moves each rail and the landing (w again hides them)",
+    ),
     ("p", "pin this zone for the next 10 setups; p again unpins (with the coach)"),
     ("v", "history: streaks, rates and trends"),
     ("c", "calibrate this table from your landings (in the background; offered after 30 new)"),
@@ -45,6 +55,15 @@ READING = (
     "at the head rail). Aim over the sight the card names: the cue line crosses the line of the "
     "diamonds there, which is not the cushion contact point. The margin is how far the reading may "
     "move each way and still score. Every attempt is saved the moment you press its key."
+)
+
+TURN = (
+    "Good aim lines of one family, from different places, all point toward one spot, "
+    "usually beyond the rail: the convergence point (\u271a). From a line you trust, turn "
+    "it about that point to reach a new position; do not slide it parallel. With a reference "
+    "line kept (k after a hit), the card shows three lines: \u2225 your line slid parallel "
+    "and what it misses by, \u2218 your line turned about the point, and \u2022 the model's "
+    "aim; the drawing zooms out so the point stays in view. More: docs/rotation.md."
 )
 
 CAUTION = (
@@ -73,6 +92,8 @@ class HelpScreen(ModalScreen[None]):
             yield Static(grid)
             yield Static(Text("\nReading the card", style="bold underline"))
             yield Static(READING)
+            yield Static(Text("\nTurn, don't slide", style="bold underline"))
+            yield Static(TURN)
             yield Static(Text("\nCaution", style="bold underline"))
             yield Static(CAUTION)
         yield Footer()

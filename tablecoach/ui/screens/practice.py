@@ -22,6 +22,7 @@ from ..widgets.info import InfoCard, MessageLine, NotesPanel, SessionBar, card, 
 from ..widgets.table_panel import TablePanel, draw, picture_of
 from .calibrate_offer import CalibrationOffer
 from .coach_keys import CoachKeys
+from .reference_keys import ReferenceKeys
 from .shot_keys import ShotKeys
 from .stroke_keys import StrokeKeys
 
@@ -33,7 +34,9 @@ SOLVING_SHOWN_AFTER = 0.08
 """Seconds an aim solve may take before the screen says it is working on it."""
 
 
-class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[None]):
+class PracticeScreen(
+    ShotKeys, StrokeKeys, CoachKeys, ReferenceKeys, CalibrationOffer, Screen[None]
+):
     """One session of practice. Every key is in the footer and in the command palette."""
 
     BINDINGS = [
@@ -47,6 +50,8 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
         Binding("e", "spin", "Spin"),
         Binding("b", "large", "Big", show=False),
         Binding("p", "pin", "Pin", show=False),
+        Binding("k", "keep_line", "Keep line", show=False),
+        Binding("w", "speed_paths", "Speed paths", show=False),
         Binding("c", "calibrate", "Calibrate", show=False),
         Binding("v", "history", "History", show=False),
         Binding("t", "setup", "Setup", show=False),
@@ -66,6 +71,8 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
         ("spin", "Change spin", "Running, reverse english, follow, draw, centre; re-solves (e)"),
         ("large", "Large reading", "Show the aim reading in large type, or not (b)"),
         ("pin", "Pin this zone", "Keep practising this zone (p again to unpin)"),
+        ("keep_line", "Keep this line", "After a hit: its line becomes the family's reference (k)"),
+        ("speed_paths", "Speed paths", "This reading at the next softer and firmer stroke (w)"),
         ("history", "History", "Streaks, rates and trends (v)"),
         (
             "table_check",
@@ -89,6 +96,10 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
         self.ascii_only = ascii_only
         self.aim: Aim | None = None
         self.conv: Convergence | None = None
+        self.shift: Any = None  # the family's reference line moved here (reference_keys.py)
+        self.shift_for = -1
+        self.speeds_on = False
+        self.speed_paths: Any = None  # the reading at the neighbouring strokes (stroke_keys.py)
         self.error = ""
         self.token = 0
         self.pinned = False
@@ -129,9 +140,9 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
             picture, lines = self.drawn
             panel.show(s.table, None, None, None, self._table_note(), lines, picture)
         else:
-            panel.show(
-                s.table, pick.setup if pick else None, self.aim, self.conv, self._table_note()
-            )
+            picture = picture_of(s.table, pick.setup if pick else None, self.aim, self.conv)
+            picture = self.decorated(picture)
+            panel.show(s.table, None, None, None, self._table_note(), None, picture)
         self.drawn = None
         # fixed-size panels: their text changes without a new layout of the screen
         self.query_one(InfoCard).update(
@@ -146,6 +157,7 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
                 self.large,
                 self.ascii_only,
                 self.bias_note[1] if self.bias_note[0] == self.token else "",
+                self.card_lines(),
             ),
             layout=False,
         )
@@ -184,6 +196,7 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
         self.token += 1
         self.aim = None
         self.conv = None
+        self.shift = self.speed_paths = None
         self.error = ""
         if self.ahead is not None:
             self._take_ahead()
@@ -239,6 +252,7 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
         self.token += 1
         self.aim = None
         self.conv = None
+        self.shift = self.speed_paths = None
         self.error = ""
         pick = self.session.pick
         assert pick is not None
@@ -377,6 +391,10 @@ class PracticeScreen(ShotKeys, StrokeKeys, CoachKeys, CalibrationOffer, Screen[N
         self.conv = message.convergence
         self._remember()
         self._refresh()
+        if self.shift_for != message.token:
+            self.shift_for = message.token
+            self.start_shift(message.token, self.aim, self.conv)
+            self.start_speeds(message.token, self.aim)
 
     # ----- keys --------------------------------------------------------------------------------
     def _ready(self) -> Aim | None:

@@ -82,9 +82,12 @@ def card(
     large: bool = False,
     ascii_only: bool = False,
     bias: str = "",
+    extra: list[tuple[str, Text]] | None = None,
 ) -> RenderableType:
     """The setup card: a warning first when the model has one, the reading and stroke in
-    large, then what the shot is, where the balls go, margin, landing and convergence."""
+    large, then what the shot is, where the balls go, margin, landing and convergence.
+    ``extra`` rows (label, line) go just under the reading: the reference line slid, turned
+    and solved (which then stands for the convergence row), the speed paths."""
     if pick is None:
         if error:
             return Text(error, style="bold red")
@@ -104,6 +107,11 @@ def card(
         parts.append(Text("working out the aim...", style="italic"))
     else:
         parts.append(headline(table, stroke, aim, large, ascii_only))
+        if extra:
+            lines = Rows()
+            for label, said in extra:
+                lines.add_row(label, said)
+            parts.append(lines)
     if stroke.speed >= POWER_CAUTION_SPEED:
         parts.append(Text(POWER_CAUTION, style="yellow"))
     title = Text(setup.family.title or setup.family.name, style="bold")
@@ -115,13 +123,15 @@ def card(
         grid.add_row("Place" if i == 0 else "", line)
     if aim is not None and not error:
         grid.add_row("Margin", w.margin_text(table, aim))
-        shift = w.placement_text(table, aim, placing.aim_shift(table, setup))
-        if shift:
-            grid.add_row("", Text(shift, style="dim"))
+        hint = w.placement_text(table, aim, placing.aim_shift(table, setup))
+        shift = any(label == "Line" for label, _ in extra or ())
+        if hint and not shift:
+            grid.add_row("", Text(hint, style="dim"))
         grid.add_row("Lands", f"{w.landing_text(table, aim.landing)} (predicted)")
         if bias:
             grid.add_row("You", Text(bias, style="bold"))
-        grid.add_row("Conv.", w.convergence_text(table, conv) if conv else "working it out...")
+        if not shift:
+            grid.add_row("Conv.", w.convergence_text(table, conv) if conv else "working it out...")
         if aim.cut_angle is not None:
             grid.add_row("Cut", f"{math.degrees(aim.cut_angle):.0f} degrees on the object ball")
         grid.add_row("Contact", w.contact_text(table, aim))

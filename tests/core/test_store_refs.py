@@ -1,0 +1,95 @@
+"""Reference lines in the store: the version 3 -> 4 migration and the repository."""
+
+from __future__ import annotations
+
+import sqlite3
+from dataclasses import replace
+from pathlib import Path
+
+import pytest
+
+from tablecoach.core.store import Store
+from tablecoach.core.store.errors import StoreError
+from tablecoach.core.store.refs import Reference
+from tablecoach.core.store.schema import SCHEMA_VERSION
+
+from .test_store import make_attempt
+
+REF = Reference(
+    player="dee",
+    table="9ft",
+    family="cross-corner-bank",
+    travel="object",
+    rails=("right",),
+    start=(4.0, 2.0),
+    reading=5.5,
+    speed=2.39,
+    pocket="foot-left",
+)
+
+
+def _as_version_3(db: Path) -> None:
+    """A version 3 file: version 4 differs only by the refs table, so drop it and step the
+    version back (sqlite3 directly, not the code under test)."""
+    c = sqlite3.connect(db)
+    c.execute("DROP TABLE refs")
+    c.execute("PRAGMA user_version = 3")
+    c.commit()
+    c.close()
+
+
+def test_migrates_version_3_and_keeps_every_attempt(tmp_path: Path) -> None:
+    db = tmp_path / "d" / "tablecoach.sqlite3"
+    with Store.open(db) as s:
+        s.log(make_attempt(0))
+        s.log(make_attempt(1))
+        before = s.attempts()
+    _as_version_3(db)
+    c = sqlite3.connect(db)
+    assert c.execute("PRAGMA user_version").fetchone()[0] == 3
+    assert "refs" not in {r[0] for r in c.execute("SELECT name FROM sqlite_master")}
+    c.close()
+    with Store.open(db) as s:
+        assert s.schema_version() == SCHEMA_VERSION == 4
+        assert s.attempts() == before
+        assert s.references() == []
+        ref_id = s.add_reference(REF)
+        (got,) = s.references("dee", "9ft")
+    assert got == replace(REF, id=ref_id, when=got.when) and got.when
+    c = sqlite3.connect(db)
+    assert c.execute("PRAGMA integrity_check").fetchone()[0] == "ok"
+    assert "refs_key" in {r[0] for r in c.execute("SELECT name FROM sqlite_master")}
+    c.close()
+
+
+def test_the_newest_line_of_a_family_shape_is_found_and_removed(tmp_path: Path) -> None:
+    with Store.open(tmp_path / "s.sqlite3") as s:
+        first = s.add_reference(REF)
+        second = s.add_reference(replace(REF, reading=5.25, note="from my logged hits"))
+        s.add_reference(replace(REF, player="eve", reading=6.0))
+        found = s.reference_for("dee", "9ft", "object", ("right",), "foot-left")
+        assert found is not None and found.id == second and found.reading == 5.25
+        assert s.reference_for("dee", "8ft", "object", ("right",), "foot-left") is None
+        assert s.reference_for("dee", "9ft", "cue", ("right",), None) is None
+        assert s.remove_reference(second) and not s.remove_reference(second)
+        again = s.reference_for("dee", "9ft", "object", ("right",), "foot-left")
+        assert again is not None and again.id == first
+        assert [r.player for r in s.references(family="cross-corner-bank")] == ["dee", "eve"]
+
+
+@pytest.mark.parametrize(
+    "bad",
+    [
+        {"reading": float("nan")},
+        {"start": (4.0, float("inf"))},
+        {"travel": "both"},
+        {"player": ""},
+        {"english": 3.0},
+    ],
+)
+def test_a_bad_line_is_refused_in_one_line(tmp_path: Path, bad: dict[str, object]) -> None:
+    with Store.open(tmp_path / "s.sqlite3") as s:
+        with pytest.raises(StoreError) as err:
+            s.add_reference(replace(REF, **bad))  # type: ignore[arg-type]
+        assert "\n" not in str(err.value)
+        assert s.references() == []
