@@ -216,11 +216,10 @@ def _stepped_columns(
     f = np.empty((4, n))
 
     def terms(mw: np.ndarray | float, ms: np.ndarray | float, d: np.ndarray) -> np.ndarray:
-        f[0] = mw * d[0]
-        f[1] = mw * d[1]
+        np.multiply(mw, d[:2], out=f[:2])
         k = s + c * f[1]
-        f[2] = ms * d[2] * k
-        f[3] = ms * d[3] * k
+        np.multiply(ms, d[2:], out=f[2:])
+        f[2:] *= k
         return f
 
     for phase in (0, 1):
@@ -266,6 +265,10 @@ def _stepped_columns(
                 # reverse inside the piece sticks, its friction cut to stop the slip at zero
                 pd = (S @ r) * d
                 dsd = pd[0::2] + pd[1::2]  # (2, n): cushion, cloth
+                # the slip would pass zero inside the piece (mags + dsd h < 0); its impulse
+                # to zero is mags / -dsd
+                if not (dsd * h + mags < 0.0).any():
+                    break
                 neg = dsd < 0
                 pwt = np.where(neg, mags / np.where(neg, -dsd, 1.0), np.inf)
                 stick = pwt < h
@@ -277,10 +280,10 @@ def _stepped_columns(
                 r = A @ terms(mw, ms, d) + b
             vy0 = np.abs(X[1])
             X += r * h
-            work = work + c * 0.5 * (vy0 + np.abs(X[1])) * h
+            work += c * 0.5 * (vy0 + np.abs(X[1])) * h
         if phase == 0:
             X[1] = np.minimum(X[1], 0.0)
-            wc = work
+            wc = work.copy()
     return X[0], X[1], X[2], X[3], X[4]
 
 
