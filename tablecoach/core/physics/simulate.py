@@ -110,8 +110,8 @@ def simulate(
     (n,) POCKETS index or -1. With ``lean`` (aim solving; a flag or one per row) a row ends at
     its first ball or as soon as it leaves the family's rail order: its miss and score are
     known by then, its landing may be missing. With ``gather`` a row about to cross a wall
-    waits while other rows have an earlier kind of event (a phase end, a ball), so the cushion
-    impacts come in fewer calls; each row's motion is the same, only ``events`` grows.
+    waits while other rows end a phase, so the cushion impacts come in fewer calls; each row's
+    motion is the same, only ``events`` grows.
     """
     n = r0.shape[0]
     nf = len(rails)
@@ -218,12 +218,12 @@ def simulate(
         dt = np.minimum(tw_end, t_b)
         dt = np.where(np.isfinite(dt), dt, 0.0)
         if gather:
-            # rows about to cross a wall wait while others have an earlier kind of event, so
-            # the cushion impacts of a pass come in fewer, larger batches; every row still
+            # rows about to cross a wall wait while others end a phase (slide to roll, mostly),
+            # so the cushion impacts of a pass come in fewer, larger batches; every row still
             # moves from event to event exactly as alone
-            wall_next = ~(np.isfinite(t_b) & (t_b <= dt) & (t_b < t_w)) & np.isfinite(t_w)
-            wall_next &= t_w <= dt
-            if wall_next.any() and not wall_next.all():
+            ball_next = np.isfinite(t_b) & (t_b <= dt) & (t_b < t_w)
+            wall_next = ~ball_next & np.isfinite(t_w) & (t_w <= dt)
+            if wall_next.any() and (~ball_next & ~wall_next).any():
                 go = ~wall_next
                 idx, ri, vi, wi = idx[go], ri[go], vi[go], wi[go]
                 ph, a, t_end, dt, wl = ph[go], a[go], t_end[go], dt[go], wl[go]
