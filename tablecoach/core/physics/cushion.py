@@ -230,7 +230,7 @@ def _stepped_columns(
             mags = np.sqrt(sq[0::2] + sq[1::2])  # (2, n): cushion, cloth slip speeds
             d = (sl.reshape(2, 2, n) / np.maximum(mags, tiny)[:, None, :]).reshape(4, n)
             zero = mags <= tiny
-            if zero.any():
+            if np.count_nonzero(zero):
                 # a contact with no slip: its slip starts in the direction the other forces
                 # drive it (friction there off), and its friction opposes that start
                 z4 = np.repeat(zero, 2, axis=0)
@@ -267,12 +267,12 @@ def _stepped_columns(
                 dsd = pd[0::2] + pd[1::2]  # (2, n): cushion, cloth
                 # the slip would pass zero inside the piece (mags + dsd h < 0); its impulse
                 # to zero is mags / -dsd
-                if not (dsd * h + mags < 0.0).any():
+                if not np.count_nonzero(dsd * h + mags < 0.0):
                     break
                 neg = dsd < 0
                 pwt = np.where(neg, mags / np.where(neg, -dsd, 1.0), np.inf)
                 stick = pwt < h
-                if not stick.any():
+                if not np.count_nonzero(stick):
                     break
                 hs = np.maximum(h, 1e-300)
                 mw = np.where(stick[0], mu_w * pwt[0] / hs, mw)

@@ -223,7 +223,7 @@ def simulate(
             # moves from event to event exactly as alone
             ball_next = np.isfinite(t_b) & (t_b <= dt) & (t_b < t_w)
             wall_next = ~ball_next & np.isfinite(t_w) & (t_w <= dt)
-            if wall_next.any() and (~ball_next & ~wall_next).any():
+            if np.count_nonzero(wall_next) and np.count_nonzero(~ball_next & ~wall_next):
                 go = ~wall_next
                 idx, ri, vi, wi = idx[go], ri[go], vi[go], wi[go]
                 ph, a, t_end, dt, wl = ph[go], a[go], t_end[go], dt[go], wl[go]
