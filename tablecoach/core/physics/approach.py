@@ -87,7 +87,7 @@ def closest(
     estimate, clipped to the interval; the signed distance is positive with c left of travel.
     """
     # on columns (x and y apart): the same arithmetic as row-wise dot products, fewer calls
-    if sel.all():
+    if np.count_nonzero(sel) == sel.size:
         rs, cs, vs, as_, T = r, c, v, a, dt
     else:
         rs, cs, vs, as_, T = r[sel], c[sel], v[sel], a[sel], dt[sel]

@@ -174,7 +174,7 @@ def simulate(
         c0 = (ri[:, ax4] - wall4) * sgn
         t_wall = first_quadratic_root(c2, c1, c0, t_end[:, None])
         wall_code = np.argmin(t_wall, axis=1)
-        t_w = t_wall[np.arange(idx.size), wall_code]
+        t_w = t_wall.min(axis=1)  # the value at wall_code
         # still balls: one quartic per ball
         t_b = np.full(idx.size, np.inf)
         b_id = np.full(idx.size, -1, dtype=np.int64)
