@@ -87,7 +87,7 @@ def closest(
     estimate, clipped to the interval; the signed distance is positive with c left of travel.
     """
     # on columns (x and y apart): the same arithmetic as row-wise dot products, fewer calls
-    if sel.all():
+    if np.count_nonzero(sel) == sel.size:
         rs, cs, vs, as_, T = r, c, v, a, dt
     else:
         rs, cs, vs, as_, T = r[sel], c[sel], v[sel], a[sel], dt[sel]
@@ -95,14 +95,15 @@ def closest(
     vx, vy, ax, ay = vs[:, 0], vs[:, 1], as_[:, 0], as_[:, 1]
     hx, hy = 0.5 * ax, 0.5 * ay
     v2 = vx * vx + vy * vy
-    t = np.clip(-(px * vx + py * vy) / np.maximum(v2, 1e-300), 0.0, T)
+    # np.minimum(np.maximum(.)) is np.clip's arithmetic without its wrapper's cost
+    t = np.minimum(np.maximum(-(px * vx + py * vy) / np.maximum(v2, 1e-300), 0.0), T)
     for _ in range(3):
         tt = t * t
         qx, qy = px + vx * t + hx * tt, py + vy * t + hy * tt
         ux, uy = vx + ax * t, vy + ay * t
         g = qx * ux + qy * uy
         dg = (ux * ux + uy * uy) + (qx * ax + qy * ay)
-        t = np.clip(t - g / np.where(np.abs(dg) > 1e-300, dg, 1.0), 0.0, T)
+        t = np.minimum(np.maximum(t - g / np.where(np.abs(dg) > 1e-300, dg, 1.0), 0.0), T)
     tt = t * t
     qx, qy = px + vx * t + hx * tt, py + vy * t + hy * tt
     ux, uy = vx + ax * t, vy + ay * t

@@ -46,6 +46,8 @@ scales with the arrival speed: a check over angles and spins at one speed holds 
 
 from __future__ import annotations
 
+from functools import lru_cache
+
 import numpy as np
 
 from .params import BallModel
@@ -148,28 +150,16 @@ _SLIP_TOL = 1e-3
 """Slips below this fraction of the arrival speed start the stepped integration as no slip."""
 
 
-def _stepped_columns(
-    m: BallModel,
-    vx: np.ndarray,
-    vy: np.ndarray,
-    wx: np.ndarray,
-    wy: np.ndarray,
-    wz: np.ndarray,
-    segments: int,
-) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-    """stepped_impact on the state's columns (vx, vy, wx, wy, wz), cushion frame.
-
-    The rates of the module's step equations are linear in four friction terms,
-    f = (mu_w cos phi, mu_w sin phi, mu_s cos phi_t k, mu_s sin phi_t k) with
-    k = sin theta + mu_w sin phi cos theta: dX/dP = A f + b, and the two slips are S X, so the
-    integration works on (5, n) and (4, n) arrays with a few matrix products per piece.
-    """
-    R = m.radius
-    s, c = float(np.sin(m.theta)), float(np.cos(m.theta))
-    inv_m = 1.0 / m.mass
-    kw = 2.5 / (m.mass * R)
-    mu_w, mu_s = m.mu_w, m.mu_s
-    e2 = m.e_cushion**2
+@lru_cache(maxsize=16)
+def _matrices(
+    radius: float, theta: float, mass: float
+) -> tuple[float, float, np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """sin and cos of theta and the matrices of ``_stepped_columns``: A, b, S, S A, S b
+    (read-only; one set per ball and cushion geometry)."""
+    R = radius
+    s, c = float(np.sin(theta)), float(np.cos(theta))
+    inv_m = 1.0 / mass
+    kw = 2.5 / (mass * R)
     # dX/dP = A @ (f1, f2, f3, f4) + b  (the step equations in the module docstring)
     A = np.array(
         [
@@ -190,7 +180,32 @@ def _stepped_columns(
             [0.0, 1.0, R, 0.0, 0.0],
         ]
     )
-    SA, Sb = S @ A, S @ b
+    out = (A, b, S, S @ A, S @ b)
+    for arr in out:
+        arr.flags.writeable = False
+    return (s, c, *out)
+
+
+def _stepped_columns(
+    m: BallModel,
+    vx: np.ndarray,
+    vy: np.ndarray,
+    wx: np.ndarray,
+    wy: np.ndarray,
+    wz: np.ndarray,
+    segments: int,
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """stepped_impact on the state's columns (vx, vy, wx, wy, wz), cushion frame.
+
+    The rates of the module's step equations are linear in four friction terms,
+    f = (mu_w cos phi, mu_w sin phi, mu_s cos phi_t k, mu_s sin phi_t k) with
+    k = sin theta + mu_w sin phi cos theta: dX/dP = A f + b, and the two slips are S X, so the
+    integration works on (5, n) and (4, n) arrays with a few matrix products per piece (the two
+    contacts side by side as (2, 2, n) where a step treats them alike).
+    """
+    s, c, A, b, S, SA, Sb = _matrices(m.radius, m.theta, m.mass)
+    mu_w, mu_s = m.mu_w, m.mu_s
+    e2 = m.e_cushion**2
     X = np.array([vx, vy, wx, wy, wz], dtype=float)
     n = X.shape[1]
     work = np.zeros(n)
@@ -201,31 +216,30 @@ def _stepped_columns(
     f = np.empty((4, n))
 
     def terms(mw: np.ndarray | float, ms: np.ndarray | float, d: np.ndarray) -> np.ndarray:
-        f[0] = mw * d[0]
-        f[1] = mw * d[1]
+        np.multiply(mw, d[:2], out=f[:2])
         k = s + c * f[1]
-        f[2] = ms * d[2] * k
-        f[3] = ms * d[3] * k
+        np.multiply(ms, d[2:], out=f[2:])
+        f[2:] *= k
         return f
 
     for phase in (0, 1):
         for j in range(segments):
             left = segments - j
             sl = S @ X  # (4, n): cushion slip x, y; cloth slip x, y
-            smag = np.sqrt(sl[0] * sl[0] + sl[1] * sl[1])
-            cmag = np.sqrt(sl[2] * sl[2] + sl[3] * sl[3])
-            d = sl / np.repeat(np.maximum(np.stack((smag, cmag)), tiny), 2, axis=0)
-            zs = smag <= tiny
-            zc = cmag <= tiny
-            if np.count_nonzero(zs) or np.count_nonzero(zc):
+            sq = sl * sl
+            mags = np.sqrt(sq[0::2] + sq[1::2])  # (2, n): cushion, cloth slip speeds
+            d = (sl.reshape(2, 2, n) / np.maximum(mags, tiny)[:, None, :]).reshape(4, n)
+            zero = mags <= tiny
+            if np.count_nonzero(zero):
                 # a contact with no slip: its slip starts in the direction the other forces
                 # drive it (friction there off), and its friction opposes that start
-                d = np.where(np.repeat(np.stack((zs, zc)), 2, axis=0), _UNIT_X, d)
-                r0 = SA @ terms(np.where(zs, 0.0, mu_w), np.where(zc, 0.0, mu_s), d) + Sb
+                z4 = np.repeat(zero, 2, axis=0)
+                d = np.where(z4, _UNIT_X, d)
+                r0 = SA @ terms(np.where(zero[0], 0.0, mu_w), np.where(zero[1], 0.0, mu_s), d) + Sb
                 m0 = np.sqrt(r0[0::2] ** 2 + r0[1::2] ** 2)
                 d0 = np.where(np.repeat(m0 > 0, 2, axis=0), r0, _UNIT_X)
                 d0 = d0 / np.repeat(np.where(m0 > 0, m0, 1.0), 2, axis=0)
-                d = np.where(np.repeat(np.stack((zs, zc)), 2, axis=0), d0, d)
+                d = np.where(z4, d0, d)
             mw: np.ndarray | float = mu_w
             ms: np.ndarray | float = mu_s
             r = A @ terms(mw, ms, d) + b
@@ -249,25 +263,27 @@ def _stepped_columns(
                 h = np.maximum(span, 0.0) / left
                 # slip rates along each contact's held direction: a contact whose slip would
                 # reverse inside the piece sticks, its friction cut to stop the slip at zero
-                ds = S @ r
-                dsw = ds[0] * d[0] + ds[1] * d[1]
-                dst = ds[2] * d[2] + ds[3] * d[3]
-                pw = np.where(dsw < 0, smag / np.where(dsw < 0, -dsw, 1.0), np.inf)
-                pt = np.where(dst < 0, cmag / np.where(dst < 0, -dst, 1.0), np.inf)
-                stick_w = pw < h
-                stick_t = pt < h
-                if not (np.count_nonzero(stick_w) or np.count_nonzero(stick_t)):
+                pd = (S @ r) * d
+                dsd = pd[0::2] + pd[1::2]  # (2, n): cushion, cloth
+                # the slip would pass zero inside the piece (mags + dsd h < 0); its impulse
+                # to zero is mags / -dsd
+                if not np.count_nonzero(dsd * h + mags < 0.0):
+                    break
+                neg = dsd < 0
+                pwt = np.where(neg, mags / np.where(neg, -dsd, 1.0), np.inf)
+                stick = pwt < h
+                if not np.count_nonzero(stick):
                     break
                 hs = np.maximum(h, 1e-300)
-                mw = np.where(stick_w, mu_w * pw / hs, mw)
-                ms = np.where(stick_t, mu_s * pt / hs, ms)
+                mw = np.where(stick[0], mu_w * pwt[0] / hs, mw)
+                ms = np.where(stick[1], mu_s * pwt[1] / hs, ms)
                 r = A @ terms(mw, ms, d) + b
-            vy0 = X[1].copy()
+            vy0 = np.abs(X[1])
             X += r * h
-            work = work + c * 0.5 * (np.abs(vy0) + np.abs(X[1])) * h
+            work += c * 0.5 * (vy0 + np.abs(X[1])) * h
         if phase == 0:
             X[1] = np.minimum(X[1], 0.0)
-            wc = work
+            wc = work.copy()
     return X[0], X[1], X[2], X[3], X[4]
 
 

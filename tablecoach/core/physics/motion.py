@@ -110,15 +110,16 @@ def prepare(
     rolling = ~sliding & (vs > EPS_V)
     spinning = ~sliding & ~rolling & (wz > EPS_W)
     phase = np.where(sliding, SLIDING, np.where(rolling, ROLLING, np.where(spinning, SPINNING, 0)))
-    with np.errstate(divide="ignore", invalid="ignore"):
-        ks = np.where(sliding, -m.mu_s * m.g / us, 0.0)
-        kr = np.where(rolling, -m.mu_r * m.g / vs, 0.0)
-        a = np.empty_like(v)
-        a[:, 0] = ks * ux + kr * v[:, 0]
-        a[:, 1] = ks * uy + kr * v[:, 1]
-        t_slide = 2.0 * us / (7.0 * m.mu_s * m.g) if m.mu_s > 0 else np.full_like(us, np.inf)
-        t_roll = vs / (m.mu_r * m.g) if m.mu_r > 0 else np.full_like(vs, np.inf)
-        t_spin = wz / m.spin_decel if m.spin_decel > 0 else np.full_like(wz, np.inf)
+    # divisions by the slip and the speed only where they are used, so no warnings to silence
+    # (np.errstate costs as much as several of these calls)
+    ks = np.divide(-m.mu_s * m.g, us, out=np.zeros_like(us), where=sliding)
+    kr = np.divide(-m.mu_r * m.g, vs, out=np.zeros_like(vs), where=rolling)
+    a = np.empty_like(v)
+    a[:, 0] = ks * ux + kr * v[:, 0]
+    a[:, 1] = ks * uy + kr * v[:, 1]
+    t_slide = 2.0 * us / (7.0 * m.mu_s * m.g) if m.mu_s > 0 else np.full_like(us, np.inf)
+    t_roll = vs / (m.mu_r * m.g) if m.mu_r > 0 else np.full_like(vs, np.inf)
+    t_spin = wz / m.spin_decel if m.spin_decel > 0 else np.full_like(wz, np.inf)
     t_end = np.where(
         sliding, t_slide, np.where(rolling, t_roll, np.where(spinning, t_spin, np.inf))
     )

@@ -98,6 +98,7 @@ def simulate(
     record: bool = False,
     max_events: int = 200,
     lean: bool | np.ndarray = False,
+    gather: bool = False,
 ) -> SimResult:
     """Run every row to its landing, a pocket, or rest.
 
@@ -108,7 +109,9 @@ def simulate(
     ``target_point`` (n, 2) the point whose closest approach is ``miss``; ``target_pocket``
     (n,) POCKETS index or -1. With ``lean`` (aim solving; a flag or one per row) a row ends at
     its first ball or as soon as it leaves the family's rail order: its miss and score are
-    known by then, its landing may be missing.
+    known by then, its landing may be missing. With ``gather`` a row about to cross a wall
+    waits while other rows end a phase, so the cushion impacts come in fewer calls; each row's
+    motion is the same, only ``events`` grows.
     """
     n = r0.shape[0]
     nf = len(rails)
@@ -171,7 +174,7 @@ def simulate(
         c0 = (ri[:, ax4] - wall4) * sgn
         t_wall = first_quadratic_root(c2, c1, c0, t_end[:, None])
         wall_code = np.argmin(t_wall, axis=1)
-        t_w = t_wall[np.arange(idx.size), wall_code]
+        t_w = t_wall.min(axis=1)  # the value at wall_code
         # still balls: one quartic per ball
         t_b = np.full(idx.size, np.inf)
         b_id = np.full(idx.size, -1, dtype=np.int64)
@@ -214,6 +217,18 @@ def simulate(
                     b_id = np.where(np.isfinite(t_b), b_id, -1)
         dt = np.minimum(tw_end, t_b)
         dt = np.where(np.isfinite(dt), dt, 0.0)
+        if gather:
+            # rows about to cross a wall wait while others end a phase (slide to roll, mostly),
+            # so the cushion impacts of a pass come in fewer, larger batches; every row still
+            # moves from event to event exactly as alone
+            ball_next = np.isfinite(t_b) & (t_b <= dt) & (t_b < t_w)
+            wall_next = ~ball_next & np.isfinite(t_w) & (t_w <= dt)
+            if np.count_nonzero(wall_next) and np.count_nonzero(~ball_next & ~wall_next):
+                go = ~wall_next
+                idx, ri, vi, wi = idx[go], ri[go], vi[go], wi[go]
+                ph, a, t_end, dt, wl = ph[go], a[go], t_end[go], dt[go], wl[go]
+                t_wall, wall_code, t_w = t_wall[go], wall_code[go], t_w[go]
+                t_b, b_id = t_b[go], b_id[go]
         if record:
             segments.append(Segment(ri.copy(), vi.copy(), wi.copy(), ph.copy(), dt.copy(), idx))
         r2, v2, w2 = evolve_moving(m, ri, vi, wi, ph, dt, a)
