@@ -240,7 +240,10 @@ class Session:
         """The player's landing bias in the zone of this setup at this stroke, as advice ("you
         land 0.3 long here (6 landings): aim to land 0.3 shorter"); "" with too few landings.
         Slow under the physical model: call it from a worker."""
-        label = zone_of(shots.record_of(self.table, setup), stroke.speed).label
+        zone = zone_of(shots.record_of(self.table, setup), stroke.speed)
+        if self.dealer.scheduler.stats(zone).tried < feedback.MIN_BIAS_LANDINGS:
+            return ""  # too few attempts there for a bias: no need to look for their landings
+        label = zone.label
         seen = self.store.latest_attempts(
             self.query, feedback.RECENT_LANDINGS, zone=label, landed=True
         )

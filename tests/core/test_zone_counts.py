@@ -75,3 +75,35 @@ def test_undo_takes_exactly_one_attempt_off_the_coach(club_store):
     q = AttemptQuery(player=first.player, table=spec.name)
     assert s.earlier_stats().shots == club_store.count_attempts(q) > 0
     assert s.earlier_stats().hits == sum(a.hit for a in club_store.attempts(q))
+
+
+def test_bias_reads_the_store_only_for_zones_with_enough_attempts(club_store, monkeypatch):
+    # the zone's bias equals feedback.zone_bias over every attempt (the old way), and a zone
+    # with fewer attempts than a bias needs (feedback.MIN_BIAS_LANDINGS) is answered unread
+    from tablecoach.core import feedback, shots
+    from tablecoach.core.coach import zone_of
+    from tablecoach.core.shots import Stroke
+
+    whole = club_store.attempts()
+    spec = next(t for t in demo.CLUB_TABLES if t.name == whole[0].table)
+    mine = [a for a in whole if a.player == whole[0].player and a.table == spec.name]
+    pack = drills.find_drill("one-rail-kicks", None)
+    s = Session(club_store, spec, pack, whole[0].player, np.random.default_rng(3), "ideal")
+    landed = Counter(zone_of_attempt(a) for a in mine if a.landed)
+    checked = 0
+    for zone, _n in landed.most_common(5):
+        a = next(a for a in mine if zone_of_attempt(a) == zone)
+        setup = shots.setup_of(spec, a.shot)
+        stroke = Stroke(a.speed, a.english, a.follow)
+        want = feedback.zone_bias(spec, mine, zone_of(a.shot, a.speed).label, "ideal")
+        assert s.bias_text(setup, stroke) == ("" if want is None else feedback.bias_words(*want))
+        checked += want is not None
+    assert checked  # some zone has landings enough for a bias
+    untried = replace(a.shot, cue=(7.5, 3.5), object=(7.8, 3.8))
+    assert s.dealer.scheduler.stats(zone_of(untried, 0.1)).tried < feedback.MIN_BIAS_LANDINGS
+
+    def no_read(*args, **kw):
+        raise AssertionError("read the store for a zone without attempts")
+
+    monkeypatch.setattr(club_store, "latest_attempts", no_read)
+    assert s.bias_text(shots.setup_of(spec, untried), Stroke(0.1, 0.0, 0.0)) == ""
