@@ -240,3 +240,24 @@ def test_data_dir_before_the_command_is_used(
     assert paths.db_path(other).exists() and not (tmp_path / "data").exists()
     code, out, _ = run_cli(capsys, "--data-dir", str(other), "export")
     assert len(out.splitlines()) == 3
+
+
+def test_import_in_small_batches_skips_repeats_across_batches(
+    capsys: pytest.CaptureFixture[str], tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    # the import streams the file in batches; a line repeated several batches later is still
+    # found (in the store, committed by an earlier batch) and skipped, as in one big read
+    from tablecoach.cli import importer
+
+    original = _fill(paths.db_path(), 12)
+    out_file = tmp_path / "all.jsonl"
+    assert run_cli(capsys, "export", "--output", str(out_file))[0] == 0
+    lines = out_file.read_text(encoding="utf-8").splitlines()
+    out_file.write_text("\n".join([*lines, lines[0], lines[3]]) + "\n", encoding="utf-8")
+    monkeypatch.setattr(importer, "BATCH", 5)
+    fresh = tmp_path / "fresh"
+    code, out, err = run_cli(capsys, "import", str(out_file), "--data-dir", str(fresh))
+    assert code == 0, err
+    assert out.strip() == "added 12 attempts, 2 already there (skipped)"
+    with Store.open(paths.db_path(fresh)) as s:
+        assert _strip(s.attempts()) == _strip(original)

@@ -34,18 +34,28 @@ def register(sub: Any) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from ..core import formats
     from ..core.store import Store
-    from ..core.store.query import AttemptQuery
     from ..paths import db_path
 
     fmt = args.format or ("csv" if (args.output or "").lower().endswith(".csv") else "jsonl")
     path = db_path()
-    attempts = []
-    if path.exists():  # nothing logged yet: an empty export, and no database created for it
-        with Store.open(path) as s:
-            query = AttemptQuery(player=args.player, table=args.table, family=args.family)
-            attempts = s.attempts(query)
+    if not path.exists():  # nothing logged yet: an empty export, and no database created for it
+        return _write(None, args, fmt)
+    with Store.open(path) as s:
+        return _write(s, args, fmt)
+
+
+def _write(store: Any, args: argparse.Namespace, fmt: str) -> int:
+    """Stream the attempts from ``store`` (None: none) in batches into the output."""
+    from ..core import formats
+    from ..core.store.query import AttemptQuery
+    from .progress import tracked
+
+    attempts: Any = []
+    if store is not None:
+        query = AttemptQuery(player=args.player, table=args.table, family=args.family)
+        total = store.count_attempts(query) if sys.stderr.isatty() else None
+        attempts = tracked(store.iter_attempts(query), total, "exporting")
     if args.output is None:
         formats.write_any(attempts, sys.stdout, fmt)
         sys.stdout.flush()

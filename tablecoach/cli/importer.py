@@ -3,9 +3,14 @@
 from __future__ import annotations
 
 import argparse
+import io
+import itertools
 import json
+import shutil
 import sys
-from typing import Any
+import tempfile
+from collections.abc import Iterator
+from typing import IO, Any
 
 from .options import add_common
 
@@ -31,46 +36,93 @@ def register(sub: Any) -> None:
     p.set_defaults(func=run)
 
 
-def _read(name: str, fmt: str | None) -> tuple[str, list[Any], list[tuple[int, str]]]:
+BATCH = 20_000
+"""Attempts checked against the store and added per call (each a few short transactions)."""
+
+
+def _open(name: str, spool: Any) -> IO[str]:
+    """The file (or standard input, spooled to ``spool`` so it can be read twice) as text."""
+    if name != "-":
+        return open(name, encoding="utf-8-sig", newline="")
+    raw = getattr(sys.stdin, "buffer", None)
+    if raw is not None:
+        shutil.copyfileobj(raw, spool)
+    else:  # a text stream without bytes underneath (tests hand one in)
+        for chunk in iter(lambda: sys.stdin.read(1 << 16), ""):
+            spool.write(chunk.encode("utf-8"))
+    spool.seek(0)
+    return io.TextIOWrapper(spool, encoding="utf-8-sig", newline="")
+
+
+def _check(fh: IO[str], name: str, fmt: str | None) -> tuple[str, int, list[tuple[int, str]]]:
+    """First pass: the format, how many good records and every bad line (no attempt kept)."""
     from ..core import formats
+    from ..core.records import Attempt
 
     try:
-        if name == "-":
-            text = sys.stdin.read()
-        else:
-            with open(name, encoding="utf-8-sig", newline="") as fh:
-                text = fh.read()
+        first = fh.readline()
+        fh.seek(0)
+        fmt = fmt or formats.guess_format(name, first.split("\n", 1)[0])
+        good = 0
+        errors: list[tuple[int, str]] = []
+        for item in formats.iter_any(fh, fmt):
+            if isinstance(item, Attempt):
+                good += 1
+            else:
+                errors.append(item)
     except UnicodeDecodeError:
         raise ImportFileError(f"{name}: not UTF-8 text; export it again as UTF-8") from None
     except OSError as exc:
         raise ImportFileError(f"{name}: cannot read the file ({exc.strerror})") from None
-    import io
+    return fmt, good, errors
 
-    first = text.split("\n", 1)[0]
-    fmt = fmt or formats.guess_format(name, first)
-    attempts, errors = formats.read_any(io.StringIO(text, newline=""), fmt)
-    return fmt, attempts, errors
+
+def _good(fh: IO[str], fmt: str) -> Iterator[Any]:
+    """Second pass: only the good records, as they are read."""
+    from ..core import formats
+    from ..core.records import Attempt
+
+    fh.seek(0)
+    for item in formats.iter_any(fh, fmt):
+        if isinstance(item, Attempt):
+            yield item
 
 
 def run(args: argparse.Namespace) -> int:
     from ..core.store import Store
     from ..paths import db_path
+    from .progress import tracked
 
-    fmt, attempts, errors = _read(args.file, args.format)
     where = "standard input" if args.file == "-" else args.file
-    if not args.json:
-        for _, msg in errors:
-            print(f"{where}: {msg}", file=sys.stderr)
-    if errors and not args.skip_bad:
-        if args.json:
-            print(json.dumps({"added": 0, "duplicates": 0, "bad": [list(e) for e in errors]}))
-        n = len(errors)
-        raise ImportFileError(
-            f"{where}: {n} bad line{'s' if n != 1 else ''}, nothing imported; fix "
-            f"{'them' if n != 1 else 'it'} or use --skip-bad to import the good lines"
-        )
-    with Store.open(db_path()) as s:
-        added, dups = s.import_attempts(attempts)
+    with tempfile.TemporaryFile("w+b") as spool:
+        try:
+            fh = _open(args.file, spool)
+        except OSError as exc:
+            raise ImportFileError(f"{args.file}: cannot read the file ({exc.strerror})") from None
+        with fh:
+            fmt, good, errors = _check(fh, args.file, args.format)
+            if not args.json:
+                for _, msg in errors:
+                    print(f"{where}: {msg}", file=sys.stderr)
+            if errors and not args.skip_bad:
+                if args.json:
+                    print(
+                        json.dumps({"added": 0, "duplicates": 0, "bad": [list(e) for e in errors]})
+                    )
+                n = len(errors)
+                raise ImportFileError(
+                    f"{where}: {n} bad line{'s' if n != 1 else ''}, nothing imported; fix "
+                    f"{'them' if n != 1 else 'it'} or use --skip-bad to import the good lines"
+                )
+            added = dups = 0
+            with Store.open(db_path()) as s:
+                # a batch at a time: earlier batches are committed, so a repeat of one of their
+                # attempts later in the file is found in the store and skipped as before
+                items = tracked(_good(fh, fmt), good, "importing")
+                for batch in iter(lambda: list(itertools.islice(items, BATCH)), []):
+                    a, d = s.import_attempts(batch)
+                    added += a
+                    dups += d
     if args.json:
         print(
             json.dumps(

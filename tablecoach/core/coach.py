@@ -22,6 +22,8 @@ import numpy as np
 
 from . import shots, strokes
 from .records import Attempt, ShotRecord
+from .store import Store
+from .store.query import AttemptQuery
 from .table import BUILTIN_TABLES, TableSpec
 
 ZONE_COLS = 4
@@ -107,6 +109,25 @@ def zone_of(shot: ShotRecord, speed: float) -> Zone:
 def zone_of_attempt(a: Attempt) -> Zone:
     """The zone of a logged attempt."""
     return zone_of(a.shot, a.speed)
+
+
+def zone_counts(store: Store, query: AttemptQuery) -> dict[Zone, tuple[int, int]]:
+    """(made, tried) per zone of the attempts ``query`` matches, counted by the store in one
+    aggregate query (the same cells and speed bands as ``zone_of``), without reading any
+    attempt: what the scheduler starts from, at any size of history."""
+    rows = store.cell_counts(
+        query,
+        (COL_WIDTH, ROW_HEIGHT, ZONE_COLS, ZONE_ROWS),
+        shots.SPEED_BANDS,
+        below="slow",
+        above="power",
+    )
+    out: dict[Zone, tuple[int, int]] = {}
+    for family, col, row, band, tried, made in rows:
+        z = Zone(family, col, row, band)
+        m, t = out.get(z, (0, 0))
+        out[z] = (m + made, t + tried)
+    return out
 
 
 # ----- Beta posteriors ------------------------------------------------------------------------

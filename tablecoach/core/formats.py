@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import csv
 import json
-from collections.abc import Iterable
+from collections.abc import Iterable, Iterator
 from typing import IO, Any
 
 from . import validate
@@ -48,20 +48,36 @@ def read_jsonl(fh: IO[str]) -> tuple[list[Attempt], list[tuple[int, str]]]:
 
     Blank lines are skipped. A bad line does not stop the reading of the others.
     """
-    out: list[Attempt] = []
-    errors: list[tuple[int, str]] = []
+    return _collect(iter_jsonl(fh))
+
+
+def iter_jsonl(fh: IO[str]) -> Iterator[Attempt | tuple[int, str]]:
+    """The lines one at a time as they are read: an Attempt, or (line number, message) for a
+    bad line (blank lines are skipped); memory does not grow with the file."""
     for n, line in enumerate(fh, start=1):
         if not line.strip():
             continue
         try:
             obj = validate.json_line(line.rstrip("\r\n"))
         except validate.InputError as exc:
-            errors.append((n, f"line {n}: {exc}"))
+            yield (n, f"line {n}: {exc}")
             continue
         try:
-            out.append(attempt_from_json(obj, n))
+            yield attempt_from_json(obj, n)
         except RecordError as exc:
-            errors.append((n, str(exc)))
+            yield (n, str(exc))
+
+
+def _collect(
+    items: Iterable[Attempt | tuple[int, str]],
+) -> tuple[list[Attempt], list[tuple[int, str]]]:
+    out: list[Attempt] = []
+    errors: list[tuple[int, str]] = []
+    for item in items:
+        if isinstance(item, Attempt):
+            out.append(item)
+        else:
+            errors.append(item)
     return out, errors
 
 
@@ -164,15 +180,19 @@ def _row_to_obj(row: dict[str, str], ln: Line) -> dict[str, Any]:
 def read_csv(fh: IO[str]) -> tuple[list[Attempt], list[tuple[int, str]]]:
     """Read a CSV export; returns (attempts, errors) like read_jsonl (line numbers count the
     header as line 1; a quoted note spanning lines reports the row's first line)."""
+    return _collect(iter_csv(fh))
+
+
+def iter_csv(fh: IO[str]) -> Iterator[Attempt | tuple[int, str]]:
+    """The rows one at a time as they are read, like iter_jsonl (a bad header is one error)."""
     reader = csv.reader(fh)
-    out: list[Attempt] = []
-    errors: list[tuple[int, str]] = []
     try:
         header = next(reader)
     except StopIteration:
-        return out, errors
+        return
     except csv.Error as exc:
-        return out, [(1, f"line 1: not valid CSV ({exc})")]
+        yield (1, f"line 1: not valid CSV ({exc})")
+        return
     header = [h.strip() for h in header]
     missing = [c for c in CSV_COLUMNS if c not in header and c not in _OPTIONAL_CSV]
     unknown = [h for h in header if h not in CSV_COLUMNS]
@@ -181,7 +201,8 @@ def read_csv(fh: IO[str]) -> tuple[list[Attempt], list[tuple[int, str]]]:
         what += ("; " if what else "") + (
             f"unknown columns: {', '.join(unknown)}" if unknown else ""
         )
-        return out, [(1, f"line 1: the header is not a tablecoach CSV header ({what})")]
+        yield (1, f"line 1: the header is not a tablecoach CSV header ({what})")
+        return
     last = reader.line_num
     while True:
         start = last + 1
@@ -190,7 +211,7 @@ def read_csv(fh: IO[str]) -> tuple[list[Attempt], list[tuple[int, str]]]:
         except StopIteration:
             break
         except csv.Error as exc:
-            errors.append((start, f"line {start}: not valid CSV ({exc})"))
+            yield (start, f"line {start}: not valid CSV ({exc})")
             last = reader.line_num
             continue
         last = reader.line_num
@@ -198,17 +219,12 @@ def read_csv(fh: IO[str]) -> tuple[list[Attempt], list[tuple[int, str]]]:
             continue
         ln = Line(start)
         if len(cells) != len(header):
-            errors.append(
-                (start, f"line {start}: {len(cells)} cells, the header has {len(header)}")
-            )
+            yield (start, f"line {start}: {len(cells)} cells, the header has {len(header)}")
             continue
         try:
-            out.append(
-                attempt_from_json(_row_to_obj(dict(zip(header, cells, strict=True)), ln), start)
-            )
+            yield attempt_from_json(_row_to_obj(dict(zip(header, cells, strict=True)), ln), start)
         except RecordError as exc:
-            errors.append((start, str(exc)))
-    return out, errors
+            yield (start, str(exc))
 
 
 def read_any(fh: IO[str], fmt: str) -> tuple[list[Attempt], list[tuple[int, str]]]:
@@ -217,6 +233,15 @@ def read_any(fh: IO[str], fmt: str) -> tuple[list[Attempt], list[tuple[int, str]
         return read_csv(fh)
     if fmt == "jsonl":
         return read_jsonl(fh)
+    raise RecordError(f"unknown format {fmt!r}: use one of {', '.join(FORMATS)}")
+
+
+def iter_any(fh: IO[str], fmt: str) -> Iterator[Attempt | tuple[int, str]]:
+    """Read with the named format one record at a time (iter_jsonl, iter_csv)."""
+    if fmt == "csv":
+        return iter_csv(fh)
+    if fmt == "jsonl":
+        return iter_jsonl(fh)
     raise RecordError(f"unknown format {fmt!r}: use one of {', '.join(FORMATS)}")
 
 

@@ -9,7 +9,7 @@ from typing import Any
 import numpy as np
 
 from . import feedback, shots, strokes
-from .coach import zone_of
+from .coach import Zone, zone_counts, zone_of
 from .records import Attempt, rail_length_diamonds, utc_now
 from .scheduler import Scheduler
 from .shots import Aim, Setup, Stroke
@@ -84,12 +84,15 @@ class Dealer:
         attempts: list[Attempt],
         rng: np.random.Generator,
         model: str = "ideal",
+        counts: dict[Zone, tuple[int, int]] | None = None,
     ) -> None:
         self.table = table
         self.drill = drill
         self.rng = rng
         self.model = model
-        self.scheduler = Scheduler(table, drill, list(attempts), rng, model=DEAL_MODEL)
+        self.scheduler = Scheduler(
+            table, drill, list(attempts), rng, model=DEAL_MODEL, counts=counts
+        )
         self._check: list[Any] = []
         self._check_size = 0
 
@@ -117,11 +120,9 @@ class Dealer:
         """Tell the coach about a logged attempt."""
         self.scheduler.record(attempt)
 
-    def rebuild(self, attempts: list[Attempt]) -> None:
-        """Start the scheduler again from these attempts (after an undo)."""
-        self.scheduler = Scheduler(
-            self.table, self.drill, list(attempts), self.rng, model=DEAL_MODEL
-        )
+    def forget(self, attempt: Attempt) -> None:
+        """Tell the coach an attempt was undone: its counts lose that one attempt."""
+        self.scheduler.forget(attempt)
 
     def pin(self, zone: Any = None, family: str | None = None, count: int = 10) -> None:
         """Keep dealing one zone or family for ``count`` setups."""
@@ -161,8 +162,14 @@ class Session:
         self.player = player
         self.rng = rng
         self.model = model
-        self.earlier = store.attempts(AttemptQuery(player=player, table=table.name))
-        self.dealer = Dealer(table, drill, self.earlier, rng, model)
+        self.query = AttemptQuery(player=player, table=table.name)
+        counts = zone_counts(store, self.query)
+        self._earlier = Stats(
+            sum(t for _, t in counts.values()), sum(m for m, _ in counts.values()), 0, 0
+        )
+        """Earlier sessions' shots and hits, counted once by the store (their runs of hits
+        are not: a run over the whole history would mean reading all of it)."""
+        self.dealer = Dealer(table, drill, [], rng, model, counts=counts)
         self.id = store.start_session(player, table.name, drill_name(drill))
         self.logged: list[Attempt] = []
         self.setups: dict[int, Setup] = {}
@@ -174,6 +181,8 @@ class Session:
         """Each setup is dealt this many times in a row (1: shuffled, a new one every shot)."""
         self.lock = threading.RLock()
         self.dealer_stale = False
+        self._undone: list[Attempt] = []
+        """Undone attempts the coach has not been told about yet (refresh_dealer)."""
 
     # ----- setups -------------------------------------------------------------------------------
     def draw(self) -> Pick:
@@ -231,8 +240,13 @@ class Session:
         """The player's landing bias in the zone of this setup at this stroke, as advice ("you
         land 0.3 long here (6 landings): aim to land 0.3 shorter"); "" with too few landings.
         Slow under the physical model: call it from a worker."""
-        label = zone_of(shots.record_of(self.table, setup), stroke.speed).label
-        seen = [*self.earlier, *self.logged]
+        zone = zone_of(shots.record_of(self.table, setup), stroke.speed)
+        if self.dealer.scheduler.stats(zone).tried < feedback.MIN_BIAS_LANDINGS:
+            return ""  # too few attempts there for a bias: no need to look for their landings
+        label = zone.label
+        seen = self.store.latest_attempts(
+            self.query, feedback.RECENT_LANDINGS, zone=label, landed=True
+        )
         got = feedback.zone_bias(self.table, seen, label, self.model, self.calibration)
         return "" if got is None else feedback.bias_words(*got)
 
@@ -336,22 +350,28 @@ class Session:
         if gone is None:
             return None
         self.logged = [a for a in self.logged if a.id != gone.id]
+        self._undone.append(gone)
         self.dealer_stale = True
         return gone
 
     def refresh_dealer(self) -> None:
-        """Let the coach forget an undone attempt: it starts again from what is still logged.
-        Slow (the coach deals a fresh pool), so the screen runs it in a worker thread."""
+        """Let the coach forget the undone attempts: each takes one attempt off its zone's
+        counts (no rebuild, whatever the size of the history). It waits for a setup being
+        dealt meanwhile, so the screen runs it in a worker thread."""
         with self.lock:
             if self.dealer_stale:
-                self.dealer.rebuild(self.earlier + self.logged)
+                for gone in self._undone:
+                    self.dealer.forget(gone)
+                self._undone.clear()
                 self.dealer_stale = False
 
     def stats(self) -> Stats:
         return stats_of(self.logged)
 
     def earlier_stats(self) -> Stats:
-        return stats_of(self.earlier)
+        """Shots and hits of the player's earlier sessions on this table (streak and best
+        are 0: runs are counted for this session only)."""
+        return self._earlier
 
     def end(self) -> None:
         if not self.ended:

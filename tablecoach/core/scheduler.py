@@ -8,7 +8,7 @@ inside the target band and now and then trying new ground. See docs/coach.md.
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any
 
@@ -76,6 +76,10 @@ class Scheduler:
     choice to one zone or family for a number of setups. Every setup comes from the drill's
     sampler and has a clean path under ``model`` (checked with aims.solve before it is
     proposed). All randomness comes from ``rng``: a seed gives the same choices.
+
+    The counts start from ``attempts`` plus ``counts`` ((made, tried) per zone, as
+    coach.zone_counts gives them from the store without reading the attempts), then follow
+    ``record`` and ``forget`` one attempt at a time.
     """
 
     def __init__(
@@ -92,6 +96,7 @@ class Scheduler:
         explore: float = 0.05,
         run: int = 4,
         sharpen: float = 3.0,
+        counts: Mapping[Zone, tuple[int, int]] | None = None,
     ) -> None:
         lo, hi = target_band
         if not (0.0 < lo < hi < 1.0):
@@ -110,6 +115,8 @@ class Scheduler:
         self._tried: dict[Zone, int] = {}
         self._fam_made: dict[str, int] = {}
         self._fam_tried: dict[str, int] = {}
+        for z, (made, tried) in (counts or {}).items():
+            self._add(z, made, tried)
         for a in attempts:
             self._count(a)
         self._pool: dict[Zone, list[Any]] = {}
@@ -120,17 +127,30 @@ class Scheduler:
         self._refill()
 
     # ----- bookkeeping -------------------------------------------------------------------------
-    def _count(self, a: Attempt) -> None:
-        z = zone_of_attempt(a)
-        self._tried[z] = self._tried.get(z, 0) + 1
-        self._made[z] = self._made.get(z, 0) + int(a.hit)
+    def _add(self, z: Zone, made: int, tried: int) -> None:
+        self._tried[z] = self._tried.get(z, 0) + tried
+        self._made[z] = self._made.get(z, 0) + made
+        if self._tried[z] <= 0:
+            del self._tried[z]
+            self._made.pop(z, None)
         f = z.family
-        self._fam_tried[f] = self._fam_tried.get(f, 0) + 1
-        self._fam_made[f] = self._fam_made.get(f, 0) + int(a.hit)
+        self._fam_tried[f] = self._fam_tried.get(f, 0) + tried
+        self._fam_made[f] = self._fam_made.get(f, 0) + made
+        if self._fam_tried[f] <= 0:
+            del self._fam_tried[f]
+            self._fam_made.pop(f, None)
+
+    def _count(self, a: Attempt) -> None:
+        self._add(zone_of_attempt(a), int(a.hit), 1)
 
     def record(self, attempt: Attempt) -> None:
         """Take a logged attempt into account for the next choices."""
         self._count(attempt)
+
+    def forget(self, attempt: Attempt) -> None:
+        """Take back an attempt recorded (or counted at the start) before: after an undo the
+        counts are as if it had never been logged."""
+        self._add(zone_of_attempt(attempt), -int(attempt.hit), -1)
 
     def zone_of_dealt(self, dealt: Any) -> Zone:
         """The zone of a dealt setup on this scheduler's table."""

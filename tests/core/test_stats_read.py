@@ -13,6 +13,7 @@ import pytest
 
 from tablecoach.core import demo
 from tablecoach.core.records import FLAT_FIELDS, Attempt, ShotRecord, flatten, validate_attempt
+from tablecoach.core.stats import read
 from tablecoach.core.stats.frame import Frame, frame_of
 from tablecoach.core.stats.history import history_dict, summarize
 from tablecoach.core.stats.read import JOINED_FIELDS, read_frame, split_keys
@@ -182,6 +183,18 @@ def test_frame_read_equals_frame_of_attempts_for_every_filter(filled: Store) -> 
         q = AttemptQuery(**kw)  # type: ignore[arg-type]
         assert_frames_equal(read_frame(filled, q), frame_of(filled.attempts(q)))
     assert len(read_frame(filled, AttemptQuery(player="nobody"))) == 0
+
+
+@pytest.mark.parametrize("rows", [1, 7, 64])
+def test_frame_read_in_small_pages_equals_frame_of_attempts(
+    filled: Store, rows: int, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    # read_frame reads a page of rows at a time (bounded memory); pages of any size must give
+    # the frame built from the Attempts themselves
+    monkeypatch.setattr(read, "PAGE_ROWS", rows)
+    for case in filter_cases(filled)[:4]:
+        q = AttemptQuery(**case)  # type: ignore[arg-type]
+        assert_frames_equal(read.read_frame(filled, q), frame_of(filled.attempts(q)))
 
 
 def test_random_data_has_absent_positions_and_both_orders(filled: Store) -> None:

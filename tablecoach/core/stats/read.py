@@ -66,18 +66,136 @@ def read_frame(store: Attempts, query: AttemptQuery = EVERYTHING) -> Frame:
         return _read_frame(store, query)
 
 
+PAGE_ROWS = 20_000
+"""Rows read per page: the memory of one page of Python values, whatever the history's size."""
+
+FLOAT_FIELDS = ("cue_x", "cue_y", "object_x", "object_y", "speed", "aim_used", "landing_at")
+"""The PLAIN_FIELDS read as float columns (None: NaN)."""
+
+
+def _read_paged(store: Attempts, query: AttemptQuery) -> dict[str, Any] | None:
+    """The frame's columns read a page at a time, each page turned into arrays before the
+    next is read (memory: the arrays plus one page); None when some joined text holds the
+    separator (the caller then reads the fields one by one)."""
+    index: dict[str, int] = {}
+    parts: dict[str, list[np.ndarray]] = {
+        k: [] for k in ("us", "ids", "sessions", "key", "land", *FLOAT_FIELDS)
+    }
+    at = {f: i for i, f in enumerate(PLAIN_FIELDS)}
+    width = len(JOINED_FIELDS)
+    for cols in store.attempt_column_pages(query, PLAIN_FIELDS, JOINED_FIELDS, PAGE_ROWS):
+        m = len(cols[-1])
+        texts = cols[len(PLAIN_FIELDS)]
+        known = len(index)
+        key = np.fromiter((index.setdefault(t, len(index)) for t in texts), np.int64, m)
+        if any(t.count(KEY_SEP) != width - 1 for t in list(index)[known:]):
+            return None
+        parts["key"].append(key)
+        parts["us"].append(parse_times(cols[at["when"]]).astype(np.int64))
+        parts["ids"].append(np.fromiter(cols[-2], np.int64, m))
+        parts["sessions"].append(
+            np.fromiter((-1 if s is None else s for s in cols[-1]), np.int64, m)
+        )
+        lcode, lrails = codes(cols[at["landing_rail"]])
+        parts["land"].append(np.array([RAIL_CODE.get(r, 0) for r in lrails], np.int64)[lcode])
+        for f in FLOAT_FIELDS:
+            parts[f].append(_floats(cols[at[f]]))
+    out: dict[str, Any] = {
+        k: (np.concatenate(v) if v else np.zeros(0, np.float64 if k in FLOAT_FIELDS else np.int64))
+        for k, v in parts.items()
+    }
+    combos = []
+    rails_at = JOINED_FIELDS.index("rails")
+    for t in index:
+        got: list[Any] = t.split(KEY_SEP)
+        got[rails_at] = tuple(got[rails_at].split(","))
+        combos.append(tuple(got))
+    out["combos"] = tuple(combos)
+    return out
+
+
 def _read_frame(store: Attempts, query: AttemptQuery) -> Frame:
-    cols = store.attempt_columns(query, PLAIN_FIELDS, JOINED_FIELDS)
+    paged = _read_paged(store, query)
+    if paged is None:
+        return _read_whole(store, query)
+    n = len(paged["ids"])
+    if n == 0:
+        return frame_of([])
+    us, ids, sessions, key = paged["us"], paged["ids"], paged["sessions"], paged["key"]
+    combos: tuple[tuple[Any, ...], ...] = paged["combos"]
+    fl = {f: paged[f] for f in FLOAT_FIELDS}
+    land_code = paged["land"]
+    if n > 1 and not bool(np.all(np.diff(us) >= 0)):  # stored times out of text order
+        order = np.lexsort((ids, us))
+        us, sessions, key, land_code = us[order], sessions[order], key[order], land_code[order]
+        fl = {f: v[order] for f, v in fl.items()}
+
+    def coded(name: str, coder: Coder = codes) -> tuple[np.ndarray, tuple[Any, ...]]:
+        """``coder`` of one joined text field from its distinct combinations (numbered by
+        first appearance, so the codes equal ``coder`` over the rows)."""
+        j = JOINED_FIELDS.index(name)
+        per_combo, distinct = coder([c[j] for c in combos])
+        return per_combo[key], distinct
+
+    result_code, results = coded("result")
+    hit = np.array([r == "hit" for r in results], bool)[result_code]
+    fam, fam_names = coded("family", family_codes)
+    player, player_names = coded("player")
+    table, table_names = coded("table")
+    ses_key = np.where(sessions >= 0, sessions, -1 - (player * len(table_names) + table))
+    ses = first_codes(ses_key)
+    firsts = np.unique(ses, return_index=True)[1]
+    sess = tuple(
+        s if s >= 0 else ("unsaved", player_names[player[i]], table_names[table[i]])
+        for s, i in zip(ses_key[firsts].tolist(), firsts.tolist(), strict=True)
+    )
+    rail_code, rail_seqs = coded("rails")
+    aim_code, aim_rails = coded("aim_rail")
+    nr, na = len(rail_seqs), len(aim_rails)
+    shape = first_codes((table * nr + rail_code) * na + aim_code)
+    first = np.unique(shape, return_index=True)[1]
+    shapes = tuple(
+        (table_names[table[i]], rail_seqs[rail_code[i]], aim_rails[aim_code[i]])
+        for i in first.tolist()
+    )
+    start = np.column_stack((fl["cue_x"], fl["cue_y"]))
+    travel_code, travels = coded("travel")
+    travel = np.array([t == "object" for t in travels], bool)[travel_code]
+    ox, oy = fl["object_x"], fl["object_y"]
+    banks = travel & ~np.isnan(ox) & ~np.isnan(oy)
+    start[banks, 0] = ox[banks]
+    start[banks, 1] = oy[banks]
+    return Frame(
+        attempts=(),
+        order=np.arange(n),
+        ts=us / 1e6,
+        hit=hit,
+        family=fam,
+        families=fam_names,
+        session=ses,
+        sessions=sess,
+        speed=fl["speed"],
+        start=start,
+        shape=shape,
+        shapes=shapes,
+        aim_used=fl["aim_used"],
+        landing_rail=land_code,
+        landing_at=fl["landing_at"],
+        player=player,
+        players=player_names,
+        table=table,
+        tables=table_names,
+        us=us,
+    )
+
+
+def _read_whole(store: Attempts, query: AttemptQuery) -> Frame:
+    """The frame from one read of every field one by one (a joined text held the separator)."""
+    cols = store.attempt_columns(query, (*PLAIN_FIELDS, *JOINED_FIELDS))
     key: np.ndarray | None = None
     combos: tuple[tuple[Any, ...], ...] = ()
-    raw: dict[str, Any] = dict(zip(PLAIN_FIELDS, cols, strict=False))
-    split = split_keys(cols[len(PLAIN_FIELDS)], JOINED_FIELDS)
-    if split is None:  # a value holds the separator: read the fields one by one
-        cols = store.attempt_columns(query, (*PLAIN_FIELDS, *JOINED_FIELDS))
-        raw = dict(zip((*PLAIN_FIELDS, *JOINED_FIELDS), cols, strict=False))
-        raw["rails"] = tuple(tuple(r.split(",")) for r in raw["rails"])
-    else:
-        key, combos = split
+    raw: dict[str, Any] = dict(zip((*PLAIN_FIELDS, *JOINED_FIELDS), cols, strict=False))
+    raw["rails"] = tuple(tuple(r.split(",")) for r in raw["rails"])
     ids = np.fromiter(cols[-2], np.int64, len(cols[-2]))
     n = len(ids)
     if n == 0:

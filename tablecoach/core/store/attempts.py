@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 import gc
-from collections.abc import Iterator, Sequence
+from collections.abc import Iterator, Mapping, Sequence
 from contextlib import contextmanager
 from dataclasses import replace
 from typing import Any
@@ -25,6 +25,12 @@ from .rows import (
 
 IMPORT_CHUNK = 2000
 """Attempts an import writes per transaction."""
+
+READ_BATCH = 5000
+"""Attempts ``Attempts.iter_attempts`` reads per query."""
+
+COLUMN_BATCH = 20_000
+"""Rows ``Attempts.attempt_column_pages`` reads per query."""
 
 KEY_SEP = "\x1f"
 """Joins text fields read as one (``Attempts.attempt_columns``): ASCII unit separator, char(31)."""
@@ -99,6 +105,94 @@ class Attempts(Connection):
             rows = c.execute(f"SELECT {COLS}, id FROM attempts{where} ORDER BY at, id", args)
             return [from_row(r, r[-1]) for r in rows.fetchall()]
 
+    def iter_attempts(
+        self, query: AttemptQuery = EVERYTHING, batch: int = READ_BATCH
+    ) -> Iterator[Attempt]:
+        """The attempts ``query`` matches in the order of ``attempts``, read ``batch`` rows at a
+        time (keyset paging on time then id): memory stays bounded whatever the size of the
+        history, and no read holds the connection between batches."""
+        where, args = query.where()
+        after: tuple[str, int] | None = None
+        while True:
+            page = where if after is None else where + " AND (at, id) > (?, ?)"
+            more = list(args) if after is None else [*args, *after]
+            with self.reading() as c:
+                rows = c.execute(
+                    f"SELECT {COLS}, id FROM attempts{page} ORDER BY at, id LIMIT ?",
+                    (*more, max(int(batch), 1)),
+                ).fetchall()
+            if not rows:
+                return
+            after = (rows[-1][0], rows[-1][-1])
+            with quiet_gc():
+                items = [from_row(r, r[-1]) for r in rows]
+            del rows
+            yield from items
+
+    def latest_attempts(
+        self, query: AttemptQuery, n: int, *, zone: str | None = None, landed: bool = False
+    ) -> list[Attempt]:
+        """The latest ``n`` attempts ``query`` matches, oldest first (time then id), only those
+        stored with the zone label ``zone`` when given, only those with an observed landing when
+        ``landed``: one bounded read, whatever the size of the history."""
+        where, args = query.where()
+        if zone is not None:
+            where += " AND zone = ?"
+            args.append(zone)
+        if landed:
+            where += " AND landing_rail IS NOT NULL AND landing_at IS NOT NULL"
+        with self.reading() as c:
+            rows = c.execute(
+                f"SELECT {COLS}, id FROM attempts{where} ORDER BY at DESC, id DESC LIMIT ?",
+                (*args, max(int(n), 0)),
+            ).fetchall()
+        return [from_row(r, r[-1]) for r in reversed(rows)]
+
+    def cell_counts(
+        self,
+        query: AttemptQuery,
+        cell: tuple[float, float, int, int],
+        bands: Mapping[str, tuple[float, float]],
+        below: str,
+        above: str,
+    ) -> list[tuple[str, int, int, str, int, int]]:
+        """Tried and made per (family, column, row, speed band) of the attempts ``query``
+        matches, counted by SQLite in one aggregate query: no Attempt is built, so the cost
+        is one pass over the matching rows and the memory the number of groups.
+
+        ``cell`` is (column width, row height, columns, rows) in diamonds: the travelling
+        ball's start (the object ball when it travels and is placed, else the cue ball) falls
+        in column ``floor(x / width)`` and row ``floor(y / height)``, clamped to the grid.
+        ``bands`` names half-open speed ranges [low, high) in m/s; a speed below them all is
+        ``below``, any other ``above``. The family is "custom" where none is stored. Rows are
+        (family, column, row, band, tried, made).
+        """
+        width, height, cols, rows_n = cell
+        x = "CASE WHEN travel = 'object' AND object_x IS NOT NULL THEN object_x ELSE cue_x END"
+        y = "CASE WHEN travel = 'object' AND object_x IS NOT NULL THEN object_y ELSE cue_y END"
+        # x / width >= 0 truncates as floor does; a negative quotient clamps to 0 either way
+        col = f"MIN(MAX(CAST(({x}) / ? AS INTEGER), 0), ?)"
+        row = f"MIN(MAX(CAST(({y}) / ? AS INTEGER), 0), ?)"
+        whens = " ".join("WHEN speed >= ? AND speed < ? THEN ?" for _ in bands)
+        lowest = min(lo for lo, _ in bands.values())
+        band = f"CASE {whens} WHEN speed < ? THEN ? ELSE ? END"
+        band_args: list[Any] = []
+        for name, (lo, hi) in bands.items():
+            band_args += [float(lo), float(hi), name]
+        band_args += [float(lowest), below, above]
+        where, args = query.where()
+        sql = (
+            f"SELECT CASE WHEN family = '' THEN 'custom' ELSE family END AS f, {col} AS c, "
+            f"{row} AS r, {band} AS b, COUNT(*), SUM(result = 'hit') "
+            f"FROM attempts{where} GROUP BY f, c, r, b"
+        )
+        params = [float(width), cols - 1, float(height), rows_n - 1, *band_args, *args]
+        with self.reading() as c:
+            return [
+                (str(f), int(cc), int(r), str(b), int(n), int(m or 0))
+                for f, cc, r, b, n, m in c.execute(sql, params)
+            ]
+
     def count_attempts(self, query: AttemptQuery = EVERYTHING) -> int:
         """How many attempts ``query`` matches."""
         where, args = query.where()
@@ -134,6 +228,43 @@ class Attempts(Connection):
             if not rows:
                 return [()] * (len(exprs) + 2)
             return list(zip(*rows, strict=True))
+
+    def attempt_column_pages(
+        self,
+        query: AttemptQuery,
+        fields: Sequence[str],
+        joined: Sequence[str] = (),
+        batch: int = COLUMN_BATCH,
+    ) -> Iterator[list[tuple[Any, ...]]]:
+        """``attempt_columns`` a page of ``batch`` rows at a time (keyset paging on time then
+        id, the same order): the caller turns each page into arrays before the next is read,
+        so no more than one page of Python values is alive at once."""
+        unknown = [f for f in (*fields, *joined) if f not in FIELD_COLUMN]
+        if unknown:
+            raise StoreError(
+                f"unknown attempt field {unknown[0]!r}: fields are {', '.join(FLAT_FIELDS)}"
+            )
+        exprs = [FIELD_COLUMN[f] for f in fields]
+        if joined:
+            exprs.append(" || char(31) || ".join(FIELD_COLUMN[f] for f in joined))
+        select = ", ".join([*exprs, "id", "session_id", "at"])
+        where, args = query.where()
+        after: tuple[str, int] | None = None
+        while True:
+            page = where if after is None else where + " AND (at, id) > (?, ?)"
+            more = list(args) if after is None else [*args, *after]
+            with quiet_gc():
+                with self.reading() as c:
+                    rows = c.execute(
+                        f"SELECT {select} FROM attempts{page} ORDER BY at, id LIMIT ?",
+                        (*more, max(int(batch), 1)),
+                    ).fetchall()
+                if not rows:
+                    return
+                after = (rows[-1][-1], rows[-1][-3])
+                cols = list(zip(*rows, strict=True))[:-1]
+                del rows
+            yield cols
 
     def import_attempts(self, items: Sequence[Attempt]) -> tuple[int, int]:
         """Add attempts from elsewhere; returns (added, duplicates skipped).

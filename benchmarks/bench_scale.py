@@ -1,0 +1,283 @@
+"""Scale: launch, keys, history, export and import against the size of the history (issue 14).
+
+Stores of N attempts are the demo club's four weeks (core/demo.py) replicated further back in
+time, four weeks a copy, written with ``Store.log_many`` in big transactions. Each store is built
+ONCE into a cache folder (default: <tmp>/tablecoach-bench-scale; --cache) and reused by later
+runs; an empty store with the club's tables is the baseline ("0").
+
+Every measurement runs in a fresh Python process (imports included) and reports its wall time
+and its peak resident memory (resource.getrusage(RUSAGE_SELF).ru_maxrss of that process):
+
+- launch: the practice app (headless, 100 x 30) for the club's first player on their table,
+  from spawn to the first card on screen with its aim solved (so h logs a hit);
+- h after u: in one running app, u (undo the last hit) then h at once; h is timed from the press
+  until the next setup is on the table (the store ends as it began: every h is undone);
+- history: ``tablecoach history --json`` over the whole store;
+- export: ``tablecoach export -o FILE`` (JSONL) of the whole store;
+- import: ``tablecoach import FILE`` of that export into an empty data folder.
+
+Run: python benchmarks/bench_scale.py [--sizes 10000 100000] [--repeat 3]. Prints medians;
+asserts nothing (the machines are shared and noisy: goals are read, not enforced).
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import os
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+from dataclasses import replace
+from datetime import UTC, datetime, timedelta
+from pathlib import Path
+
+ROOT = Path(os.environ.get("TABLECOACH_BENCH_ROOT") or Path(__file__).resolve().parents[1])
+"""The checkout measured (TABLECOACH_BENCH_ROOT: another one, e.g. an unpacked older commit)."""
+NOW = datetime(2026, 11, 30, 21, 0, tzinfo=UTC)
+CACHE_VERSION = "1"
+
+LAUNCH = r"""
+import asyncio, json, resource, sys, time
+t0 = time.perf_counter()
+sys.path.insert(0, {root!r})
+from tablecoach.ui.app import build_app
+
+async def main():
+    app = build_app(table={table!r}, player={player!r}, seed=1, model="ideal")
+    async with app.run_test(size=(100, 30)) as pilot:
+        while getattr(app.screen, "aim", None) is None:
+            await asyncio.sleep(0.002)
+        t_ready = time.perf_counter()
+        await pilot.pause()
+    rss = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
+    print(json.dumps({{"seconds": t_ready - t0, "rss_kib": rss}}))
+
+asyncio.run(main())
+"""
+
+KEYS = r"""
+import asyncio, json, resource, sys, time
+sys.path.insert(0, {root!r})
+from tablecoach.ui.app import build_app
+
+async def main():
+    app = build_app(table={table!r}, player={player!r}, seed=2, model="ideal")
+    times = []
+    async with app.run_test(size=(100, 30)) as pilot:
+        async def settle():
+            for _ in range(3):
+                await pilot.pause()
+                await app.workers.wait_for_complete()
+            await pilot.pause()
+
+        async def until(cond):
+            while not cond():
+                await asyncio.sleep(0.0005)
+
+        while getattr(app.screen, "aim", None) is None:
+            await asyncio.sleep(0.002)
+        screen = app.screen
+        s = screen.session
+        await settle()
+        await pilot.press("h")
+        await settle()
+        for _ in range({repeat}):
+            logged = len(s.logged)
+            await pilot.press("u")
+            await until(lambda: len(s.logged) < logged and screen.aim is not None)
+            before = s.pick
+            t0 = time.perf_counter()
+            await pilot.press("h")
+            await until(lambda: s.pick not in (before, None))
+            times.append(time.perf_counter() - t0)
+            await settle()
+        await pilot.press("u")
+        await settle()
+    rss = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
+    print(json.dumps({{"times": times, "rss_kib": rss}}))
+
+asyncio.run(main())
+"""
+
+CLI = r"""
+import json, resource, sys, time
+t0 = time.perf_counter()
+sys.path.insert(0, {root!r})
+from tablecoach.cli import main
+rc = main({argv!r})
+t = time.perf_counter() - t0
+rss = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
+print(json.dumps({{"seconds": t, "rss_kib": rss, "rc": rc}}), file=sys.stderr)
+"""
+
+
+def club_player() -> tuple[str, str]:
+    from tablecoach.core import demo
+
+    p = demo.CLUB_PLAYERS[0]
+    return p.name, p.table
+
+
+def build_store(folder: Path, n: int) -> None:
+    """The demo club replicated back in time to ``n`` attempts, in ``folder`` (built once)."""
+    import numpy as np
+
+    from tablecoach.core import demo
+    from tablecoach.core.store import Store
+    from tablecoach.paths import db_path
+
+    ready = folder / f"ready-{CACHE_VERSION}"
+    if ready.exists():
+        return
+    folder.mkdir(parents=True, exist_ok=True)
+    db_path(folder).unlink(missing_ok=True)
+    t0 = time.perf_counter()
+    club = demo.make_club(np.random.default_rng(11), NOW, weeks=4, tz=UTC)
+    base = sorted((a for s in club.sessions for a in s.attempts), key=lambda a: a.when)
+    with Store.open(db_path(folder)) as store:
+        for spec in club.tables:
+            store.save_table(spec)
+        copies = -(-n // len(base))
+        extra = copies * len(base) - n  # left off the oldest copy
+        pending: list = []
+        for k in reversed(range(copies)):  # copy k lies 4k weeks back; oldest written first
+            shift = timedelta(weeks=4 * k)
+            copy = base[extra:] if k == copies - 1 else base
+            pending.extend(replace(a, when=a.when - shift) for a in copy)
+            if len(pending) >= 50_000 or k == 0:
+                store.log_many(pending)  # one transaction per 50,000 attempts
+                pending = []
+    ready.write_text(f"{n} attempts, built in {time.perf_counter() - t0:.1f} s\n")
+    print(f"  built {n} attempts in {time.perf_counter() - t0:.1f} s into {folder}", flush=True)
+
+
+def run_child(code: str, data: Path) -> dict[str, float]:
+    env = dict(os.environ, TABLECOACH_DATA_DIR=str(data), TABLECOACH_CONFIG_DIR=str(data / "cfg"))
+    t0 = time.perf_counter()
+    out = subprocess.run(
+        [sys.executable, "-c", code], env=env, capture_output=True, text=True, check=False
+    )
+    wall = time.perf_counter() - t0
+    if out.returncode != 0:
+        raise SystemExit(f"child failed ({out.returncode}): {out.stderr.strip()[-800:]}")
+    got: dict[str, float] = json.loads(out.stdout.strip().splitlines()[-1])
+    got["wall"] = wall
+    return got
+
+
+def run_cli(argv: list[str], data: Path) -> dict[str, float]:
+    env = dict(os.environ, TABLECOACH_DATA_DIR=str(data), TABLECOACH_CONFIG_DIR=str(data / "cfg"))
+    code = CLI.format(root=str(ROOT), argv=argv)
+    t0 = time.perf_counter()
+    out = subprocess.run(
+        [sys.executable, "-c", code],
+        env=env,
+        stdout=subprocess.DEVNULL,
+        stderr=subprocess.PIPE,
+        text=True,
+        check=False,
+    )
+    wall = time.perf_counter() - t0
+    last = out.stderr.strip().splitlines()[-1] if out.stderr.strip() else "{}"
+    if out.returncode != 0:
+        raise SystemExit(f"{argv[0]} failed ({out.returncode}): {out.stderr.strip()[-800:]}")
+    got: dict[str, float] = json.loads(last)
+    got["wall"] = wall
+    return got
+
+
+def med(values: list[float]) -> float:
+    return statistics.median(values)
+
+
+PATHS = ("launch", "keys", "history", "export", "import")
+
+
+def measure(
+    folder: Path, repeat: int, player: str, table: str, paths: tuple[str, ...] = PATHS
+) -> dict[str, str]:
+    row = dict.fromkeys(("launch", "h after u", "history --json", "export", "import"), "-")
+    if "launch" in paths:
+        row.update(_launch(folder, repeat, player, table))
+    if "keys" in paths:
+        keys = run_child(
+            KEYS.format(root=str(ROOT), table=table, player=player, repeat=repeat), folder
+        )
+        row["h after u"] = f"{med(keys['times']) * 1000:.0f} ms"  # type: ignore[arg-type]
+    if "history" in paths:
+        hist = [run_cli(["history", "--json"], folder) for _ in range(repeat)]
+        row["history --json"] = (
+            f"{med([r['seconds'] for r in hist]):.2f} s, "
+            f"{med([r['rss_kib'] for r in hist]) / 1024:.0f} MiB"
+        )
+    if "export" in paths or "import" in paths:
+        row.update(_export_import(folder, repeat, "import" in paths))
+    return row
+
+
+def _launch(folder: Path, repeat: int, player: str, table: str) -> dict[str, str]:
+    row: dict[str, str] = {}
+    launch = [
+        run_child(LAUNCH.format(root=str(ROOT), table=table, player=player), folder)
+        for _ in range(repeat)
+    ]
+    row["launch"] = (
+        f"{med([r['seconds'] for r in launch]):.2f} s, "
+        f"{med([r['rss_kib'] for r in launch]) / 1024:.0f} MiB"
+    )
+    return row
+
+
+def _export_import(folder: Path, repeat: int, also_import: bool) -> dict[str, str]:
+    row: dict[str, str] = {}
+    with tempfile.TemporaryDirectory() as tmp:
+        out = Path(tmp) / "all.jsonl"
+        exp = [run_cli(["export", "-o", str(out)], folder) for _ in range(repeat)]
+        row["export"] = (
+            f"{med([r['seconds'] for r in exp]):.2f} s, "
+            f"{med([r['rss_kib'] for r in exp]) / 1024:.0f} MiB"
+        )
+        if not also_import:
+            return row
+        imp = []
+        for k in range(repeat):
+            fresh = Path(tmp) / f"fresh{k}"
+            fresh.mkdir()
+            imp.append(run_cli(["import", str(out)], fresh))
+        row["import"] = (
+            f"{med([r['seconds'] for r in imp]):.2f} s, "
+            f"{med([r['rss_kib'] for r in imp]) / 1024:.0f} MiB"
+        )
+    return row
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--sizes", type=int, nargs="+", default=[0, 10_000, 100_000])
+    ap.add_argument("--repeat", type=int, default=3)
+    ap.add_argument(
+        "--cache", type=Path, default=Path(tempfile.gettempdir()) / "tablecoach-bench-scale"
+    )
+    ap.add_argument("--paths", nargs="+", choices=PATHS, default=list(PATHS))
+    args = ap.parse_args()
+    sys.path.insert(0, str(ROOT))
+    player, table = club_player()
+    rows: dict[str, dict[str, str]] = {}
+    for n in args.sizes:
+        folder = args.cache / str(n)
+        build_store(folder, n)
+        print(f"measuring {n} attempts ({args.repeat} runs each)...", flush=True)
+        rows[str(n)] = measure(folder, args.repeat, player, table, tuple(args.paths))
+    paths = list(next(iter(rows.values())))
+    print()
+    print("| path | " + " | ".join(rows) + " |")
+    print("|---|" + "---|" * len(rows))
+    for p in paths:
+        print(f"| {p} | " + " | ".join(rows[n][p] for n in rows) + " |")
+
+
+if __name__ == "__main__":
+    main()
