@@ -93,3 +93,15 @@ def test_a_bad_line_is_refused_in_one_line(tmp_path: Path, bad: dict[str, object
             s.add_reference(replace(REF, **bad))  # type: ignore[arg-type]
         assert "\n" not in str(err.value)
         assert s.references() == []
+
+
+def test_the_same_line_kept_twice_is_kept_once(tmp_path: Path) -> None:
+    # Seen in a terminal: `k` pressed twice after one hit kept two identical lines. The same
+    # line (player, table, family, start, reading, stroke) is one reference; another reading
+    # is another one.
+    with Store.open(tmp_path / "tablecoach.sqlite3") as s:
+        first = s.add_reference(REF)
+        again = s.add_reference(REF)
+        other = s.add_reference(replace(REF, reading=REF.reading + 0.25))
+        assert again == first and other != first
+        assert len(s.references()) == 2

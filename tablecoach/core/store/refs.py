@@ -143,6 +143,26 @@ class Refs(Connection):
                 "INSERT OR IGNORE INTO players (name, created) VALUES (?, ?)",
                 (ref.player, iso_utc(utc_now())),
             )
+            same = c.execute(
+                "SELECT id FROM refs WHERE player = ? AND table_name = ? AND family = ? "
+                "AND rails = ? AND start_x = ? AND start_y = ? AND reading = ? AND speed = ? "
+                "AND english = ? AND follow = ? AND pocket IS ?",
+                (
+                    ref.player,
+                    ref.table,
+                    ref.family,
+                    ",".join(ref.rails),
+                    ref.start[0],
+                    ref.start[1],
+                    ref.reading,
+                    ref.speed,
+                    ref.english,
+                    ref.follow,
+                    ref.pocket,
+                ),
+            ).fetchone()
+            if same is not None:  # the same line kept again: one copy
+                return int(same[0])
             cur = c.execute(
                 f"INSERT INTO refs ({_COLS.removeprefix('id, ')}) "
                 "VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
