@@ -11,7 +11,7 @@ from typing import TYPE_CHECKING, Any
 from ..core import strokes
 
 if TYPE_CHECKING:
-    from ..core.shots import Setup, Stroke
+    from ..core.shots import Family, Setup, Stroke
     from ..core.store import Store
     from ..core.store.query import AttemptQuery
     from ..core.table import TableSpec
@@ -158,12 +158,10 @@ def resolve_table(name: str | None, player: str | None = None) -> tuple[TableSpe
     return r.table, r.calibration, r.status
 
 
-def setup_from_args(args: argparse.Namespace) -> tuple[TableSpec, Setup, Stroke, str]:
-    """(table, setup, stroke, status) from the shared shot options."""
+def family_from_args(args: argparse.Namespace) -> Family:
+    """The shot family from --family, or --travel with --rails (either may refine a preset)."""
     from ..core import shots
-    from ..core.shots import ShotError
 
-    table, calibration, status = resolve_table(args.table, getattr(args, "player", None))
     if args.family:
         fam = shots.preset(args.family)
         if args.travel or args.rails:
@@ -173,10 +171,19 @@ def setup_from_args(args: argparse.Namespace) -> tuple[TableSpec, Setup, Stroke,
                 fam.pocket,
                 name="custom",
             )
-    elif args.travel and args.rails:
-        fam = shots.make_family(args.travel, [r.strip() for r in args.rails.split(",")])
-    else:
-        raise ShotError("name a shot: --family NAME, or --travel cue|object with --rails")
+        return fam
+    if args.travel and args.rails:
+        return shots.make_family(args.travel, [r.strip() for r in args.rails.split(",")])
+    raise shots.ShotError("name a shot: --family NAME, or --travel cue|object with --rails")
+
+
+def setup_from_args(args: argparse.Namespace) -> tuple[TableSpec, Setup, Stroke, str]:
+    """(table, setup, stroke, status) from the shared shot options."""
+    from ..core import shots
+    from ..core.shots import ShotError
+
+    table, calibration, status = resolve_table(args.table, getattr(args, "player", None))
+    fam = family_from_args(args)
     cue = parse_point(args.cue, "--cue")
     if cue is None:
         raise ShotError("the cue ball's position is needed: --cue X,Y (diamonds)")

@@ -113,21 +113,9 @@ def _add(args: argparse.Namespace, store: Any) -> Any:
     from ..core.aim.shift import reference_direction
     from ..core.store.refs import Reference
     from ..core.table import DEFAULT_TABLE
-    from .options import resolve_table
+    from .options import family_from_args, resolve_table
 
-    if args.family:
-        fam = shots.preset(args.family)
-        if args.travel or args.rails:
-            fam = shots.make_family(
-                args.travel or fam.travel,
-                (args.rails or ",".join(fam.rails)).split(","),
-                fam.pocket,
-                name="custom",
-            )
-    elif args.travel and args.rails:
-        fam = shots.make_family(args.travel, [r.strip() for r in args.rails.split(",")])
-    else:
-        raise shots.ShotError("name a shot: --family NAME, or --travel cue|object with --rails")
+    fam = family_from_args(args)
     table, _, _ = resolve_table(args.table, args.player)
     start = parse_point(args.start, "--start")
     target = parse_point(args.target_ball, "--target-ball")

@@ -137,11 +137,25 @@ def _read_frame(store: Attempts, query: AttemptQuery) -> Frame:
         per_combo, distinct = coder([c[j] for c in combos])
         return per_combo[key], distinct
 
+    return _assemble(coded, n, us, sessions, fl, land_code)
+
+
+def _assemble(
+    coded: Callable[..., tuple[np.ndarray, tuple[Any, ...]]],
+    n: int,
+    us: np.ndarray,
+    sessions: np.ndarray,
+    fl: dict[str, np.ndarray],
+    land_code: np.ndarray,
+) -> Frame:
+    """The Frame from a reader's coded text fields (``coded``), its rows' times, sessions, float
+    columns (FLOAT_FIELDS) and landing rail codes, in time order (both readers end here)."""
     result_code, results = coded("result")
     hit = np.array([r == "hit" for r in results], bool)[result_code]
     fam, fam_names = coded("family", family_codes)
     player, player_names = coded("player")
     table, table_names = coded("table")
+    # sessions keyed as in ``frame_of``: the store's id, or ("unsaved", player, table)
     ses_key = np.where(sessions >= 0, sessions, -1 - (player * len(table_names) + table))
     ses = first_codes(ses_key)
     firsts = np.unique(ses, return_index=True)[1]
@@ -220,56 +234,7 @@ def _read_whole(store: Attempts, query: AttemptQuery) -> Frame:
                 return per_combo[key], distinct
         return coder(raw[name])
 
-    result_code, results = coded("result")
-    hit = np.array([r == "hit" for r in results], bool)[result_code]
-    fam, fam_names = coded("family", family_codes)
-    player, player_names = coded("player")
-    table, table_names = coded("table")
-    # sessions keyed as in ``frame_of``: the store's id, or ("unsaved", player, table)
-    ses_key = np.where(sessions >= 0, sessions, -1 - (player * len(table_names) + table))
-    ses = first_codes(ses_key)
-    firsts = np.unique(ses, return_index=True)[1]
-    sess = tuple(
-        s if s >= 0 else ("unsaved", player_names[player[i]], table_names[table[i]])
-        for s, i in zip(ses_key[firsts].tolist(), firsts.tolist(), strict=True)
-    )
-    rail_code, rail_seqs = coded("rails")
-    aim_code, aim_rails = coded("aim_rail")
-    nr, na = len(rail_seqs), len(aim_rails)
-    shape = first_codes((table * nr + rail_code) * na + aim_code)
-    first = np.unique(shape, return_index=True)[1]
-    shapes = tuple(
-        (table_names[table[i]], rail_seqs[rail_code[i]], aim_rails[aim_code[i]])
-        for i in first.tolist()
-    )
-    start = np.column_stack((_floats(raw["cue_x"]), _floats(raw["cue_y"])))
-    travel_code, travels = coded("travel")
-    travel = np.array([t == "object" for t in travels], bool)[travel_code]
-    ox, oy = _floats(raw["object_x"]), _floats(raw["object_y"])
-    banks = travel & ~np.isnan(ox) & ~np.isnan(oy)
-    start[banks, 0] = ox[banks]
-    start[banks, 1] = oy[banks]
+    fl = {f: _floats(raw[f]) for f in FLOAT_FIELDS}
     lcode, lrails = codes(raw["landing_rail"])
     land_code = np.array([RAIL_CODE.get(r, 0) for r in lrails], np.int64)[lcode]
-    return Frame(
-        attempts=(),
-        order=np.arange(n),
-        ts=us / 1e6,
-        hit=hit,
-        family=fam,
-        families=fam_names,
-        session=ses,
-        sessions=sess,
-        speed=_floats(raw["speed"]),
-        start=start,
-        shape=shape,
-        shapes=shapes,
-        aim_used=_floats(raw["aim_used"]),
-        landing_rail=land_code,
-        landing_at=_floats(raw["landing_at"]),
-        player=player,
-        players=player_names,
-        table=table,
-        tables=table_names,
-        us=us,
-    )
+    return _assemble(coded, n, us, sessions, fl, land_code)
