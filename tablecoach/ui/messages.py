@@ -14,7 +14,8 @@ class SetupDealt(Message):
 
     ``generation`` names the dealer state it was drawn from; a pin or a new session moves the
     generation on, so a setup dealt before it is dropped. ``error`` says why nothing was dealt.
-    ``drawn`` is (picture, ((width, height), lines)): the table picture drawn in the worker.
+    ``drawn`` is (picture, ((width, height), lines)): the table picture drawn in the worker,
+    with the convergence point ``conv`` when it was found.
     """
 
     def __init__(
@@ -25,9 +26,11 @@ class SetupDealt(Message):
         error: str = "",
         note: str = "",
         drawn: Any = None,
+        conv: Convergence | None = None,
     ) -> None:
         super().__init__()
         self.drawn = drawn
+        self.conv = conv
         self.generation = generation
         self.pick = pick
         self.aim = aim
