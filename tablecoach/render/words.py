@@ -14,6 +14,7 @@ from tablecoach.core.shots import (
 )
 from tablecoach.core.spin import english_kind
 from tablecoach.core.strokes import speed_name, travel_lengths
+from tablecoach.core.summary import family_title
 from tablecoach.core.table import TableSpec
 
 RAIL_ORDER = ("head", "left", "foot", "right")
@@ -29,6 +30,12 @@ def num(v: float, places: int = 2) -> str:
 def count(n: int, word: str) -> str:
     """'1 shot', '2 shots', '0 hits'."""
     return f"{n} {word}" if n == 1 else f"{n} {word}s"
+
+
+def family_text(name: str) -> str:
+    """A family as players say it ("Two-rail kick" for ``two-rail-kick``); a family of the
+    player's own (a pack's custom name) is said as it was named. Machine names stay in JSON."""
+    return family_title(name)
 
 
 def placement(table: TableSpec, what: str, p: tuple[float, float]) -> str:
