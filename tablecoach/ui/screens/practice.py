@@ -447,7 +447,7 @@ class PracticeScreen(
     def action_help(self) -> None:
         from .help import HelpScreen
 
-        self.app.push_screen(HelpScreen())
+        self.app.push_screen(HelpScreen(self.ascii_only))
 
     def action_quit_session(self) -> None:
         self.app.action_summary()
