@@ -190,6 +190,32 @@ def shift_text(table: TableSpec, setup: Setup, shift: ReferenceShift) -> str:
     return text + f"; the model says {num(shift.solved.reading / u)}"
 
 
+SAME_SPIN = 0.05
+"""Tips of english or follow closer than this count as the same spin."""
+
+
+def reference_stroke_text(table: TableSpec, ref: Stroke, stroke: Stroke) -> str:
+    """What a reference line played at another stroke means for the turn, in a player's words
+    ("your line: medium; this shot: slow. Speed moves the point; the turn assumes the same
+    stroke"); "" when the named stroke and the spin are the same."""
+    speed = speed_name(ref.speed, table) != speed_name(stroke.speed, table)
+    spin = abs(ref.english - stroke.english) >= SAME_SPIN or (
+        abs(ref.follow - stroke.follow) >= SAME_SPIN
+    )
+    if not (speed or spin):
+        return ""
+
+    def said(s: Stroke) -> str:
+        parts = [speed_name(s.speed, table)] if speed else []
+        return ", ".join([*parts, spin_text(s)] if spin else parts)
+
+    moves = "Speed and spin move" if speed and spin else "Speed moves" if speed else "Spin moves"
+    return (
+        f"your line: {said(ref)}; this shot: {said(stroke)}. {moves} the point; "
+        "the turn assumes the same stroke"
+    )
+
+
 MODEL_WORDS = {
     "ideal": "ideal (mirror reflection, no spin or cushion loss)",
     "physical": "physical (cloth friction, spin, cushion impact)",

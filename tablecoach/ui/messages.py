@@ -6,7 +6,7 @@ from typing import Any
 
 from textual.message import Message
 
-from tablecoach.core.shots import Aim, Convergence
+from tablecoach.core.shots import Aim, Convergence, Stroke
 
 
 class SetupDealt(Message):
@@ -76,12 +76,14 @@ class CalibrationDone(Message):
 
 class ShiftFound(Message):
     """The player's reference line for this family moved to the setup on screen
-    (core/aim/shift.py's ReferenceShift); ``token`` names the setup it was for."""
+    (core/aim/shift.py's ReferenceShift), with the stroke that line was played at; ``token``
+    names the setup it was for."""
 
-    def __init__(self, token: int, shift: Any) -> None:
+    def __init__(self, token: int, shift: Any, stroke: Stroke | None = None) -> None:
         super().__init__()
         self.token = token
         self.shift = shift
+        self.stroke = stroke
 
 
 class SpeedsFound(Message):

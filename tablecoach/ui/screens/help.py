@@ -71,7 +71,9 @@ def turn_text(ascii_only: bool = False) -> str:
         f"({g.extension}). From a line you trust, turn it about that point to reach a new "
         "position; do not slide it parallel. With a reference line kept (k after a hit), the "
         f"card shows three lines: {g.parallel} your line slid parallel and what it misses by, "
-        f"{g.turned} your line turned about the point, and {g.path} the model's aim. "
+        f"{g.turned} your line turned about the point, and {g.path} the model's aim. The turn "
+        "assumes the same stroke: speed moves the point, so the card says when your line was "
+        "played at another stroke. "
         f"w draws the same reading at the next softer ({g.softer}) and firmer ({g.firmer}) "
         "stroke. More: docs/rotation.md."
     )
