@@ -32,10 +32,14 @@ def count(n: int, word: str) -> str:
     return f"{n} {word}" if n == 1 else f"{n} {word}s"
 
 
-def family_text(name: str) -> str:
-    """A family as players say it ("Two-rail kick" for ``two-rail-kick``); a family of the
-    player's own (a pack's custom name) is said as it was named. Machine names stay in JSON."""
-    return family_title(name)
+def family_text(name: str, in_sentence: bool = False) -> str:
+    """A family as players say it ("Two-rail kick" for ``two-rail-kick``, "two-rail kick"
+    ``in_sentence``); a family of the player's own (a pack's custom name) is said as it was
+    named. Machine names stay in JSON."""
+    title = family_title(name)
+    if in_sentence and title != name:
+        return title[:1].lower() + title[1:]
+    return title
 
 
 def placement(table: TableSpec, what: str, p: tuple[float, float]) -> str:

@@ -143,3 +143,24 @@ async def test_a_line_played_at_another_stroke_is_said_and_the_closest_stroke_is
         assert abs(screen.shift.reference_reading / u - 3.7) < 1e-9  # the slow line, not 3.8
         card = text_of(app, "#card")
         assert "line slid" in card and "moves the point" not in card
+
+
+async def test_r_after_k_shows_the_kept_line_on_the_same_setup(make_app):
+    # the setup comes back with its aim and point remembered: the kept line is still moved to
+    # it (it is that line, so slid, turned and solved agree: the ideal model, docs/model.md)
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("h")
+        await settle(pilot)
+        await pilot.press("k")
+        await settle(pilot)
+        assert "your one-rail kick reference" in text_of(app, "#message")
+        await pilot.press("r")
+        await settle(pilot)
+        moved = app.screen.shift
+        assert moved is not None
+        u = app.screen.session.table.rail_unit("right")  # readings are kept to 0.01 diamond
+        assert abs(moved.parallel.reading - moved.solved.reading) / u <= 0.005 + 1e-9
+        assert abs(moved.rotated.reading - moved.solved.reading) / u < 1e-6
+        assert "line slid" in text_of(app, "#card")

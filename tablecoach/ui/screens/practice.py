@@ -246,13 +246,18 @@ class PracticeScreen(
     def _after_shown(self, token: int, aim: Aim | None) -> None:
         if aim is not None and token == self.token:
             if self.conv is not None:  # found with the setup dealt ahead
-                self.shift_for = token
-                self.start_shift(token, aim, self.conv)
-                self.start_speeds(token, aim)
-                self._bias_worker(token, aim.setup, aim.stroke)
+                self._point_known(token, aim)
             else:
                 self._conv_worker(token, aim.setup, aim.stroke, aim.model)
         self._deal_ahead()
+
+    def _point_known(self, token: int, aim: Aim) -> None:
+        """The convergence point came with the aim (dealt ahead, or remembered): the work that
+        waits for it starts now (the reference line moved here, speed paths, the zone's bias)."""
+        self.shift_for = token
+        self.start_shift(token, aim, self.conv)
+        self.start_speeds(token, aim)
+        self._bias_worker(token, aim.setup, aim.stroke)
 
     def _solve(self) -> None:
         """Solve the aim of the shown setup again (new stroke, or a setup put back)."""
@@ -392,8 +397,8 @@ class PracticeScreen(
     def _after_solved(self, token: int, aim: Aim, need_conv: bool = True) -> None:
         if token == self.token and need_conv:
             self._conv_worker(token, aim.setup, aim.stroke, aim.model)
-        elif token == self.token:  # a remembered aim: only the zone's bias is worked out again
-            self._bias_worker(token, aim.setup, aim.stroke)
+        elif token == self.token:  # a remembered aim and point: what waits for the point
+            self._point_known(token, aim)
         if self.refresh_dealer:
             self.refresh_dealer = False
             self._refresh_dealer_worker()

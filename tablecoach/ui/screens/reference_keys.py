@@ -52,7 +52,8 @@ class ReferenceKeys:
             self.say(f"line not kept: {exc}", True)
             return
         self.say(
-            f"kept your {w.num(a.aim_used)} line as the {a.shot.family} reference (? explains)"
+            f"kept your {w.num(a.aim_used)} line as your "
+            f"{w.family_text(a.shot.family, in_sentence=True)} reference (? explains)"
         )
 
     def start_shift(self, token: int, aim: Aim | None, conv: Convergence | None) -> None:
