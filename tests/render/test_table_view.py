@@ -74,7 +74,7 @@ def test_aim_marker_and_diamond_numbers():
         assert str(k) in text
 
 
-@pytest.mark.parametrize("width,height", [(62, 19), (44, 13), (76, 29)])
+@pytest.mark.parametrize("width,height", [(62, 19), (44, 13), (75, 29)])
 def test_zoomed_out_the_point_is_drawn_where_it_lies(width, height):
     # the table panel's drawing sizes at 100x30, 80x24 and 120x40: zoomed out, the largest
     # scale (in half steps) that takes the point is used, and the point's glyph sits at its
