@@ -132,3 +132,31 @@ def test_data_dir_before_the_command_name_is_kept(tmp_path, monkeypatch):
     args = build_parser().parse_args(["aim", "--data-dir", str(tmp_path), "--cue", "1,1"])
     assert args.data_dir == str(tmp_path)
     assert "TABLECOACH_DATA_DIR" not in os.environ
+
+
+def test_aim_text_draws_a_far_point_where_it_lies(capsys, tmp_path):
+    # a three-rail kick whose point (the JSON's) lies more than 5 diamonds past the foot rail
+    # and 4 past the right rail: the diagram zooms out so the point's glyph is drawn where it
+    # lies, in true proportion to the frame (a diamond 2k columns and k rows; common practice
+    # for terminal cells, no source), not as an arrow at the edge
+    code, out, err = run_cli(
+        capsys, "aim", "--data-dir", str(tmp_path), "--family", "three-rail-kick", "--cue",
+        "3,1.5", "--target-ball", "2,1", "--speed", "fast", "--model", "ideal",
+    )  # fmt: skip
+    assert code == 0, err
+    lines = out.splitlines()
+    top = next(i for i, line in enumerate(lines) if line.lstrip().startswith("\u25d9"))
+    bottom = max(i for i, line in enumerate(lines) if line.lstrip().startswith("\u25d9"))
+    left, right = lines[top].index("\u25d9"), lines[top].rindex("\u25d9")
+    cw, rh = (right - left - 2) / 8, (bottom - top - 2) / 4
+    assert cw == 2 * rh
+    code, js, _ = run_cli(
+        capsys, "aim", "--data-dir", str(tmp_path), "--family", "three-rail-kick", "--cue",
+        "3,1.5", "--target-ball", "2,1", "--speed", "fast", "--model", "ideal", "--json",
+    )  # fmt: skip
+    conv = json.loads(js)["convergence"]
+    assert conv["x"] > 8 + 5 and conv["y"] > 4 + 4  # beyond the old 5-diamond margin
+    found = [(i, j) for i, line in enumerate(lines) for j, ch in enumerate(line) if ch == "\u271a"]
+    row, col = top + 1 + conv["y"] * rh, left + 1 + conv["x"] * cw
+    assert any(abs(i - row) <= 0.5 and abs(j - col) <= 0.5 for i, j in found), found
+    assert not any(a in out for a in "\u2191\u2193\u2190\u2192")  # no arrow at the edge

@@ -9,6 +9,7 @@ from zoneinfo import ZoneInfo
 import pytest
 
 from tablecoach import cli
+from tablecoach.core import shots
 from tablecoach.core.records import Attempt, ShotRecord
 from tablecoach.core.store import Store
 from tablecoach.core.store.query import AttemptQuery
@@ -65,6 +66,18 @@ def test_history_family_filter_and_text(demo_dir, capsys):
     n = len(stored(demo_dir, family="two-rail-kick"))
     assert f"of {n} made" in text
     assert "streak:" in text and "days in a row" in text
+
+
+def test_history_text_says_families_in_words_and_json_keeps_names(demo_dir, capsys):
+    # the text reads "Two-rail kick" (each preset's title); --json keeps the machine names
+    assert cli.main(["history", "--json"]) == 0
+    names = set(json.loads(capsys.readouterr().out)["families"])
+    assert names and names <= set(shots.PRESETS)
+    assert cli.main(["history"]) == 0
+    text = capsys.readouterr().out
+    for name in names:
+        assert shots.PRESETS[name].title in text
+        assert name not in text
 
 
 def test_history_map_is_plain_ascii(demo_dir, capsys):

@@ -36,6 +36,19 @@ def register(sub: Any) -> None:
         metavar="R",
         help="the reference shot's reading on the first rail, in diamonds",
     )
+    r.add_argument(
+        "--ref-speed",
+        default=None,
+        metavar="STROKE",
+        help="the stroke the reference shot was played at, as --speed takes it (default: this "
+        "shot's); another stroke is said in words, since speed moves the point",
+    )
+    r.add_argument(
+        "--ref-english", type=number(-1.0, 1.0, "tips"), default=None, help="its english, tips"
+    )
+    r.add_argument(
+        "--ref-follow", type=number(-1.0, 1.0, "tips"), default=None, help="its follow, tips"
+    )
     p.add_argument("--ascii", action="store_true", help="plain ASCII diagram")
     p.add_argument("--no-diagram", action="store_true", help="numbers only")
     p.set_defaults(func=run)
@@ -110,10 +123,19 @@ def run(args: argparse.Namespace) -> int:
     except shots.ShotError:
         conv = None
     data = aim_to_json(table, aim, conv, status)
-    moved = None
+    moved = ref_stroke = None
+    given = (args.ref_speed, args.ref_english, args.ref_follow)
+    if args.ref_start is None and args.ref_reading is None and any(v is not None for v in given):
+        raise shots.ShotError(
+            "--ref-speed, --ref-english and --ref-follow describe a reference line: "
+            "give it with --ref-start X,Y and --ref-reading R"
+        )
     if args.ref_start is not None or args.ref_reading is not None:
         moved = _shift(args, table, setup, aim, conv)
         data["shift"] = shift_to_json(table, setup, moved)
+        ref_stroke = _ref_stroke(args, table, aim.stroke)
+        if ref_stroke is not None:
+            data["reference_stroke"] = ref_stroke_json(table, ref_stroke, aim.stroke)
     if args.json:
         json.dump(data, sys.stdout, indent=2)
         sys.stdout.write("\n")
@@ -122,9 +144,13 @@ def run(args: argparse.Namespace) -> int:
 
     aim_report(table, aim, conv, data, ascii_only=args.ascii, diagram=not args.no_diagram)
     if moved is not None:
-        from ..render.words import shift_text
+        from ..render.words import reference_stroke_text, shift_text
 
         print(f"reference: {shift_text(table, setup, moved)}")
+        if ref_stroke is not None and (
+            said := reference_stroke_text(table, ref_stroke, aim.stroke)
+        ):
+            print(f"stroke: {said}")
     return 0
 
 
@@ -142,6 +168,35 @@ def _shift(args: argparse.Namespace, table: Any, setup: Any, aim: Any, conv: Any
     start = table.to_metres(*start_d)
     reading = table.along_to_metres(rail, args.ref_reading)
     return aims.shift(table, setup, start, reading, aim, conv, aim.stroke, args.model)
+
+
+def _ref_stroke(args: argparse.Namespace, table: Any, stroke: Any) -> Any:
+    """The reference shot's stroke from --ref-speed/--ref-english/--ref-follow (what is not
+    given is this shot's), or None when none of them is given."""
+    from ..core import shots, strokes
+
+    if args.ref_speed is None and args.ref_english is None and args.ref_follow is None:
+        return None
+    speed = stroke.speed if args.ref_speed is None else strokes.parse_speed(args.ref_speed, table)
+    english = stroke.english if args.ref_english is None else args.ref_english
+    follow = stroke.follow if args.ref_follow is None else args.ref_follow
+    return shots.Stroke(speed, english, follow)
+
+
+def ref_stroke_json(table: Any, ref: Any, stroke: Any) -> dict[str, Any]:
+    """``reference_stroke``, a sibling of ``shift``: the reference's stroke, whether it is this
+    shot's (same named stroke and spin), and the words when it is not."""
+    from ..core.strokes import speed_name
+    from ..render.words import reference_stroke_text
+
+    said = reference_stroke_text(table, ref, stroke)
+    return {
+        "speed": {"m_per_s": ref.speed, "name": speed_name(ref.speed, table)},
+        "english": ref.english,
+        "follow": ref.follow,
+        "same_as_shot": not said,
+        "note": said,
+    }
 
 
 def shift_to_json(table: Any, setup: Any, moved: Any) -> dict[str, Any]:

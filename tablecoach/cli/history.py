@@ -34,6 +34,7 @@ def register(sub: Any) -> None:
 def text_report(h: History, said: str, tz: tzinfo | None, tz_name: str) -> str:
     """The history as plain text; ``said`` is the filters in words (``options.describe``)."""
     from ..render.rates import pct, spark
+    from ..render.words import family_text
 
     lines = [f"History: {said} (days and weeks in {tz_name})"]
     if h.rate.attempts == 0:
@@ -55,7 +56,8 @@ def text_report(h: History, said: str, tz: tzinfo | None, tz_name: str) -> str:
     for fam, r in sorted(h.families.items(), key=lambda kv: -kv[1].attempts):
         fs = h.family_streaks[fam]
         lines.append(
-            f"{fam:<20} {r.hits:>4}/{r.attempts:<4}  {pct(r):<18} {fs.current:>2}/{fs.best:<3}  "
+            f"{family_text(fam):<20} {r.hits:>4}/{r.attempts:<4}  {pct(r):<18} "
+            f"{fs.current:>2}/{fs.best:<3}  "
             f"|{spark(h.family_weeks[fam])}|"
         )
     lines.append("")
@@ -71,7 +73,8 @@ def text_report(h: History, said: str, tz: tzinfo | None, tz_name: str) -> str:
         lines.append("landing against ideal reflection of the aim used (+ long, - short):")
         for b in h.bias[:8]:
             lines.append(
-                f"  {b.family:<20} {b.speed:<7} {b.mean:+.2f} +- {b.stderr:.2f} diamond "
+                f"  {family_text(b.family):<20} {b.speed:<7} "
+                f"{b.mean:+.2f} +- {b.stderr:.2f} diamond "
                 f"over {b.attempts} ({b.long} long, {b.short} short)"
             )
     lines.append("")

@@ -69,7 +69,8 @@ class HeatMap:
 
     def lines(self, width: int, height: int | None = None) -> list[Text]:
         view = TableView(Picture(), self.ascii_only, self.rows, self.max_height, margin=0.0)
-        rows, _ = view.fit(width, height if height is not None else self.max_height)
+        fitted, _ = view.fit(width, height if height is not None else self.max_height)
+        rows = int(fitted)  # whole rows a diamond: this picture is never zoomed out
         cw = 2 * rows
         ncols, nrows = self.grid
         span_c = 8 * cw + 1  # cloth columns 0..8*cw

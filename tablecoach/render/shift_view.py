@@ -30,10 +30,16 @@ def with_shift(table: TableSpec, picture: Picture, shift: ReferenceShift) -> Pic
 
 
 def shift_lines(
-    table: TableSpec, setup: Setup, shift: ReferenceShift, ascii_only: bool = False
+    table: TableSpec,
+    setup: Setup,
+    shift: ReferenceShift,
+    ascii_only: bool = False,
+    stroke_note: str = "",
 ) -> list[Text]:
     """Three short lines, each led by its glyph on the drawing: the reference slid parallel
-    (and what it misses by), the line turned about the point, and the model's aim."""
+    (and what it misses by), the line turned about the point, and the model's aim; then
+    ``stroke_note`` (words.reference_stroke_text) when the reference was played at another
+    stroke."""
     g = ASCII if ascii_only else UNICODE
     u = table.rail_unit(setup.family.rails[0])
     what = "pocket" if setup.pocket is not None else "ball"
@@ -58,4 +64,6 @@ def shift_lines(
         t = Text(ch, STYLES[style])
         t.append(f" {text}")
         out.append(t)
+    if stroke_note:
+        out.append(Text(f"! {stroke_note}", style="italic"))
     return out

@@ -126,6 +126,16 @@ class Picture:
     firmer: Sequence[Point] = ()  # and at the next firmer one
 
 
+ZOOM_MARGIN = 12.0
+"""How many diamonds beyond the rails a zoomed-out drawing reaches for the convergence point;
+a point farther out (lines that are nearly parallel) gets an arrow at the edge."""
+
+
+def _near(x: float) -> int:
+    """The cell of a position (halves round up, the same way on every axis)."""
+    return math.floor(x + 0.5)
+
+
 POCKET_DIAMONDS: dict[str, Point] = {
     "head-left": (0.0, 0.0),
     "side-left": (4.0, 0.0),
@@ -165,23 +175,44 @@ class TableView:
     # ----- layout ------------------------------------------------------------------------
     def _extent(self) -> tuple[float, float, float, float]:
         """The region to draw in diamonds: (x0, x1, y0, y1), the table plus room for the
-        convergence point when it is within the margin."""
+        convergence point when it is within the margin (``ZOOM_MARGIN`` when zoomed out)."""
         x0, x1, y0, y1 = 0.0, 8.0, 0.0, 4.0
         c = self.picture.convergence
-        m = max(self.margin, 12.0) if self.picture.zoom_out else self.margin
+        m = max(self.margin, ZOOM_MARGIN) if self.picture.zoom_out else self.margin
         if c is not None and -m <= c[0] <= 8 + m and -m <= c[1] <= 4 + m:
             x0, x1 = min(x0, c[0]), max(x1, c[0])
             y0, y1 = min(y0, c[1]), max(y1, c[1])
         return x0, x1, y0, y1
 
-    def _size(self, rows: int, ext: tuple[float, float, float, float]) -> tuple[int, int]:
+    @staticmethod
+    def _canvas(rows: float, ext: tuple[float, float, float, float]) -> tuple[int, int, int, int]:
+        """(ox, oy, W, H): the cell of the table's corner (0, 0) and the canvas size for this
+        scale and extent: 3 label columns and a frame column left of the table, a label row
+        and the frame above it, the same right and below; a point beyond them gets its cell
+        and no more."""
         x0, x1, y0, y1 = ext
         cw = 2 * rows
-        width = math.ceil((x1 - x0) * cw) + 1 + 2 + 6
-        height = math.ceil((y1 - y0) * rows) + 1 + 2 + 2
-        return width, height
+        ox = max(4, math.ceil(-x0 * cw)) if x0 < 0 else 4
+        oy = max(2, math.ceil(-y0 * rows)) if y0 < 0 else 2
+        w = max(ox + math.ceil(8 * cw) + 5, ox + math.ceil(x1 * cw) + 1)
+        h = max(oy + math.ceil(4 * rows) + 3, oy + math.ceil(y1 * rows) + 1)
+        return ox, oy, w, h
 
-    def fit(self, width: int, height: int | None) -> tuple[int, tuple[float, float, float, float]]:
+    def _size(self, rows: float, ext: tuple[float, float, float, float]) -> tuple[int, int]:
+        _, _, w, h = self._canvas(rows, ext)
+        return w, h
+
+    def _scales(self) -> list[float]:
+        """Rows a diamond to try, largest first: whole numbers, and when zoomed out half steps
+        too (a diamond 3, 5, ... columns wide), so the table stays as large as the point lets
+        it; 1/2 row (a table 8 x 2 cells) only as the last resort before an arrow."""
+        if not self.picture.zoom_out:
+            return [float(r) for r in range(self.max_rows, 0, -1)]
+        return [r / 2 for r in range(2 * self.max_rows, 0, -1)]
+
+    def fit(
+        self, width: int, height: int | None
+    ) -> tuple[float, tuple[float, float, float, float]]:
         """Pick rows per diamond and the drawn extent for a space of width x height cells."""
         ext_full = self._extent()
         table_only = (0.0, 8.0, 0.0, 4.0)
@@ -193,7 +224,7 @@ class TableView:
             return self.rows, table_only
         # zoomed out, the whole extent is tried at every scale before the table alone
         order = (ext_full, table_only) if not self.picture.zoom_out else (ext_full,)
-        for rows in range(self.max_rows, 0, -1):
+        for rows in self._scales():
             for ext in order:
                 w, h = self._size(rows, ext)
                 if w <= width and (height is None or h <= height):
@@ -204,9 +235,9 @@ class TableView:
 
     def fit_table_only(
         self, width: int, height: int | None
-    ) -> tuple[int, tuple[float, float, float, float]]:
-        """The largest scale that fits the table alone (when not even 1 row a diamond fits
-        the convergence point in)."""
+    ) -> tuple[float, tuple[float, float, float, float]]:
+        """The largest scale that fits the table alone (when not even the smallest scale
+        fits the convergence point in)."""
         table_only = (0.0, 8.0, 0.0, 4.0)
         for rows in range(self.max_rows, 0, -1):
             w, h = self._size(rows, table_only)
@@ -220,12 +251,7 @@ class TableView:
         rows, ext = self.fit(width, height if height is not None else self.max_height)
         g = self.glyphs
         cw = 2 * rows
-        x0, x1, y0, y1 = ext
-        # canvas geometry: 3 label columns and 1 frame column left of x0, label row and frame
-        ox = 4 - math.floor(min(0.0, x0) * cw) if x0 < 0 else 4
-        oy = 2 - math.floor(min(0.0, y0) * rows) if y0 < 0 else 2
-        W = ox + math.ceil(max(8.0, x1) * cw) + 1 + 4
-        H = oy + math.ceil(max(4.0, y1) * rows) + 1 + 2
+        ox, oy, W, H = self._canvas(rows, ext)
         W = min(W, width)
         grid: list[list[tuple[str, str]]] = [[(" ", "") for _ in range(W)] for _ in range(H)]
 
@@ -234,10 +260,10 @@ class TableView:
                 grid[r][c] = (ch, style)
 
         def cell(p: Point) -> tuple[int, int]:
-            return (round(ox + p[0] * cw), round(oy + p[1] * rows))
+            return (_near(ox + p[0] * cw), _near(oy + p[1] * rows))
 
-        left, right = ox - 1, ox + 8 * cw + 1
-        top, bottom = oy - 1, oy + 4 * rows + 1
+        left, right = ox - 1, ox + _near(8 * cw) + 1
+        top, bottom = oy - 1, oy + _near(4 * rows) + 1
         # cloth and shading
         for r in range(top + 1, bottom):
             for c in range(left + 1, right):
@@ -252,7 +278,7 @@ class TableView:
             put(left, r, g.v, "rail")
             put(right, r, g.v, "rail")
         for k in range(9):
-            c = ox + k * cw
+            c = ox + _near(k * cw)
             if k not in (0, 4, 8):  # no sight at a pocket
                 put(c, top, g.sight, "sight")
                 put(c, bottom, g.sight, "sight")
@@ -260,14 +286,14 @@ class TableView:
             put(c, top - 1, label, "number")
             put(c, bottom + 1, label, "number")
         for k in range(5):
-            r = oy + k * rows
+            r = oy + _near(k * rows)
             if k not in (0, 4):
                 put(left, r, g.sight, "sight")
                 put(right, r, g.sight, "sight")
             put(left - 2, r, str(k), "number")
             put(right + 2, r, str(k), "number")
         for name, (px, py) in POCKET_DIAMONDS.items():
-            c = left if px == 0 else right if px == 8 else ox + 4 * cw
+            c = left if px == 0 else right if px == 8 else ox + _near(4 * cw)
             r = top if py == 0 else bottom
             style = "target" if name == self.picture.pocket_target else "pocket"
             put(c, r, g.pocket, style)
@@ -287,13 +313,13 @@ class TableView:
             rd = self.picture.aim_reading
             rail = self.picture.aim_rail
             if rail == "left":
-                put(round(ox + rd * cw), top - 1, g.aim["left"], "aim")
+                put(_near(ox + rd * cw), top - 1, g.aim["left"], "aim")
             elif rail == "right":
-                put(round(ox + rd * cw), bottom + 1, g.aim["right"], "aim")
+                put(_near(ox + rd * cw), bottom + 1, g.aim["right"], "aim")
             elif rail == "head":
-                put(left - 1, round(oy + rd * rows), g.aim["head"], "aim")
+                put(left - 1, _near(oy + rd * rows), g.aim["head"], "aim")
             else:
-                put(right + 1, round(oy + rd * rows), g.aim["foot"], "aim")
+                put(right + 1, _near(oy + rd * rows), g.aim["foot"], "aim")
         # balls last
         balls: tuple[tuple[Point | None, str, str], ...] = (
             (self.picture.target_ball, g.target, "target"),
@@ -367,23 +393,31 @@ class TableView:
         return "\n".join(t.plain for t in self.lines(width, height))
 
 
-def legend(ascii_only: bool = False) -> Iterable[tuple[str, str, str]]:
-    """(glyph, style, meaning) for the symbols used."""
+def legend(
+    ascii_only: bool = False, picture: Picture | None = None
+) -> Iterable[tuple[str, str, str]]:
+    """(glyph, style, meaning) for the symbols used; with ``picture``, only those it shows
+    (a kick has no object ball, a bank no target ball), so a narrow key keeps the point."""
     g = ASCII if ascii_only else UNICODE
-    return (
-        (g.cue, "cue", "cue"),
-        (g.obj, "obj", "object"),
-        (g.target, "target", "target"),
-        (g.contact, "contact", "rail"),
-        (g.convergence, "convergence", "convergence"),
-        (g.aim["left"] + g.aim["right"], "aim", "aim"),
+    p = picture
+    entries = (
+        (g.cue, "cue", "cue", p is None or p.cue is not None),
+        (g.obj, "obj", "object", p is None or p.obj is not None),
+        (g.target, "target", "target", p is None or p.target_ball is not None),
+        (g.contact, "contact", "rail", p is None or bool(p.contacts)),
+        (g.convergence, "convergence", "convergence", p is None or p.convergence is not None),
+        (g.aim["left"] + g.aim["right"], "aim", "aim", p is None or p.aim_rail is not None),
     )
+    return tuple((ch, style, meaning) for ch, style, meaning, shown in entries if shown)
 
 
-def legend_text(ascii_only: bool = False, width: int | None = None) -> Text:
-    """A one-line key to the symbols; with ``width``, only the entries that fit whole."""
+def legend_text(
+    ascii_only: bool = False, width: int | None = None, picture: Picture | None = None
+) -> Text:
+    """A one-line key to the symbols (of ``picture`` if given); with ``width``, only the
+    entries that fit whole."""
     t = Text()
-    for ch, style, meaning in legend(ascii_only):
+    for ch, style, meaning in legend(ascii_only, picture):
         if width is not None and t.cell_len + len(ch) + 1 + len(meaning) > width:
             break
         t.append(ch, STYLES[style])

@@ -55,9 +55,11 @@ def aim_report(
     if ascii_only or not _unicode_ok(console):
         ascii_only = True
     if diagram:
-        view = TableView(picture_for_aim(table, aim, conv), ascii_only=ascii_only)
+        picture = picture_for_aim(table, aim, conv)
+        picture.zoom_out = conv is not None  # the point drawn where it lies, as on the card
+        view = TableView(picture, ascii_only=ascii_only)
         console.print(view, crop=False)
-        console.print(legend_text(ascii_only))
+        console.print(legend_text(ascii_only, picture=picture))
         console.print()
     grid = RichTable.grid(padding=(0, 2))
     grid.add_column(style="bold")

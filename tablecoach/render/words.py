@@ -14,6 +14,7 @@ from tablecoach.core.shots import (
 )
 from tablecoach.core.spin import english_kind
 from tablecoach.core.strokes import speed_name, travel_lengths
+from tablecoach.core.summary import family_title
 from tablecoach.core.table import TableSpec
 
 RAIL_ORDER = ("head", "left", "foot", "right")
@@ -29,6 +30,16 @@ def num(v: float, places: int = 2) -> str:
 def count(n: int, word: str) -> str:
     """'1 shot', '2 shots', '0 hits'."""
     return f"{n} {word}" if n == 1 else f"{n} {word}s"
+
+
+def family_text(name: str, in_sentence: bool = False) -> str:
+    """A family as players say it ("Two-rail kick" for ``two-rail-kick``, "two-rail kick"
+    ``in_sentence``); a family of the player's own (a pack's custom name) is said as it was
+    named. Machine names stay in JSON."""
+    title = family_title(name)
+    if in_sentence and title != name:
+        return title[:1].lower() + title[1:]
+    return title
 
 
 def placement(table: TableSpec, what: str, p: tuple[float, float]) -> str:
@@ -181,6 +192,32 @@ def shift_text(table: TableSpec, setup: Setup, shift: ReferenceShift) -> str:
     if rot is not None and rot / table.diamond >= 0.005:
         text += f" ({miss(rot)})"
     return text + f"; the model says {num(shift.solved.reading / u)}"
+
+
+SAME_SPIN = 0.05
+"""Tips of english or follow closer than this count as the same spin."""
+
+
+def reference_stroke_text(table: TableSpec, ref: Stroke, stroke: Stroke) -> str:
+    """What a reference line played at another stroke means for the turn, in a player's words
+    ("your line: medium; this shot: slow. Speed moves the point; the turn assumes the same
+    stroke"); "" when the named stroke and the spin are the same."""
+    speed = speed_name(ref.speed, table) != speed_name(stroke.speed, table)
+    spin = abs(ref.english - stroke.english) >= SAME_SPIN or (
+        abs(ref.follow - stroke.follow) >= SAME_SPIN
+    )
+    if not (speed or spin):
+        return ""
+
+    def said(s: Stroke) -> str:
+        parts = [speed_name(s.speed, table)] if speed else []
+        return ", ".join([*parts, spin_text(s)] if spin else parts)
+
+    moves = "Speed and spin move" if speed and spin else "Speed moves" if speed else "Spin moves"
+    return (
+        f"your line: {said(ref)}; this shot: {said(stroke)}. {moves} the point; "
+        "the turn assumes the same stroke"
+    )
 
 
 MODEL_WORDS = {

@@ -6,7 +6,7 @@ from typing import Any
 
 from textual.message import Message
 
-from tablecoach.core.shots import Aim, Convergence
+from tablecoach.core.shots import Aim, Convergence, Stroke
 
 
 class SetupDealt(Message):
@@ -14,7 +14,8 @@ class SetupDealt(Message):
 
     ``generation`` names the dealer state it was drawn from; a pin or a new session moves the
     generation on, so a setup dealt before it is dropped. ``error`` says why nothing was dealt.
-    ``drawn`` is (picture, ((width, height), lines)): the table picture drawn in the worker.
+    ``drawn`` is (picture, ((width, height), lines)): the table picture drawn in the worker,
+    with the convergence point ``conv`` when it was found.
     """
 
     def __init__(
@@ -25,9 +26,11 @@ class SetupDealt(Message):
         error: str = "",
         note: str = "",
         drawn: Any = None,
+        conv: Convergence | None = None,
     ) -> None:
         super().__init__()
         self.drawn = drawn
+        self.conv = conv
         self.generation = generation
         self.pick = pick
         self.aim = aim
@@ -73,12 +76,14 @@ class CalibrationDone(Message):
 
 class ShiftFound(Message):
     """The player's reference line for this family moved to the setup on screen
-    (core/aim/shift.py's ReferenceShift); ``token`` names the setup it was for."""
+    (core/aim/shift.py's ReferenceShift), with the stroke that line was played at; ``token``
+    names the setup it was for."""
 
-    def __init__(self, token: int, shift: Any) -> None:
+    def __init__(self, token: int, shift: Any, stroke: Stroke | None = None) -> None:
         super().__init__()
         self.token = token
         self.shift = shift
+        self.stroke = stroke
 
 
 class SpeedsFound(Message):

@@ -105,3 +105,27 @@ def test_the_same_line_kept_twice_is_kept_once(tmp_path: Path) -> None:
         other = s.add_reference(replace(REF, reading=REF.reading + 0.25))
         assert again == first and other != first
         assert len(s.references()) == 2
+
+
+def test_of_several_lines_the_one_played_most_like_the_stroke_is_picked(tmp_path: Path) -> None:
+    # nearest speed by ratio first (in 5 % steps: speeds a step apart count as the same
+    # stroke; common practice, no source), then nearest spin, then the newest
+    from tablecoach.core.store.refs import closest_stroke
+
+    with Store.open(tmp_path / "s.sqlite3") as s:
+        slow = s.add_reference(replace(REF, speed=1.2, reading=5.0))
+        medium = s.add_reference(replace(REF, speed=2.4, reading=5.25))
+        medium_spin = s.add_reference(replace(REF, speed=2.41, reading=5.5, english=0.5))
+        refs = s.references_for("dee", "9ft", "object", ("right",), "foot-left")
+    assert [r.id for r in refs] == [medium_spin, medium, slow]  # newest first
+
+    def pick(speed: float, english: float = 0.0) -> int | None:
+        found = closest_stroke(refs, speed, english)
+        return None if found is None else found.id
+
+    assert pick(1.1) == slow and pick(1.6) == slow  # 1.6/1.2 is nearer than 2.4/1.6
+    assert pick(2.4) == medium  # same speed, no spin: the centre-ball line
+    assert pick(2.4, english=0.5) == medium_spin
+    assert pick(2.45, english=0.25) == medium_spin  # equal spin gaps: the newest
+    assert pick(4.0) == medium  # 2.4 and 2.41 a step from 4.0 alike: spin decides
+    assert closest_stroke([], 2.0) is None

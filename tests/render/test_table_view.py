@@ -72,3 +72,45 @@ def test_aim_marker_and_diamond_numbers():
     assert UNICODE.aim["right"] in text  # the cross-corner bank aims over the right rail
     for k in range(9):
         assert str(k) in text
+
+
+@pytest.mark.parametrize("width,height", [(62, 19), (44, 13), (75, 29)])
+def test_zoomed_out_the_point_is_drawn_where_it_lies(width, height):
+    # the table panel's drawing sizes at 100x30, 80x24 and 120x40: zoomed out, the largest
+    # scale (in half steps) that takes the point is used, and the point's glyph sits at its
+    # place in true proportion to the frame (common practice for terminal cells, no source)
+    from dataclasses import replace
+
+    for name in ("cross-corner-bank", "three-rail-kick", "one-rail-kick"):
+        v = _view(name)
+        v.picture = replace(v.picture, zoom_out=True)
+        x, y = v.picture.convergence
+        assert not (0 <= x <= 8 and 0 <= y <= 4)  # off the table
+        lines = v.plain(width, height).splitlines()
+        assert len(lines) <= height and max(len(line) for line in lines) <= width
+        top, bottom = _frame(lines, UNICODE.pocket)
+        left, right = lines[top].index(UNICODE.pocket), lines[top].rindex(UNICODE.pocket)
+        cw, rh = (right - left - 2) / 8, (bottom - top - 2) / 4
+        assert cw == 2 * rh and rh >= 1
+        found = [(i, j) for i, r in enumerate(lines) for j, ch in enumerate(r)
+                 if ch == UNICODE.convergence]  # fmt: skip
+        assert len(found) == 1, name
+        (i, j) = found[0]
+        assert abs(i - (top + 1 + y * rh)) <= 0.5 and abs(j - (left + 1 + x * cw)) <= 0.5, name
+        assert not any(a in "\n".join(lines) for a in UNICODE.arrows.values())
+
+
+def test_zoomed_out_a_half_step_scale_is_used_when_a_whole_one_leaves_the_point_off():
+    # a three-rail kick's point 4.6 diamonds beyond the right rail (y 8.64): at 62 x 19 cells,
+    # 2 rows a diamond need 2 + 18 + 1 = 21 rows with the point, 1.5 rows need 16; the frame
+    # is then 24 x 6 cells inside
+    from dataclasses import replace
+
+    v = _view("three-rail-kick")
+    v.picture = replace(v.picture, zoom_out=True)
+    rows, _ = v.fit(62, 19)
+    assert rows == 1.5
+    lines = v.plain(62, 19).splitlines()
+    top, bottom = _frame(lines, UNICODE.pocket)
+    assert bottom - top - 2 == 6
+    assert lines[top].rindex(UNICODE.pocket) - lines[top].index(UNICODE.pocket) - 2 == 24

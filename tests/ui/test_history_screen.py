@@ -11,7 +11,7 @@ from rich.console import Console
 from textual.app import App
 from textual.widgets import DataTable
 
-from tablecoach.core import demo
+from tablecoach.core import demo, shots
 from tablecoach.core.store import Store
 from tablecoach.core.store.query import AttemptQuery
 from tablecoach.ui.screens.history import DATE_RANGES, HistoryScreen
@@ -79,7 +79,12 @@ async def test_open_filter_and_go_back(club_store):
         fam = screen.filters.family
         assert fam is not None
         assert shown(app) == club_store.count_attempts(AttemptQuery(player="Nadia", family=fam))
-        assert f"family: {fam}" in text_of(app, "#history-filters")
+        # the player's words for the family (the preset's title), not its machine name
+        title = shots.PRESETS[fam].title
+        assert f"family: {title}" in text_of(app, "#history-filters")
+        assert fam not in text_of(app, "#history-filters")
+        streaks = text_of(app, "#history-streaks")
+        assert title in streaks and fam not in streaks
 
         await pilot.press("d")  # last 7 days, counted in UTC up to the pinned today
         await settle(pilot)

@@ -5,6 +5,7 @@ from __future__ import annotations
 import io
 from dataclasses import replace
 
+import pytest
 from rich.console import Console
 
 from tablecoach import paths
@@ -550,6 +551,31 @@ async def test_help_opens_and_closes(make_app):
         await pilot.press("escape")
         await pilot.pause()
         assert isinstance(app.screen, PracticeScreen)
+
+
+@pytest.mark.parametrize("ascii_only", [False, True])
+async def test_help_speaks_the_drawing_s_glyphs(make_app, ascii_only):
+    # the help names each line by the glyph the table uses; in ASCII mode (TABLECOACH_ASCII or
+    # the app's setting) every character of it is plain ASCII, as the drawing is
+    from textual.widgets import Static
+
+    from tablecoach.render.table_view import ASCII, UNICODE
+
+    g = ASCII if ascii_only else UNICODE
+    app = make_app(ascii_only=ascii_only)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("question_mark")
+        await pilot.pause()
+        console = Console(width=200, file=io.StringIO(), record=True)
+        for w in app.screen.query(Static):
+            console.print(w.content)
+        text = console.export_text()
+        assert "convergence point" in text
+        for glyph in (g.convergence, g.parallel, g.turned, g.path, g.softer, g.firmer):
+            assert f"{glyph} " in text or f"({glyph})" in text, glyph
+        if ascii_only:
+            assert all(ord(ch) < 128 for ch in text), [ch for ch in text if ord(ch) >= 128]
 
 
 async def test_theme_toggles_and_is_remembered(make_app):

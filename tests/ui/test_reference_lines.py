@@ -3,6 +3,8 @@ family shows it slid parallel, turned about the convergence point, and the model
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 from tablecoach import paths
 from tablecoach.core.store import Store
 from tablecoach.core.store.refs import Reference
@@ -116,3 +118,49 @@ async def test_the_rotation_drill_deals_around_the_reference_and_shows_the_turn(
         assert a.drill == rotation.pack_name(ref)
         [rate] = rotation.rates_by_distance(ref, [a])
         assert (rate.attempts, rate.hits) == (1, 1)
+
+
+async def test_a_line_played_at_another_stroke_is_said_and_the_closest_stroke_is_used(make_app):
+    # the kept kick line was played at 2.4 m/s (medium on the 9-ft table); the one-rail pack
+    # deals this setup at slow: the card says speed moves the point. A second line, played
+    # slow, is then the one moved to the setup, and the note goes.
+    keep_kick_line()
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        screen = app.screen
+        assert screen.shift is not None and screen.aim.stroke.speed < 2.0
+        card = text_of(app, "#card")
+        assert "your line: medium; this shot: slow" in card and "Speed moves the point" in card
+    with Store.open(paths.db_path()) as s:
+        (medium,) = s.references()
+        s.add_reference(replace(medium, speed=1.185, reading=3.7, id=None, note="a slow one"))
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        screen = app.screen
+        u = screen.session.table.rail_unit("right")
+        assert abs(screen.shift.reference_reading / u - 3.7) < 1e-9  # the slow line, not 3.8
+        card = text_of(app, "#card")
+        assert "line slid" in card and "moves the point" not in card
+
+
+async def test_r_after_k_shows_the_kept_line_on_the_same_setup(make_app):
+    # the setup comes back with its aim and point remembered: the kept line is still moved to
+    # it (it is that line, so slid, turned and solved agree: the ideal model, docs/model.md)
+    app = make_app()
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("h")
+        await settle(pilot)
+        await pilot.press("k")
+        await settle(pilot)
+        assert "your one-rail kick reference" in text_of(app, "#message")
+        await pilot.press("r")
+        await settle(pilot)
+        moved = app.screen.shift
+        assert moved is not None
+        u = app.screen.session.table.rail_unit("right")  # readings are kept to 0.01 diamond
+        assert abs(moved.parallel.reading - moved.solved.reading) / u <= 0.005 + 1e-9
+        assert abs(moved.rotated.reading - moved.solved.reading) / u < 1e-6
+        assert "line slid" in text_of(app, "#card")

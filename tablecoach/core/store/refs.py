@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import math
+from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import Any
 
@@ -59,6 +61,28 @@ def reference_of(attempt: Attempt) -> Reference:
         follow=attempt.follow,
         note="kept after a hit",
     )
+
+
+SAME_SPEED = 0.05
+"""Speeds within 5 % of each other count as the same stroke when references are compared
+(common practice, no source: a player does not repeat a stroke closer than that)."""
+
+
+def closest_stroke(
+    refs: Sequence[Reference], speed: float, english: float = 0.0, follow: float = 0.0
+) -> Reference | None:
+    """The reference played most like this stroke: the nearest speed (by ratio, in steps of
+    ``SAME_SPEED``, so speeds a step apart or less count as equal), then the nearest spin
+    (tips of english and follow), then the newest (``refs`` newest first, as
+    ``references_for`` gives them)."""
+
+    def key(item: tuple[int, Reference]) -> tuple[int, float, int]:
+        i, r = item
+        gap = abs(math.log(max(r.speed, 1e-6) / max(speed, 1e-6)))
+        spin = abs(r.english - english) + abs(r.follow - follow)
+        return (math.floor(gap / math.log1p(SAME_SPEED)), round(spin, 6), i)
+
+    return min(enumerate(refs), key=key)[1] if refs else None
 
 
 def check_reference(ref: Reference) -> None:
@@ -214,6 +238,19 @@ class Refs(Connection):
                 (player, table, travel, ",".join(rails), pocket),
             ).fetchone()
         return None if r is None else _of_row(r)
+
+    def references_for(
+        self, player: str, table: str, travel: str, rails: tuple[str, ...], pocket: str | None
+    ) -> list[Reference]:
+        """Every reference of this player on this table for a family of this shape, newest
+        first (``closest_stroke`` picks the one played most like a given stroke)."""
+        with self.reading() as c:
+            rows = c.execute(
+                f"SELECT {_COLS} FROM refs WHERE player = ? AND table_name = ? AND travel = ? "
+                "AND rails = ? AND pocket IS ? ORDER BY id DESC",
+                (player, table, travel, ",".join(rails), pocket),
+            ).fetchall()
+        return [_of_row(r) for r in rows]
 
     def remove_reference(self, ref_id: int) -> bool:
         """Remove one reference line by id; False when there was none."""

@@ -10,6 +10,8 @@ from textual.containers import VerticalScroll
 from textual.screen import ModalScreen
 from textual.widgets import Footer, Static
 
+from tablecoach.render.table_view import ASCII, UNICODE
+
 KEYS = (
     ("h", "hit: the shot did what it should (no landing is recorded for a hit)"),
     ("H", "hit, and say where the ball crossed the landing rail (when you saw it)"),
@@ -57,14 +59,25 @@ READING = (
     "move each way and still score. Every attempt is saved the moment you press its key."
 )
 
-TURN = (
-    "Good aim lines of one family, from different places, all point toward one spot, "
-    "usually beyond the rail: the convergence point (\u271a). From a line you trust, turn "
-    "it about that point to reach a new position; do not slide it parallel. With a reference "
-    "line kept (k after a hit), the card shows three lines: \u2225 your line slid parallel "
-    "and what it misses by, \u2218 your line turned about the point, and \u2022 the model's "
-    "aim; the drawing zooms out so the point stays in view. More: docs/rotation.md."
-)
+
+def turn_text(ascii_only: bool = False) -> str:
+    """The point and the turn in a few lines, with the glyphs the drawing uses (plain ASCII
+    ones in ASCII mode, as on the table)."""
+    g = ASCII if ascii_only else UNICODE
+    return (
+        "Good aim lines of one family, from different places, all point toward one spot, "
+        f"usually beyond the rail: the convergence point ({g.convergence}). The drawing zooms "
+        "out to keep it in view, and the aim line is drawn on to it "
+        f"({g.extension}). From a line you trust, turn it about that point to reach a new "
+        "position; do not slide it parallel. With a reference line kept (k after a hit), the "
+        f"card shows three lines: {g.parallel} your line slid parallel and what it misses by, "
+        f"{g.turned} your line turned about the point, and {g.path} the model's aim. The turn "
+        "assumes the same stroke: speed moves the point, so the card says when your line was "
+        "played at another stroke. "
+        f"w draws the same reading at the next softer ({g.softer}) and firmer ({g.firmer}) "
+        "stroke. More: docs/rotation.md."
+    )
+
 
 CAUTION = (
     "Keep the laptop where no ball or cue can reach it, not on the rail line of the shot; on "
@@ -81,6 +94,10 @@ class HelpScreen(ModalScreen[None]):
         Binding("q", "close", "Back", show=False),
     ]
 
+    def __init__(self, ascii_only: bool = False) -> None:
+        super().__init__()
+        self.ascii_only = ascii_only
+
     def compose(self) -> ComposeResult:
         grid = RichTable.grid(padding=(0, 2))
         grid.add_column(style="bold", no_wrap=True)
@@ -93,7 +110,7 @@ class HelpScreen(ModalScreen[None]):
             yield Static(Text("\nReading the card", style="bold underline"))
             yield Static(READING)
             yield Static(Text("\nTurn, don't slide", style="bold underline"))
-            yield Static(TURN)
+            yield Static(turn_text(self.ascii_only))
             yield Static(Text("\nCaution", style="bold underline"))
             yield Static(CAUTION)
         yield Footer()

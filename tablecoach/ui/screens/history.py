@@ -26,6 +26,7 @@ from tablecoach.core.store import Store
 from tablecoach.core.store.query import AttemptQuery
 from tablecoach.render.heatmap import HeatMap, legend_text
 from tablecoach.render.rates import spark
+from tablecoach.render.words import family_text
 
 DATE_RANGES: tuple[tuple[str, int | None], ...] = (
     ("all time", None),
@@ -265,7 +266,7 @@ class HistoryScreen(Screen[None]):
         parts = [
             f"[p] player: {f.player or 'everyone'}",
             f"[t] table: {f.table or 'all'}",
-            f"[f] family: {f.family or 'all'}",
+            f"[f] family: {family_text(f.family) if f.family else 'all'}",
             f"[d] dates: {self.dates_label()}",
         ]
         if f.session is not None:
@@ -295,7 +296,7 @@ class HistoryScreen(Screen[None]):
                 f"{s.rate.hits}/{s.rate.attempts}",
                 "-" if s.rate.rate is None else f"{100 * s.rate.rate:.0f}%",
                 str(s.streak.best),
-                ", ".join(s.families),
+                ", ".join(family_text(name) for name in s.families),
             )
             self.session_rows.append(s.session)
 
@@ -308,11 +309,13 @@ class HistoryScreen(Screen[None]):
         grid.add_row("hits in a row", str(h.streak.current), str(h.streak.best))
         grid.add_row("days in a row", str(h.days.current), str(h.days.best))
         for f, s in sorted(h.family_streaks.items()):
-            grid.add_row(f"  {f}", str(s.current), str(s.best))
+            grid.add_row(f"  {family_text(f)}", str(s.current), str(s.best))
         if h.zone_streaks:
             z, s = max(h.zone_streaks.items(), key=lambda kv: (kv[1].best, str(kv[0])))
             grid.add_row("best zone run", "", str(s.best))
-            grid.add_row(Text(f"  {getattr(z, 'family', z)}", style="dim"), "", "")
+            fam = getattr(z, "family", None)
+            said = family_text(fam) if isinstance(fam, str) else str(z)
+            grid.add_row(Text(f"  {said}", style="dim"), "", "")
             where = f"{z.short}, {z.speed}" if hasattr(z, "short") else ""
             if where:
                 grid.add_row(Text(f"  {where}", style="dim"), "", "")
@@ -339,7 +342,7 @@ class HistoryScreen(Screen[None]):
         for f, weeks in sorted(h.family_weeks.items()):
             pad = [w for w in h.weeks if w.monday < weeks[0].monday] if weeks else []
             empty = [WeekRate(w.year, w.week, w.monday, wilson(0, 0)) for w in pad]
-            grid.add_row(f"  {f}", f"|{spark(empty + list(weeks))}|", "")
+            grid.add_row(f"  {family_text(f)}", f"|{spark(empty + list(weeks))}|", "")
         recent = ", ".join(
             f"{w.label[-3:]} {'-' if w.rate.rate is None else f'{100 * w.rate.rate:.0f}%'}"
             for w in h.weeks[-6:]

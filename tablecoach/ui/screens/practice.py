@@ -136,7 +136,7 @@ class PracticeScreen(
         s = self.session
         pick = s.pick
         panel = self.query_one(TablePanel)
-        if self.drawn is not None and self.conv is None and self.aim is not None:
+        if self.drawn is not None and self.aim is not None:
             picture, lines = self.drawn
             panel.show(s.table, None, None, None, self._table_note(), lines, picture)
         else:
@@ -232,6 +232,7 @@ class PracticeScreen(
             return
         self.session.show(msg.pick)
         self.aim = msg.aim
+        self.conv = msg.conv
         self.drawn = msg.drawn
         self.error = "" if msg.aim is not None else msg.note
         if msg.aim is None:
@@ -244,8 +245,19 @@ class PracticeScreen(
 
     def _after_shown(self, token: int, aim: Aim | None) -> None:
         if aim is not None and token == self.token:
-            self._conv_worker(token, aim.setup, aim.stroke, aim.model)
+            if self.conv is not None:  # found with the setup dealt ahead
+                self._point_known(token, aim)
+            else:
+                self._conv_worker(token, aim.setup, aim.stroke, aim.model)
         self._deal_ahead()
+
+    def _point_known(self, token: int, aim: Aim) -> None:
+        """The convergence point came with the aim (dealt ahead, or remembered): the work that
+        waits for it starts now (the reference line moved here, speed paths, the zone's bias)."""
+        self.shift_for = token
+        self.start_shift(token, aim, self.conv)
+        self.start_speeds(token, aim)
+        self._bias_worker(token, aim.setup, aim.stroke)
 
     def _solve(self) -> None:
         """Solve the aim of the shown setup again (new stroke, or a setup put back)."""
@@ -300,9 +312,15 @@ class PracticeScreen(
                 break
             if generation != self.generation:
                 return
-        picture = picture_of(self.session.table, pick.setup, aim, None)
+        conv = None
+        if aim is not None:  # the point comes with the setup, so the drawing is not redone
+            try:
+                conv = aims.convergence(self.session.table, aim.setup, None, aim.stroke, aim.model)
+            except ValueError:
+                conv = None
+        picture = picture_of(self.session.table, pick.setup, aim, conv)
         drawn = (picture, (size, draw(picture, self.ascii_only, *size)))
-        self.post_message(SetupDealt(generation, pick, aim, note=why, drawn=drawn))
+        self.post_message(SetupDealt(generation, pick, aim, note=why, drawn=drawn, conv=conv))
 
     @work(thread=True, exclusive=True, group="aim", exit_on_error=False)
     def _solve_worker(self, token: int, setup: shots.Setup, stroke: Stroke, model: str) -> None:
@@ -379,8 +397,8 @@ class PracticeScreen(
     def _after_solved(self, token: int, aim: Aim, need_conv: bool = True) -> None:
         if token == self.token and need_conv:
             self._conv_worker(token, aim.setup, aim.stroke, aim.model)
-        elif token == self.token:  # a remembered aim: only the zone's bias is worked out again
-            self._bias_worker(token, aim.setup, aim.stroke)
+        elif token == self.token:  # a remembered aim and point: what waits for the point
+            self._point_known(token, aim)
         if self.refresh_dealer:
             self.refresh_dealer = False
             self._refresh_dealer_worker()
@@ -434,7 +452,7 @@ class PracticeScreen(
     def action_help(self) -> None:
         from .help import HelpScreen
 
-        self.app.push_screen(HelpScreen())
+        self.app.push_screen(HelpScreen(self.ascii_only))
 
     def action_quit_session(self) -> None:
         self.app.action_summary()

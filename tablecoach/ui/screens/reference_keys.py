@@ -11,9 +11,9 @@ from typing import TYPE_CHECKING, Any
 from textual import work
 
 from tablecoach.core import aim as aims
-from tablecoach.core.shots import Aim, Convergence, ShotError
+from tablecoach.core.shots import Aim, Convergence, ShotError, Stroke
 from tablecoach.core.store.errors import StoreError
-from tablecoach.core.store.refs import reference_of
+from tablecoach.core.store.refs import closest_stroke, reference_of
 from tablecoach.render import words as w
 from tablecoach.render.shift_view import shift_lines, with_shift
 from tablecoach.render.speed_view import speed_lines, with_speeds
@@ -28,6 +28,7 @@ class ReferenceKeys:
     session: Any
     token: int
     shift: Any
+    shift_stroke: Stroke | None = None  # the stroke the reference line was played at
     speed_paths: Any
     aim: Any
     ascii_only: bool
@@ -51,7 +52,8 @@ class ReferenceKeys:
             self.say(f"line not kept: {exc}", True)
             return
         self.say(
-            f"kept your {w.num(a.aim_used)} line as the {a.shot.family} reference (? explains)"
+            f"kept your {w.num(a.aim_used)} line as your "
+            f"{w.family_text(a.shot.family, in_sentence=True)} reference (? explains)"
         )
 
     def start_shift(self, token: int, aim: Aim | None, conv: Convergence | None) -> None:
@@ -64,11 +66,13 @@ class ReferenceKeys:
         s = self.session
         fam = aim.setup.family
         try:
-            ref = s.store.reference_for(
+            refs = s.store.references_for(
                 s.player, s.table.name, fam.travel, fam.rails, aim.setup.pocket
             )
         except StoreError:
             return
+        st = aim.stroke  # of several lines, the one played most like this shot's stroke
+        ref = closest_stroke(refs, st.speed, st.english, st.follow)
         if ref is None:
             return
         rail = fam.rails[0]
@@ -78,12 +82,14 @@ class ReferenceKeys:
             moved = aims.shift(s.table, aim.setup, start, reading, aim, conv, aim.stroke, aim.model)
         except (ShotError, ValueError):
             return  # a reference that no longer fits this table: nothing drawn
-        self.post_message(ShiftFound(token, moved))
+        ref_stroke = Stroke(ref.speed, ref.english, ref.follow)
+        self.post_message(ShiftFound(token, moved, ref_stroke))
 
     def on_shift_found(self, message: ShiftFound) -> None:
         if message.token != self.token:
             return
         self.shift = message.shift
+        self.shift_stroke = message.stroke
         self._refresh()
 
     def decorated(self, picture: Picture) -> Picture:
@@ -104,7 +110,10 @@ class ReferenceKeys:
             return None
         rows: list[tuple[str, Any]] = []
         if self.shift is not None:
-            for i, t in enumerate(shift_lines(table, aim.setup, self.shift, self.ascii_only)):
+            ref = self.shift_stroke
+            note = "" if ref is None else w.reference_stroke_text(table, ref, aim.stroke)
+            lines = shift_lines(table, aim.setup, self.shift, self.ascii_only, note)
+            for i, t in enumerate(lines):
                 rows.append(("Line" if i == 0 else "", t))
         if self.speed_paths:
             for i, t in enumerate(speed_lines(table, aim, self.speed_paths, self.ascii_only)):

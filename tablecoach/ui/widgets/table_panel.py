@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 from rich.text import Text
 from textual.strip import Strip
 from textual.widget import Widget
@@ -36,7 +38,13 @@ MAX_ROWS = 6
 
 
 def draw(picture: Picture, ascii_only: bool, width: int, height: int) -> list[Text]:
-    """The picture as lines for a panel of this size (safe to call in a worker thread)."""
+    """The picture as lines for a panel of this size (safe to call in a worker thread).
+
+    A card with a convergence point always shows it: the drawing zooms out (to the largest
+    scale, in half steps, that takes the table and the point) rather than leave the point as
+    an arrow at the edge; the aim line is drawn on to it."""
+    if picture.convergence is not None and not picture.zoom_out:
+        picture = replace(picture, zoom_out=True)
     view = TableView(picture, ascii_only=ascii_only, max_height=height, max_rows=MAX_ROWS)
     return view.lines(width, height)
 
@@ -100,7 +108,7 @@ class TablePanel(Widget):
         if self._note:
             foot = Text(self._note, style="italic")
         else:
-            foot = legend_text(self.ascii_only, width)
+            foot = legend_text(self.ascii_only, width, self._picture)
         console = self.app.console
         out = []
         for line in [*lines, foot]:
