@@ -40,6 +40,9 @@ Two integrations of these equations:
 - ``fine_impact`` ("fine"): the paper's method with small midpoint steps (``fine_steps`` per
   M vy0 of impulse), the reference the stepped integration is tested against.
 
+The model's mu_w, mu_s and e_cushion may be per-row arrays (params.BallModel), one value per
+arriving ball.
+
 Every equation is homogeneous of degree one in the velocities, so the outcome of an impact
 scales with the arrival speed: a check over angles and spins at one speed holds at every speed.
 """
@@ -50,7 +53,7 @@ from functools import lru_cache
 
 import numpy as np
 
-from .params import BallModel
+from .params import BallModel, per_row, rows_of
 
 
 def impulse_rates(
@@ -105,15 +108,17 @@ def fine_impact(
     work = np.zeros(n)
     wc = np.full(n, np.nan)  # work at the end of compression
     active = np.ones(n, dtype=bool)
-    e2 = m.e_cushion**2
+    e2 = np.asarray(m.e_cushion, dtype=float) ** 2
+    rows = per_row(m)
     for _ in range(50 * steps):
         if not np.count_nonzero(active):
             break
         idx = np.flatnonzero(active)
         x = st[idx]
         h = dp[idx][:, None]
-        k1 = impulse_rates(m, x, m.mu_w, m.mu_s)
-        k2 = impulse_rates(m, x + 0.5 * h * k1, m.mu_w, m.mu_s)
+        mi = rows_of(m, idx) if rows else m
+        k1 = impulse_rates(m, x, mi.mu_w, mi.mu_s)
+        k2 = impulse_rates(m, x + 0.5 * h * k1, mi.mu_w, mi.mu_s)
         nx = x + h * k2
         vy0, vy1 = x[:, 1], nx[:, 1]
         comp = np.isnan(wc[idx])
@@ -125,7 +130,7 @@ def fine_impact(
         w_before = work[idx]
         w_after = w_before + dw
         wc_new = np.where(cross, w_before + c * 0.5 * vy0 * f * h[:, 0], wc[idx])
-        target = wc_new * (1.0 + e2)
+        target = wc_new * (1.0 + (e2[idx] if e2.ndim else e2))
         done = ~np.isnan(wc_new) & (w_after >= target)
         g = np.where(done, (target - w_before) / np.where(dw > 0, dw, 1.0), 1.0)
         g = np.clip(g, 0.0, 1.0)
@@ -208,6 +213,15 @@ def _stepped_columns(
     e2 = m.e_cushion**2
     X = np.array([vx, vy, wx, wy, wz], dtype=float)
     n = X.shape[1]
+    if n == 1:
+        # numpy's matrix product takes another path for one column, whose last bits can differ
+        # from those of a column of a larger product: a lone row runs as two copies, so a row
+        # comes out of every batch the same (and per-row figures stay one per row)
+        X2 = np.repeat(X, 2, axis=1)
+        v1, v2, v3, v4, v5 = _stepped_columns(
+            rows_of(m, np.zeros(2, dtype=np.intp)), X2[0], X2[1], X2[2], X2[3], X2[4], segments
+        )
+        return v1[:1], v2[:1], v3[:1], v4[:1], v5[:1]
     work = np.zeros(n)
     wc = np.zeros(n)
     # a slip this small counts as none: held for a whole piece, its direction would be noise

@@ -24,7 +24,7 @@ from ..table import OUTWARD_NORMALS, RAILS, TableSpec
 from .approach import ball_times, closest
 from .cushion import rail_impact
 from .motion import ROLLING, SPINNING, evolve, evolve_moving, prepare, settle
-from .params import BallModel
+from .params import BallModel, check_rows, per_row, row_model, rows_of
 from .roots import first_quadratic_root
 from .table_arrays import on_cushion, table_arrays
 
@@ -111,9 +111,15 @@ def simulate(
     its first ball or as soon as it leaves the family's rail order: its miss and score are
     known by then, its landing may be missing. With ``gather`` a row about to cross a wall
     waits while other rows end a phase, so the cushion impacts come in fewer calls; each row's
-    motion is the same, only ``events`` grows.
+    motion is the same, only ``events`` grows. The model's cloth and cushion figures may be
+    per-row arrays of shape (n,) (params.BallModel): each row then runs as it would alone under
+    its own figures.
     """
     n = r0.shape[0]
+    rows_m = per_row(m)
+    if rows_m:
+        check_rows(m, n)
+    mi = m
     nf = len(rails)
     maxw = nf + 1
     rail_codes = np.array([RAILS.index(x) for x in rails], dtype=np.int64)
@@ -157,7 +163,9 @@ def simulate(
         events += 1
         idx = np.flatnonzero(live)
         ri, vi, wi = r[idx], v[idx], w[idx]
-        ph, a, t_end = prepare(m, vi, wi)
+        if rows_m:
+            mi = rows_of(m, idx)
+        ph, a, t_end = prepare(mi, vi, wi)
         # balls at rest (or only spinning in place) leave the simulation
         rest = ph <= SPINNING
         if np.count_nonzero(rest):
@@ -168,6 +176,8 @@ def simulate(
             ph, a, t_end = ph[keep], a[keep], t_end[keep]
             if idx.size == 0:
                 break
+            if rows_m:
+                mi = rows_of(m, idx)
         # cushion (box) crossings: one quadratic per wall
         c2 = 0.5 * a[:, ax4] * sgn
         c1 = vi[:, ax4] * sgn
@@ -229,9 +239,11 @@ def simulate(
                 ph, a, t_end, dt, wl = ph[go], a[go], t_end[go], dt[go], wl[go]
                 t_wall, wall_code, t_w = t_wall[go], wall_code[go], t_w[go]
                 t_b, b_id = t_b[go], b_id[go]
+                if rows_m:
+                    mi = rows_of(m, idx)
         if record:
             segments.append(Segment(ri.copy(), vi.copy(), wi.copy(), ph.copy(), dt.copy(), idx))
-        r2, v2, w2 = evolve_moving(m, ri, vi, wi, ph, dt, a)
+        r2, v2, w2 = evolve_moving(mi, ri, vi, wi, ph, dt, a)
         sp = np.hypot(v2[:, 0], v2[:, 1])
         mv = sp > 1e-12
         last_dir[idx[mv]] = v2[mv] / sp[mv, None]
@@ -322,7 +334,7 @@ def simulate(
                 vn = vin[:, 0] * nrm[:, 0] + vin[:, 1] * nrm[:, 1]
                 rg = rows[go]
                 rail_vn[rg] = np.maximum(rail_vn[rg], vn)
-                nv, nw = rail_impact(m, nrm, vin, w2[gi])
+                nv, nw = rail_impact(rows_of(mi, gi) if rows_m else m, nrm, vin, w2[gi])
                 v2[gi], w2[gi] = nv, nw
         r[idx], v[idx], w[idx] = r2, v2, w2
     # order and scoring
@@ -379,6 +391,7 @@ def sample_path(
 
     With ``until_ball`` the path stops where the row met its first ball (as the ideal trace).
     """
+    m = row_model(m, row)
     last = int(res.ball_event[row]) if until_ball and res.ball[row] >= 0 else len(res.segments)
     rs, vs, ws, phs, tss = [], [], [], [], []
     for seg in res.segments[: last + 1]:
