@@ -10,18 +10,24 @@ from __future__ import annotations
 import numpy as np
 
 from .motion import dot2
-from .roots import first_quadratic_root, first_quartic_root
+from .roots import first_quadratic_root, first_quartic_root, quadratic_root_quiet
 
 
 def ball_times(
-    p: np.ndarray, v: np.ndarray, a: np.ndarray, t_max: np.ndarray, reach: float
+    p: np.ndarray,
+    v: np.ndarray,
+    a: np.ndarray,
+    t_max: np.ndarray,
+    reach: float,
+    quiet: bool = False,
 ) -> np.ndarray:
     """First time the centre r + v t + a t^2/2 comes within ``reach`` of a ball (p = r - c).
 
     A path whose acceleration is along its velocity is straight: the contact is where the
     line meets the circle of radius ``reach``, and its time a quadratic root. A curved path
     (sliding with the slip across the velocity) is the quartic |p + v t + a t^2/2|^2 = reach^2
-    (Leckie and Greenspan 2006), solved in roots.py.
+    (Leckie and Greenspan 2006), solved in roots.py. With ``quiet`` the caller has silenced
+    numpy's division warnings (np.errstate) already.
     """
     vx, vy, ax, ay = v[:, 0], v[:, 1], a[:, 0], a[:, 1]
     spd = np.sqrt(vx * vx + vy * vy)
@@ -46,7 +52,8 @@ def ball_times(
         s_hit = -b - np.sqrt(np.maximum(disc, 0.0))
         ok = (disc >= 0) & (s_hit >= 0) & (sp > 0)
         # distance along the line s(t) = |v| t + (a.u) t^2 / 2 reaching s_hit
-        t = first_quadratic_root(-0.5 * (hx * ux + hy * uy), -sp, np.where(ok, s_hit, -1.0), tm)
+        root = quadratic_root_quiet if quiet else first_quadratic_root
+        t = root(-0.5 * (hx * ux + hy * uy), -sp, np.where(ok, s_hit, -1.0), tm)
         if every:
             return np.where(ok, t, np.inf)
         out[straight] = np.where(ok, t, np.inf)

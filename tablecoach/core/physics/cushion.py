@@ -223,65 +223,102 @@ def _stepped_columns(
         )
         return v1[:1], v2[:1], v3[:1], v4[:1], v5[:1]
     work = np.zeros(n)
-    wc = np.zeros(n)
+    wc = work
     # a slip this small counts as none: held for a whole piece, its direction would be noise
     # (a piece changes the slips by about mu_w vy / segments)
     tiny = np.maximum(_SLIP_TOL * np.hypot(X[0], X[1]), 1e-12)
+    # work arrays, reused by every piece (the same arithmetic as fresh arrays, fewer
+    # allocations), and views of them
     f = np.empty((4, n))
+    f_top, f_bot, f1 = f[:2], f[2:], f[1]
+    kk = np.empty(n)
+    sl = np.empty((4, n))
+    sq = np.empty((4, n))
+    mags = np.empty((2, n))  # slip speeds of the cushion and cloth contacts
+    held = np.empty((2, n))
+    d = np.empty((4, n))  # held slip directions (cushion x, y; cloth x, y)
+    zero = np.empty((2, n), dtype=bool)
+    r = np.empty((5, n))  # dX/dP
+    dvy = r[1]
+    sr = np.empty((4, n))
+    dsd = np.empty((2, n))
+    chk = np.empty((2, n))
+    over = np.empty((2, n), dtype=bool)
+    span = np.empty(n)
+    h = np.empty(n)
+    fall = np.empty(n, dtype=bool)
+    ndvy = np.empty(n)
+    rh = np.empty((5, n))
+    vy0 = np.empty(n)
+    dw = np.empty(n)
+    X1 = X[1]
+    half_c = c * 0.5
 
-    def terms(mw: np.ndarray | float, ms: np.ndarray | float, d: np.ndarray) -> np.ndarray:
-        np.multiply(mw, d[:2], out=f[:2])
-        k = s + c * f[1]
-        np.multiply(ms, d[2:], out=f[2:])
-        f[2:] *= k
-        return f
+    def rates(mw: np.ndarray | float, ms: np.ndarray | float, dd: np.ndarray) -> None:
+        """r = A f + b for the friction levels and held directions (f as the docstring)."""
+        np.multiply(mw, dd[:2], out=f_top)
+        np.multiply(f1, c, out=kk)  # k = sin theta + cos theta f2
+        np.add(kk, s, out=kk)
+        np.multiply(ms, dd[2:], out=f_bot)
+        np.multiply(f_bot, kk, out=f_bot)
+        np.matmul(A, f, out=r)
+        np.add(r, b, out=r)
 
     for phase in (0, 1):
         for j in range(segments):
             left = segments - j
-            sl = S @ X  # (4, n): cushion slip x, y; cloth slip x, y
-            sq = sl * sl
-            mags = np.sqrt(sq[0::2] + sq[1::2])  # (2, n): cushion, cloth slip speeds
-            d = (sl.reshape(2, 2, n) / np.maximum(mags, tiny)[:, None, :]).reshape(4, n)
-            zero = mags <= tiny
+            np.matmul(S, X, out=sl)  # (4, n): cushion slip x, y; cloth slip x, y
+            np.multiply(sl, sl, out=sq)
+            np.add(sq[0::2], sq[1::2], out=mags)
+            np.sqrt(mags, out=mags)
+            np.maximum(mags, tiny, out=held)
+            np.divide(sl.reshape(2, 2, n), held[:, None, :], out=d.reshape(2, 2, n))
+            np.less_equal(mags, tiny, out=zero)
             if np.count_nonzero(zero):
                 # a contact with no slip: its slip starts in the direction the other forces
                 # drive it (friction there off), and its friction opposes that start
                 z4 = np.repeat(zero, 2, axis=0)
-                d = np.where(z4, _UNIT_X, d)
-                r0 = SA @ terms(np.where(zero[0], 0.0, mu_w), np.where(zero[1], 0.0, mu_s), d) + Sb
+                d[...] = np.where(z4, _UNIT_X, d)
+                rates(np.where(zero[0], 0.0, mu_w), np.where(zero[1], 0.0, mu_s), d)
+                r0 = SA @ f + Sb
                 m0 = np.sqrt(r0[0::2] ** 2 + r0[1::2] ** 2)
                 d0 = np.where(np.repeat(m0 > 0, 2, axis=0), r0, _UNIT_X)
                 d0 = d0 / np.repeat(np.where(m0 > 0, m0, 1.0), 2, axis=0)
-                d = np.where(z4, d0, d)
+                d[...] = np.where(z4, d0, d)
             mw: np.ndarray | float = mu_w
             ms: np.ndarray | float = mu_s
-            r = A @ terms(mw, ms, d) + b
+            rates(mw, ms, d)
             need = np.maximum(wc * (1.0 + e2) - work, 0.0) / c if phase else None
             for _ in range(3):
-                dvy = r[1]
                 if phase == 0:
-                    fall = dvy < 0
-                    span = np.where(fall, X[1] / np.where(fall, -dvy, 1.0), 0.0)
+                    np.less(dvy, 0.0, out=fall)
+                    np.negative(dvy, out=ndvy)
+                    span.fill(0.0)
+                    np.divide(X1, ndvy, out=span, where=fall)
                 else:
                     # work c |vy| dP over the piece: (-vy) p + (-dvy) p^2 / 2 = need / c
                     assert need is not None
-                    a_, b_ = -X[1], -dvy
+                    a_, b_ = -X1, -dvy
                     disc = np.maximum(a_ * a_ + 2.0 * b_ * need, 0.0)
                     pos = b_ > 1e-300
-                    span = np.where(
+                    span[...] = np.where(
                         pos,
                         (np.sqrt(disc) - a_) / np.where(pos, b_, 1.0),
                         need / np.where(a_ > 0, a_, 1.0),
                     )
-                h = np.maximum(span, 0.0) / left
+                np.maximum(span, 0.0, out=h)
+                h /= left
                 # slip rates along each contact's held direction: a contact whose slip would
                 # reverse inside the piece sticks, its friction cut to stop the slip at zero
-                pd = (S @ r) * d
-                dsd = pd[0::2] + pd[1::2]  # (2, n): cushion, cloth
+                np.matmul(S, r, out=sr)
+                sr *= d
+                np.add(sr[0::2], sr[1::2], out=dsd)  # (2, n): cushion, cloth
                 # the slip would pass zero inside the piece (mags + dsd h < 0); its impulse
                 # to zero is mags / -dsd
-                if not np.count_nonzero(dsd * h + mags < 0.0):
+                np.multiply(dsd, h, out=chk)
+                chk += mags
+                np.less(chk, 0.0, out=over)
+                if not np.count_nonzero(over):
                     break
                 neg = dsd < 0
                 pwt = np.where(neg, mags / np.where(neg, -dsd, 1.0), np.inf)
@@ -291,12 +328,18 @@ def _stepped_columns(
                 hs = np.maximum(h, 1e-300)
                 mw = np.where(stick[0], mu_w * pwt[0] / hs, mw)
                 ms = np.where(stick[1], mu_s * pwt[1] / hs, ms)
-                r = A @ terms(mw, ms, d) + b
-            vy0 = np.abs(X[1])
-            X += r * h
-            work += c * 0.5 * (vy0 + np.abs(X[1])) * h
+                rates(mw, ms, d)
+            np.abs(X1, out=vy0)
+            np.multiply(r, h, out=rh)
+            X += rh
+            # work c |vy| dP over the piece, by the trapezoid
+            np.abs(X1, out=dw)
+            dw += vy0
+            dw *= half_c
+            dw *= h
+            work += dw
         if phase == 0:
-            X[1] = np.minimum(X[1], 0.0)
+            np.minimum(X1, 0.0, out=X1)
             wc = work.copy()
     return X[0], X[1], X[2], X[3], X[4]
 

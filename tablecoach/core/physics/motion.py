@@ -144,6 +144,31 @@ def prepare(
     return phase.astype(np.int8), a, t_end
 
 
+def prepare_moving(
+    m: BallModel, v: np.ndarray, w: np.ndarray
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """``prepare`` for the simulation loop, which drops balls that stopped or only spin: which
+    balls slide, which move (slide or roll), and the acceleration and phase duration of the
+    moving ones (the same arithmetic as ``prepare``; the values of the others are not used)."""
+    R = m.radius
+    v0, v1 = v[:, 0], v[:, 1]
+    ux = v0 - R * w[:, 1]
+    uy = v1 + R * w[:, 0]
+    us = np.sqrt(ux * ux + uy * uy)
+    vs = np.sqrt(v0 * v0 + v1 * v1)
+    sliding = us > EPS_V
+    moving = vs > EPS_V
+    rolling = moving & ~sliding
+    moving |= sliding
+    ks = np.divide(-m.mu_s * m.g, us, out=np.zeros_like(us), where=sliding)
+    kr = np.divide(-m.mu_r * m.g, vs, out=np.zeros_like(vs), where=rolling)
+    a = np.empty_like(v)
+    a[:, 0] = ks * ux + kr * v0
+    a[:, 1] = ks * uy + kr * v1
+    t_end = np.where(sliding, _over(2.0 * us, 7.0 * m.mu_s * m.g), _over(vs, m.mu_r * m.g))
+    return sliding, moving, a, t_end
+
+
 def evolve(
     m: BallModel,
     r: np.ndarray,
@@ -214,12 +239,24 @@ def evolve_moving(
 ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """``evolve`` for rows that all roll or slide (simulate's loop has dropped the rest): the
     same arithmetic without the branches for stopped and spinning balls."""
+    return evolve_sliding(m, r, v, w, phase == SLIDING, t, a)
+
+
+def evolve_sliding(
+    m: BallModel,
+    r: np.ndarray,
+    v: np.ndarray,
+    w: np.ndarray,
+    sl: np.ndarray,
+    t: np.ndarray,
+    a: np.ndarray,
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """``evolve_moving`` given which rows slide (the others roll)."""
     tt = t[:, None]
     r2 = r + (v + 0.5 * a * tt) * tt
     v2 = v + a * tt
     k = 2.5 / m.radius
     w2 = np.empty_like(w)
-    sl = phase == SLIDING
     w2[:, 0] = np.where(sl, w[:, 0] + k * a[:, 1] * t, -v2[:, 1] / m.radius)
     w2[:, 1] = np.where(sl, w[:, 1] - k * a[:, 0] * t, v2[:, 0] / m.radius)
     wz = w[:, 2]

@@ -23,9 +23,9 @@ import numpy as np
 from ..table import OUTWARD_NORMALS, RAILS, TableSpec
 from .approach import ball_times, closest
 from .cushion import rail_impact
-from .motion import ROLLING, SPINNING, evolve, evolve_moving, prepare, settle
+from .motion import ROLLING, SLIDING, evolve, evolve_sliding, prepare_moving
 from .params import BallModel, check_rows, per_row, row_model, rows_of
-from .roots import first_quadratic_root
+from .roots import quadratic_root_quiet
 from .table_arrays import on_cushion, table_arrays
 
 _NORMALS = np.array(OUTWARD_NORMALS)
@@ -159,184 +159,210 @@ def simulate(
     events = 0
     sp0 = np.hypot(v[:, 0], v[:, 1])
     last_dir[sp0 > 0] = v[sp0 > 0] / sp0[sp0 > 0, None]
-    while np.count_nonzero(live) and events < max_events:
-        events += 1
-        idx = np.flatnonzero(live)
-        ri, vi, wi = r[idx], v[idx], w[idx]
-        if rows_m:
-            mi = rows_of(m, idx)
-        ph, a, t_end = prepare(mi, vi, wi)
-        # balls at rest (or only spinning in place) leave the simulation
-        rest = ph <= SPINNING
-        if np.count_nonzero(rest):
-            stop_pos[idx[rest]] = ri[rest]
-            live[idx[rest]] = False
-            keep = ~rest
-            idx, ri, vi, wi = idx[keep], ri[keep], vi[keep], wi[keep]
-            ph, a, t_end = ph[keep], a[keep], t_end[keep]
-            if idx.size == 0:
-                break
+    ar = np.arange(n)
+    two_r = 2.0 * R
+    # one np.errstate for the whole loop (the event roots divide by zero where a row has no
+    # root); inside it the quiet forms of the root functions
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        while np.count_nonzero(live) and events < max_events:
+            events += 1
+            idx = np.flatnonzero(live)
+            ri, vi, wi = r[idx], v[idx], w[idx]
             if rows_m:
                 mi = rows_of(m, idx)
-        # cushion (box) crossings: one quadratic per wall
-        c2 = 0.5 * a[:, ax4] * sgn
-        c1 = vi[:, ax4] * sgn
-        c0 = (ri[:, ax4] - wall4) * sgn
-        t_wall = first_quadratic_root(c2, c1, c0, t_end[:, None])
-        wall_code = np.argmin(t_wall, axis=1)
-        t_w = t_wall.min(axis=1)  # the value at wall_code
-        # still balls: one quartic per ball
-        t_b = np.full(idx.size, np.inf)
-        b_id = np.full(idx.size, -1, dtype=np.int64)
-        tw_end = np.minimum(t_end, t_w)
-        wl = walls[idx]
-        act = bvalid[idx] & (wl[:, None] >= ball_from[idx]) & (ball[idx, None] < 0) if k else None
-        if act is not None and np.count_nonzero(act):
-            bb = balls[idx]
-            # prefilter: a ball farther from the line of travel than the path can bend, or
-            # beyond the distance the row can cover before its next wall or phase end, is
-            # never met in this stretch
-            T = np.where(np.isfinite(tw_end), tw_end, 1e3)
-            spd = np.hypot(vi[:, 0], vi[:, 1])
-            amag = np.hypot(a[:, 0], a[:, 1])
-            bend = 0.5 * amag * T * T
-            reach = spd * T + bend
-            dx = bb[:, :, 0] - ri[:, None, 0]
-            dy = bb[:, :, 1] - ri[:, None, 1]
-            gap = np.hypot(dx, dy)
-            spd_div = np.maximum(spd, 1e-300)
-            ux = vi[:, 0] / spd_div
-            uy = vi[:, 1] / spd_div
-            perp = np.abs(ux[:, None] * dy - uy[:, None] * dx)
-            act &= (gap - 2.0 * R <= reach[:, None] + 1e-9) & (
-                perp - 2.0 * R <= bend[:, None] + 1e-9
-            )
-            rows, cols = np.nonzero(act)
-            if rows.size:
-                p = ri[rows] - bb[rows, cols]
-                vv, aa = vi[rows], a[rows]
-                tb = ball_times(p, vv, aa, tw_end[rows], 2.0 * R)
-                if k == 1:  # one ball: no choice to make between balls
-                    t_b[rows] = tb
-                    b_id = np.where(np.isfinite(t_b), 0, -1)
-                else:
-                    tbm = np.full((idx.size, k), np.inf)
-                    tbm[rows, cols] = tb
-                    b_id = np.argmin(tbm, axis=1)
-                    t_b = tbm[np.arange(idx.size), b_id]
-                    b_id = np.where(np.isfinite(t_b), b_id, -1)
-        dt = np.minimum(tw_end, t_b)
-        dt = np.where(np.isfinite(dt), dt, 0.0)
-        if gather:
-            # rows about to cross a wall wait while others end a phase (slide to roll, mostly),
-            # so the cushion impacts of a pass come in fewer, larger batches; every row still
-            # moves from event to event exactly as alone
-            ball_next = np.isfinite(t_b) & (t_b <= dt) & (t_b < t_w)
-            wall_next = ~ball_next & np.isfinite(t_w) & (t_w <= dt)
-            if np.count_nonzero(wall_next) and np.count_nonzero(~ball_next & ~wall_next):
-                go = ~wall_next
-                idx, ri, vi, wi = idx[go], ri[go], vi[go], wi[go]
-                ph, a, t_end, dt, wl = ph[go], a[go], t_end[go], dt[go], wl[go]
-                t_wall, wall_code, t_w = t_wall[go], wall_code[go], t_w[go]
-                t_b, b_id = t_b[go], b_id[go]
+            sliding, moving, a, t_end = prepare_moving(mi, vi, wi)
+            # balls at rest (or only spinning in place) leave the simulation
+            if np.count_nonzero(moving) < idx.size:
+                rest = ~moving
+                stop_pos[idx[rest]] = ri[rest]
+                live[idx[rest]] = False
+                idx, ri, vi, wi = idx[moving], ri[moving], vi[moving], wi[moving]
+                sliding, a, t_end = sliding[moving], a[moving], t_end[moving]
+                if idx.size == 0:
+                    break
                 if rows_m:
                     mi = rows_of(m, idx)
-        if record:
-            segments.append(Segment(ri.copy(), vi.copy(), wi.copy(), ph.copy(), dt.copy(), idx))
-        r2, v2, w2 = evolve_moving(mi, ri, vi, wi, ph, dt, a)
-        sp = np.hypot(v2[:, 0], v2[:, 1])
-        mv = sp > 1e-12
-        last_dir[idx[mv]] = v2[mv] / sp[mv, None]
-        is_ball = np.isfinite(t_b) & (t_b <= dt) & (t_b < t_w)
-        is_wall = ~is_ball & np.isfinite(t_w) & (t_w <= dt)
-        is_end = ~is_ball & ~is_wall
-        # closest approach of the target point while after the family's rails
-        after = wl == nf  # live rows have not entered a pocket
-        if np.count_nonzero(after):
-            if any_lean:  # a lean row stops at the ball: measure on to its next event
-                lb = is_ball & lean_rows[idx]
-                tc = np.where(lb, np.minimum(t_end, t_w), dt)
-                to_wall = is_wall | (lb & (t_w < t_end))
-            else:
-                tc, to_wall = dt, is_wall
-            to_rest = (ph == ROLLING) & (t_end <= tc) & ~to_wall
-            closest(
-                ri, vi, a, tc, target_point[idx], after, to_rest, to_wall, best, miss, at_rest, idx
+            here = ar[: idx.size]
+            # cushion (box) crossings: one quadratic per wall
+            c2 = 0.5 * a[:, ax4] * sgn
+            c1 = vi[:, ax4] * sgn
+            c0 = (ri[:, ax4] - wall4) * sgn
+            t_wall = quadratic_root_quiet(c2, c1, c0, t_end[:, None])
+            wall_code = np.argmin(t_wall, axis=1)
+            t_w = t_wall[here, wall_code]  # the first wall's time
+            # still balls: one quartic per ball
+            t_b = np.full(idx.size, np.inf)
+            b_id = np.full(idx.size, -1, dtype=np.int64)
+            tw_end = np.minimum(t_end, t_w)
+            wl = walls[idx]
+            act = (
+                bvalid[idx] & (wl[:, None] >= ball_from[idx]) & (ball[idx, None] < 0) if k else None
             )
-        # ball contact: note it, and run on through the ball (balls ignored from now)
-        if np.count_nonzero(is_ball):
-            bi = idx[is_ball]
-            ball[bi] = b_id[is_ball]
-            ball_walls[bi] = walls[bi]
-            ball_pos[bi] = r2[is_ball]
-            ball_event[bi] = len(segments) - 1 if record else events - 1
-            if any_lean:
-                live[bi[lean_rows[bi]]] = False
-        # phase ends
-        if np.count_nonzero(is_end):
-            settle(m, v2, w2, is_end, ph)
-        # wall crossings
-        if np.count_nonzero(is_wall):
-            wi_rows = np.flatnonzero(is_wall)
-            rows = idx[wi_rows]
-            code = wall_code[wi_rows]
-            ax = code >> 1  # 0 for head and foot (x), 1 for left and right (y)
-            r2[wi_rows, ax] = wall4[code]  # exactly on the wall
-            along = r2[wi_rows, 1 - ax]
-            cnt = walls[rows]
-            slot = np.minimum(cnt, maxw - 1)
-            hits[rows, slot] = code
-            hit_at[rows, slot] = along
-            walls[rows] = cnt + 1
-            cush = on_cushion(seg_tab, code, along)
-            keep = np.ones(rows.size, dtype=bool)
-            if any_lean and nf:  # off the family's order: nothing more to learn from the row
-                off = (cnt < nf) & (code != rail_codes[np.minimum(cnt, nf - 1)])
-                off &= lean_rows[rows]
-                live[rows[off]] = False
-                keep = ~off
-            land = (cnt + 1 == maxw) & (landing_rail[rows] < 0)
-            landing_rail[rows[land]] = code[land]
-            landing_at[rows[land]] = along[land]
-            # pocket entries
-            pk = ~cush & keep
-            if np.count_nonzero(pk):
-                pr = rows[pk]
-                pc = code[pk]
-                al = along[pk]
-                pos = r2[wi_rows[pk]]
-                dist = np.abs(
-                    np.where(pc[:, None] < 2, paim[None, :, 1], paim[None, :, 0]) - al[:, None]
+            if act is not None and np.count_nonzero(act):
+                bb = balls[idx]
+                # prefilter: a ball farther from the line of travel than the path can bend, or
+                # beyond the distance the row can cover before its next wall or phase end, is
+                # never met in this stretch
+                T = np.where(np.isfinite(tw_end), tw_end, 1e3)
+                spd = np.hypot(vi[:, 0], vi[:, 1])
+                amag = np.hypot(a[:, 0], a[:, 1])
+                bend = 0.5 * amag * T * T
+                reach = spd * T + bend
+                dx = bb[:, :, 0] - ri[:, None, 0]
+                dy = bb[:, :, 1] - ri[:, None, 1]
+                gap = np.hypot(dx, dy)
+                spd_div = np.maximum(spd, 1e-300)
+                ux = vi[:, 0] / spd_div
+                uy = vi[:, 1] / spd_div
+                perp = np.abs(ux[:, None] * dy - uy[:, None] * dx)
+                act &= (gap - two_r <= reach[:, None] + 1e-9) & (
+                    perp - two_r <= bend[:, None] + 1e-9
                 )
-                dist = np.where(member[pc], dist, np.inf)
-                which = np.argmin(dist, axis=1)
-                d = v2[wi_rows[pk]]
-                d = d / np.maximum(np.hypot(d[:, 0], d[:, 1]), 1e-300)[:, None]
-                da = d[:, 0] * (ja[which, 1] - pos[:, 1]) - d[:, 1] * (ja[which, 0] - pos[:, 0])
-                db = d[:, 0] * (jb[which, 1] - pos[:, 1]) - d[:, 1] * (jb[which, 0] - pos[:, 0])
-                # the row crosses the box outward, so it is heading into the mouth
-                clean = (da * db < 0) & (np.minimum(np.abs(da), np.abs(db)) >= R - 1e-12)
-                pocket[pr] = which
-                pocket_walls[pr] = cnt[pk] + 1
-                pocket_clean[pr] = clean
-                pocket_pos[pr] = pos
-                nl = landing_rail[pr] < 0
-                landing_rail[pr[nl]] = pc[nl]
-                landing_at[pr[nl]] = al[nl]
-                live[pr] = False
-            # cushion impacts for rows still going (the landing crossing ends a row)
-            go = cush & ~land & keep
-            live[rows[cush & land]] = False
-            if np.count_nonzero(go):
-                gi = wi_rows[go]
-                nrm = _NORMALS[code[go]]
-                vin = v2[gi]
-                vn = vin[:, 0] * nrm[:, 0] + vin[:, 1] * nrm[:, 1]
-                rg = rows[go]
-                rail_vn[rg] = np.maximum(rail_vn[rg], vn)
-                nv, nw = rail_impact(rows_of(mi, gi) if rows_m else m, nrm, vin, w2[gi])
-                v2[gi], w2[gi] = nv, nw
-        r[idx], v[idx], w[idx] = r2, v2, w2
+                rows, cols = np.nonzero(act)
+                if rows.size:
+                    p = ri[rows] - bb[rows, cols]
+                    vv, aa = vi[rows], a[rows]
+                    tb = ball_times(p, vv, aa, tw_end[rows], two_r, quiet=True)
+                    if k == 1:  # one ball: no choice to make between balls
+                        t_b[rows] = tb
+                        b_id = np.where(np.isfinite(t_b), 0, -1)
+                    else:
+                        tbm = np.full((idx.size, k), np.inf)
+                        tbm[rows, cols] = tb
+                        b_id = np.argmin(tbm, axis=1)
+                        t_b = tbm[here, b_id]
+                        b_id = np.where(np.isfinite(t_b), b_id, -1)
+            dt = np.minimum(tw_end, t_b)
+            dt = np.where(np.isfinite(dt), dt, 0.0)
+            # the row's event (dt is finite, so an infinite time is never the event)
+            is_ball = (t_b <= dt) & (t_b < t_w)
+            is_wall = (t_w <= dt) & ~is_ball
+            if gather:
+                # rows about to cross a wall wait while others end a phase (slide to roll, mostly),
+                # so the cushion impacts of a pass come in fewer, larger batches; every row still
+                # moves from event to event exactly as alone
+                n_wall = np.count_nonzero(is_wall)
+                if n_wall and n_wall + np.count_nonzero(is_ball) < idx.size:
+                    go = ~is_wall
+                    idx, ri, vi, wi = idx[go], ri[go], vi[go], wi[go]
+                    sliding, a, t_end, dt, wl = sliding[go], a[go], t_end[go], dt[go], wl[go]
+                    wall_code, t_w = wall_code[go], t_w[go]
+                    t_b, b_id, is_ball = t_b[go], b_id[go], is_ball[go]
+                    is_wall = np.zeros(idx.size, dtype=bool)
+                    if rows_m:
+                        mi = rows_of(m, idx)
+            if record:
+                ph = np.where(sliding, SLIDING, ROLLING).astype(np.int8)
+                segments.append(Segment(ri.copy(), vi.copy(), wi.copy(), ph, dt.copy(), idx))
+            r2, v2, w2 = evolve_sliding(mi, ri, vi, wi, sliding, dt, a)
+            sp = np.hypot(v2[:, 0], v2[:, 1])
+            mv = sp > 1e-12
+            last_dir[idx[mv]] = v2[mv] / sp[mv, None]
+            is_end = ~(is_ball | is_wall)
+            # closest approach of the target point while after the family's rails
+            after = wl == nf  # live rows have not entered a pocket
+            if np.count_nonzero(after):
+                if any_lean:  # a lean row stops at the ball: measure on to its next event
+                    lb = is_ball & lean_rows[idx]
+                    tc = np.where(lb, np.minimum(t_end, t_w), dt)
+                    to_wall = is_wall | (lb & (t_w < t_end))
+                else:
+                    tc, to_wall = dt, is_wall
+                to_rest = ~sliding & (t_end <= tc) & ~to_wall
+                closest(
+                    ri,
+                    vi,
+                    a,
+                    tc,
+                    target_point[idx],
+                    after,
+                    to_rest,
+                    to_wall,
+                    best,
+                    miss,
+                    at_rest,
+                    idx,
+                )
+            # ball contact: note it, and run on through the ball (balls ignored from now)
+            if np.count_nonzero(is_ball):
+                bi = idx[is_ball]
+                ball[bi] = b_id[is_ball]
+                ball_walls[bi] = walls[bi]
+                ball_pos[bi] = r2[is_ball]
+                ball_event[bi] = len(segments) - 1 if record else events - 1
+                if any_lean:
+                    live[bi[lean_rows[bi]]] = False
+            # phase ends
+            if np.count_nonzero(is_end):
+                # exactly onto the next phase (motion.settle): a slide ends rolling, a roll at rest
+                sl = is_end & sliding
+                w2[sl, 0] = -v2[sl, 1] / R
+                w2[sl, 1] = v2[sl, 0] / R
+                ro = is_end & ~sliding
+                v2[ro] = 0.0
+                w2[ro, :2] = 0.0
+            # wall crossings
+            if np.count_nonzero(is_wall):
+                wi_rows = np.flatnonzero(is_wall)
+                rows = idx[wi_rows]
+                code = wall_code[wi_rows]
+                ax = code >> 1  # 0 for head and foot (x), 1 for left and right (y)
+                r2[wi_rows, ax] = wall4[code]  # exactly on the wall
+                along = r2[wi_rows, 1 - ax]
+                cnt = walls[rows]
+                slot = np.minimum(cnt, maxw - 1)
+                hits[rows, slot] = code
+                hit_at[rows, slot] = along
+                walls[rows] = cnt + 1
+                cush = on_cushion(seg_tab, code, along)
+                keep = np.ones(rows.size, dtype=bool)
+                if any_lean and nf:  # off the family's order: nothing more to learn from the row
+                    off = (cnt < nf) & (code != rail_codes[np.minimum(cnt, nf - 1)])
+                    off &= lean_rows[rows]
+                    live[rows[off]] = False
+                    keep = ~off
+                land = (cnt + 1 == maxw) & (landing_rail[rows] < 0)
+                landing_rail[rows[land]] = code[land]
+                landing_at[rows[land]] = along[land]
+                # pocket entries
+                pk = ~cush & keep
+                if np.count_nonzero(pk):
+                    pr = rows[pk]
+                    pc = code[pk]
+                    al = along[pk]
+                    pos = r2[wi_rows[pk]]
+                    dist = np.abs(
+                        np.where(pc[:, None] < 2, paim[None, :, 1], paim[None, :, 0]) - al[:, None]
+                    )
+                    dist = np.where(member[pc], dist, np.inf)
+                    which = np.argmin(dist, axis=1)
+                    d = v2[wi_rows[pk]]
+                    d = d / np.maximum(np.hypot(d[:, 0], d[:, 1]), 1e-300)[:, None]
+                    da = d[:, 0] * (ja[which, 1] - pos[:, 1]) - d[:, 1] * (ja[which, 0] - pos[:, 0])
+                    db = d[:, 0] * (jb[which, 1] - pos[:, 1]) - d[:, 1] * (jb[which, 0] - pos[:, 0])
+                    # the row crosses the box outward, so it is heading into the mouth
+                    clean = (da * db < 0) & (np.minimum(np.abs(da), np.abs(db)) >= R - 1e-12)
+                    pocket[pr] = which
+                    pocket_walls[pr] = cnt[pk] + 1
+                    pocket_clean[pr] = clean
+                    pocket_pos[pr] = pos
+                    nl = landing_rail[pr] < 0
+                    landing_rail[pr[nl]] = pc[nl]
+                    landing_at[pr[nl]] = al[nl]
+                    live[pr] = False
+                # cushion impacts for rows still going (the landing crossing ends a row)
+                go = cush & ~land & keep
+                live[rows[cush & land]] = False
+                if np.count_nonzero(go):
+                    gi = wi_rows[go]
+                    nrm = _NORMALS[code[go]]
+                    vin = v2[gi]
+                    vn = vin[:, 0] * nrm[:, 0] + vin[:, 1] * nrm[:, 1]
+                    rg = rows[go]
+                    rail_vn[rg] = np.maximum(rail_vn[rg], vn)
+                    nv, nw = rail_impact(rows_of(mi, gi) if rows_m else m, nrm, vin, w2[gi])
+                    v2[gi], w2[gi] = nv, nw
+            r[idx], v[idx], w[idx] = r2, v2, w2
     # order and scoring
     if nf:
         order_ok = (walls >= nf) & np.all(hits[:, :nf] == rail_codes[None, :], axis=1)
