@@ -116,7 +116,7 @@ def solve_batch(
     GRID = offs.size
     grid = np.broadcast_to(offs, (P, GRID)).copy()
     pi = np.repeat(np.arange(P), GRID)
-    res, _ = run(m, table, pr, pi, grid.ravel(), stroke, lean=True, gather=True)
+    res, _ = run(m, table, pr, pi, grid.ravel(), stroke, lean=True)
     mv = res.miss.reshape(P, GRID)
     sc = res.scores.reshape(P, GRID)
     # brackets: [root lo, root hi, m lo, m hi] and the window ends [bad, good] x 2
@@ -181,7 +181,7 @@ def solve_batch(
         lean = np.concatenate(
             [np.full(v.size, not (final and t[1] == 0)) for v, t in zip(vals, tags, strict=True)]
         )
-        res, _ = run(m, table, pr, pi, s_all, stroke, record=final, lean=lean, gather=True)
+        res, _ = run(m, table, pr, pi, s_all, stroke, record=final, lean=lean)
         last_res = res
         at = 0
         for row, (p, side) in enumerate(tags):

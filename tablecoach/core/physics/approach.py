@@ -74,6 +74,53 @@ def ball_times(
     return out
 
 
+def first_ball(
+    bb: np.ndarray,
+    act: np.ndarray,
+    r: np.ndarray,
+    v: np.ndarray,
+    a: np.ndarray,
+    t_max: np.ndarray,
+    reach: float,
+) -> tuple[np.ndarray, np.ndarray]:
+    """The first still ball each row meets within its stretch, and when: (time, ball index),
+    inf and -1 where none. ``bb`` (n, k, 2) the balls, ``act`` (n, k) those that count; the
+    caller silences numpy's division warnings (ball_times runs quiet).
+
+    A prefilter drops a ball farther from the line of travel than the path can bend, or beyond
+    the distance the row can cover in the stretch; ``ball_times`` solves the rest.
+    """
+    n, k = act.shape
+    T = np.where(np.isfinite(t_max), t_max, 1e3)
+    spd = np.hypot(v[:, 0], v[:, 1])
+    amag = np.hypot(a[:, 0], a[:, 1])
+    bend = 0.5 * amag * T * T
+    span = spd * T + bend
+    dx = bb[:, :, 0] - r[:, None, 0]
+    dy = bb[:, :, 1] - r[:, None, 1]
+    gap = np.hypot(dx, dy)
+    spd_div = np.maximum(spd, 1e-300)
+    ux = v[:, 0] / spd_div
+    uy = v[:, 1] / spd_div
+    perp = np.abs(ux[:, None] * dy - uy[:, None] * dx)
+    act = act & (gap - reach <= span[:, None] + 1e-9) & (perp - reach <= bend[:, None] + 1e-9)
+    t_b = np.full(n, np.inf)
+    b_id = np.full(n, -1, dtype=np.int64)
+    rows, cols = np.nonzero(act)
+    if rows.size:
+        tb = ball_times(r[rows] - bb[rows, cols], v[rows], a[rows], t_max[rows], reach, True)
+        if k == 1:  # one ball: no choice to make between balls
+            t_b[rows] = tb
+            b_id = np.where(np.isfinite(t_b), 0, -1)
+        else:
+            tbm = np.full((n, k), np.inf)
+            tbm[rows, cols] = tb
+            b_id = np.argmin(tbm, axis=1)
+            t_b = tbm[np.arange(n), b_id]
+            b_id = np.where(np.isfinite(t_b), b_id, -1)
+    return t_b, b_id
+
+
 def closest(
     r: np.ndarray,
     v: np.ndarray,

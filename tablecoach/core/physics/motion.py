@@ -222,6 +222,16 @@ def settle(
     v[sp] = 0.0
 
 
+def settle_into(radius: float, v: np.ndarray, w: np.ndarray, sliding: np.ndarray) -> None:
+    """``settle`` for balls that all just ended a slide (``sliding``) or a roll (in place):
+    a slide ends rolling (in-plane spin locked to v), a roll at rest."""
+    w[sliding, 0] = -v[sliding, 1] / radius
+    w[sliding, 1] = v[sliding, 0] / radius
+    ro = ~sliding
+    v[ro] = 0.0
+    w[ro, :2] = 0.0
+
+
 def energy(m: BallModel, v: np.ndarray, w: np.ndarray) -> np.ndarray:
     """Kinetic energy of each ball, m v^2 / 2 + I w^2 / 2 (J)."""
     out: np.ndarray = 0.5 * m.mass * np.sum(v * v, axis=1) + 0.5 * m.inertia * np.sum(w * w, axis=1)

@@ -21,9 +21,9 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..table import OUTWARD_NORMALS, RAILS, TableSpec
-from .approach import ball_times, closest
+from .approach import closest, first_ball
 from .cushion import rail_impact
-from .motion import ROLLING, SLIDING, evolve, evolve_sliding, prepare_moving
+from .motion import ROLLING, SLIDING, evolve, evolve_sliding, prepare_moving, settle_into
 from .params import BallModel, check_rows, per_row, row_model, rows_of
 from .roots import quadratic_root_quiet
 from .table_arrays import on_cushion, table_arrays
@@ -98,7 +98,6 @@ def simulate(
     record: bool = False,
     max_events: int = 200,
     lean: bool | np.ndarray = False,
-    gather: bool = False,
 ) -> SimResult:
     """Run every row to its landing, a pocket, or rest.
 
@@ -109,11 +108,11 @@ def simulate(
     ``target_point`` (n, 2) the point whose closest approach is ``miss``; ``target_pocket``
     (n,) POCKETS index or -1. With ``lean`` (aim solving; a flag or one per row) a row ends at
     its first ball or as soon as it leaves the family's rail order: its miss and score are
-    known by then, its landing may be missing. With ``gather`` a row about to cross a wall
-    waits while other rows end a phase, so the cushion impacts come in fewer calls; each row's
-    motion is the same, only ``events`` grows. The model's cloth and cushion figures may be
-    per-row arrays of shape (n,) (params.BallModel): each row then runs as it would alone under
-    its own figures.
+    known by then, its landing may be missing. ``events`` counts loop passes: each moves every
+    row to its next wall or ball, through at most one phase end on the way, so the rows of a
+    pass meet their cushions in one impact call per rail. The model's cloth and cushion figures
+    may be per-row arrays of shape (n,) (params.BallModel): each row then runs as it would
+    alone under its own figures.
     """
     n = r0.shape[0]
     rows_m = per_row(m)
@@ -159,7 +158,7 @@ def simulate(
     events = 0
     sp0 = np.hypot(v[:, 0], v[:, 1])
     last_dir[sp0 > 0] = v[sp0 > 0] / sp0[sp0 > 0, None]
-    ar = np.arange(n)
+    ar = np.arange(2 * n)
     two_r = 2.0 * R
     # one np.errstate for the whole loop (the event roots divide by zero where a row has no
     # root); inside it the quiet forms of the root functions
@@ -182,75 +181,87 @@ def simulate(
                     break
                 if rows_m:
                     mi = rows_of(m, idx)
-            here = ar[: idx.size]
+            nr = idx.size
+            # the second stretch: where the current phase ends, settled onto the next phase
+            # (a slide ends rolling, a roll at rest), and that phase; events are sought in both
+            # stretches at once (rows stacked), so a pass takes one loop pass per wall or ball
+            # rather than two (each row still goes from event to event as before)
+            fin = np.isfinite(t_end)
+            re, ve, we = evolve_sliding(mi, ri, vi, wi, sliding, np.where(fin, t_end, 0.0), a)
+            sp = np.hypot(ve[:, 0], ve[:, 1])
+            mv_e = sp > 1e-12
+            ve_dir = ve / np.where(mv_e, sp, 1.0)[:, None]
+            ve2, we2 = ve, we
+            settle_into(R, ve2, we2, sliding)
+            sl2, mov2, a2, te2 = prepare_moving(mi, ve2, we2)
+            te2 = np.where(mov2 & fin, te2, 0.0)  # none: a zero-length stretch
+            rs = np.concatenate((ri, re))
+            vs = np.concatenate((vi, ve2))
+            ws_ = np.concatenate((wi, we2))
+            slides = np.concatenate((sliding, sl2))
+            acc = np.concatenate((a, a2))
+            tends = np.concatenate((t_end, te2))
+            both = ar[: 2 * nr]
             # cushion (box) crossings: one quadratic per wall
-            c2 = 0.5 * a[:, ax4] * sgn
-            c1 = vi[:, ax4] * sgn
-            c0 = (ri[:, ax4] - wall4) * sgn
-            t_wall = quadratic_root_quiet(c2, c1, c0, t_end[:, None])
+            c2 = 0.5 * acc[:, ax4] * sgn
+            c1 = vs[:, ax4] * sgn
+            c0 = (rs[:, ax4] - wall4) * sgn
+            t_wall = quadratic_root_quiet(c2, c1, c0, tends[:, None])
             wall_code = np.argmin(t_wall, axis=1)
-            t_w = t_wall[here, wall_code]  # the first wall's time
-            # still balls: one quartic per ball
-            t_b = np.full(idx.size, np.inf)
-            b_id = np.full(idx.size, -1, dtype=np.int64)
-            tw_end = np.minimum(t_end, t_w)
+            t_w = t_wall[both, wall_code]  # the first wall's time
+            tw_end = np.minimum(tends, t_w)
             wl = walls[idx]
-            act = (
-                bvalid[idx] & (wl[:, None] >= ball_from[idx]) & (ball[idx, None] < 0) if k else None
-            )
-            if act is not None and np.count_nonzero(act):
-                bb = balls[idx]
-                # prefilter: a ball farther from the line of travel than the path can bend, or
-                # beyond the distance the row can cover before its next wall or phase end, is
-                # never met in this stretch
-                T = np.where(np.isfinite(tw_end), tw_end, 1e3)
-                spd = np.hypot(vi[:, 0], vi[:, 1])
-                amag = np.hypot(a[:, 0], a[:, 1])
-                bend = 0.5 * amag * T * T
-                reach = spd * T + bend
-                dx = bb[:, :, 0] - ri[:, None, 0]
-                dy = bb[:, :, 1] - ri[:, None, 1]
-                gap = np.hypot(dx, dy)
-                spd_div = np.maximum(spd, 1e-300)
-                ux = vi[:, 0] / spd_div
-                uy = vi[:, 1] / spd_div
-                perp = np.abs(ux[:, None] * dy - uy[:, None] * dx)
-                act &= (gap - two_r <= reach[:, None] + 1e-9) & (
-                    perp - two_r <= bend[:, None] + 1e-9
-                )
-                rows, cols = np.nonzero(act)
-                if rows.size:
-                    p = ri[rows] - bb[rows, cols]
-                    vv, aa = vi[rows], a[rows]
-                    tb = ball_times(p, vv, aa, tw_end[rows], two_r, quiet=True)
-                    if k == 1:  # one ball: no choice to make between balls
-                        t_b[rows] = tb
-                        b_id = np.where(np.isfinite(t_b), 0, -1)
-                    else:
-                        tbm = np.full((idx.size, k), np.inf)
-                        tbm[rows, cols] = tb
-                        b_id = np.argmin(tbm, axis=1)
-                        t_b = tbm[here, b_id]
-                        b_id = np.where(np.isfinite(t_b), b_id, -1)
+            wl2 = np.concatenate((wl, wl))
+            # still balls: one quartic per ball
+            t_b = np.full(2 * nr, np.inf)
+            b_id = np.full(2 * nr, -1, dtype=np.int64)
+            if k:
+                idx2 = np.concatenate((idx, idx))
+                act = bvalid[idx2] & (wl2[:, None] >= ball_from[idx2]) & (ball[idx2, None] < 0)
+                if np.count_nonzero(act):
+                    t_b, b_id = first_ball(balls[idx2], act, rs, vs, acc, tw_end, two_r)
             dt = np.minimum(tw_end, t_b)
             dt = np.where(np.isfinite(dt), dt, 0.0)
-            # the row's event (dt is finite, so an infinite time is never the event)
+            # each stretch's event (dt is finite, so an infinite time is never the event)
             is_ball = (t_b <= dt) & (t_b < t_w)
             is_wall = (t_w <= dt) & ~is_ball
-            if gather:
-                # rows about to cross a wall wait while others end a phase (slide to roll, mostly),
-                # so the cushion impacts of a pass come in fewer, larger batches; every row still
-                # moves from event to event exactly as alone
-                n_wall = np.count_nonzero(is_wall)
-                if n_wall and n_wall + np.count_nonzero(is_ball) < idx.size:
-                    go = ~is_wall
-                    idx, ri, vi, wi = idx[go], ri[go], vi[go], wi[go]
-                    sliding, a, t_end, dt, wl = sliding[go], a[go], t_end[go], dt[go], wl[go]
-                    wall_code, t_w = wall_code[go], t_w[go]
-                    t_b, b_id, is_ball = t_b[go], b_id[go], is_ball[go]
-                    is_wall = np.zeros(idx.size, dtype=bool)
-                    if rows_m:
-                        mi = rows_of(m, idx)
+            # rows whose first stretch ends in its phase end go on into the second, or rest
+            end1 = ~(is_ball[:nr] | is_wall[:nr]) & fin
+            use2 = end1 & mov2
+            if np.count_nonzero(end1):
+                # the first stretch run to its end: direction, closest approach, path
+                last_dir[idx[end1 & mv_e]] = ve_dir[end1 & mv_e]
+                aft = end1 & (wl == nf)
+                if np.count_nonzero(aft):
+                    to_rest = ~sliding & aft
+                    none = np.zeros(nr, dtype=bool)
+                    closest(
+                        ri, vi, a, t_end, target_point[idx], aft, to_rest, none, best, miss,
+                        at_rest, idx,
+                    )  # fmt: skip
+                if record:
+                    ph = np.where(sliding[end1], SLIDING, ROLLING).astype(np.int8)
+                    segments.append(
+                        Segment(ri[end1], vi[end1], wi[end1], ph, t_end[end1], idx[end1])
+                    )
+                rest2 = end1 & ~mov2
+                if np.count_nonzero(rest2):
+                    stop_pos[idx[rest2]] = re[rest2]
+                    live[idx[rest2]] = False
+                    r[idx[rest2]], v[idx[rest2]], w[idx[rest2]] = re[rest2], ve2[rest2], we2[rest2]
+                pick = (both[:nr] + nr * use2)[~rest2]
+                idx = idx[~rest2]
+                ri, vi, wi, sliding, a = rs[pick], vs[pick], ws_[pick], slides[pick], acc[pick]
+                t_end, t_w, wall_code, t_b = tends[pick], t_w[pick], wall_code[pick], t_b[pick]
+                b_id, dt, is_ball, is_wall = b_id[pick], dt[pick], is_ball[pick], is_wall[pick]
+                wl = wl[~rest2]
+                if idx.size == 0:
+                    continue
+                if rows_m:
+                    mi = rows_of(m, idx)
+            else:
+                t_end, t_w, wall_code, t_b = t_end, t_w[:nr], wall_code[:nr], t_b[:nr]
+                b_id, dt, is_ball, is_wall = b_id[:nr], dt[:nr], is_ball[:nr], is_wall[:nr]
             if record:
                 ph = np.where(sliding, SLIDING, ROLLING).astype(np.int8)
                 segments.append(Segment(ri.copy(), vi.copy(), wi.copy(), ph, dt.copy(), idx))

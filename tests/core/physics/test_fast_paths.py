@@ -140,14 +140,13 @@ def test_sampled_path_is_each_stretch_evolved_in_turn(table: TableSpec, model: B
     np.testing.assert_allclose(np.array(got), np.array(want), atol=1e-12)
 
 
-def test_gathered_cushion_impacts_move_each_row_as_if_alone(
-    model: BallModel, table: TableSpec
-) -> None:
-    # The rows of a batch are independent shots: holding a row at its wall while the others
-    # reach theirs (``gather``) must give every row what it gets simulated on its own, one row
-    # per call (the plain event loop, no batching at all). Strokes of all directions and
-    # speeds, with english, two still balls and a three-rail order, so rows meet cushions,
-    # balls and pockets at different events.
+def test_batched_rows_move_each_row_as_if_alone(model: BallModel, table: TableSpec) -> None:
+    # The rows of a batch are independent shots: running them together (each loop pass takes
+    # every row to its next wall or ball, through a phase end on the way, so rows at different
+    # stages share the pass and its cushion call) must give every row what it gets simulated on
+    # its own, one row per call. Strokes of all directions and speeds, with english, two still
+    # balls and a three-rail order, so rows meet cushions, balls and pockets at different
+    # events.
     rng = np.random.default_rng(11)
     n = 40
     r0 = np.stack((rng.uniform(0.3, 1.0, n), rng.uniform(0.3, 0.9, n)), axis=1)
@@ -162,9 +161,7 @@ def test_gathered_cushion_impacts_move_each_row_as_if_alone(
     pocket = np.full(n, -1, dtype=np.int64)
     rails = ("left", "foot", "right")
     lean = rng.uniform(size=n) < 0.5
-    got = simulate(
-        model, table, rails, r0, v0, w0, balls, ball_from, target, pocket, lean=lean, gather=True
-    )
+    got = simulate(model, table, rails, r0, v0, w0, balls, ball_from, target, pocket, lean=lean)
     fields = ("walls", "hits", "hit_at", "ball", "ball_pos", "pocket", "landing_rail")
     fields += ("landing_at", "stop_pos", "miss", "scores", "end_speed", "rail_vn")
     for i in range(n):
