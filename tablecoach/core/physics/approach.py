@@ -135,16 +135,32 @@ def closest(
     at_rest: np.ndarray,
     idx: np.ndarray,
 ) -> None:
-    """Update the closest approach of point c to the path r + v t + a t^2/2, t in [0, dt].
+    """Update the closest approach of point c to the path r + v t + a t^2/2, t in [0, dt], for
+    the rows ``sel`` (``nearest`` then ``keep_nearest``)."""
+    if np.count_nonzero(sel) == sel.size:
+        got = nearest(r, v, a, dt, c, to_rest, to_wall)
+    else:
+        got = nearest(r[sel], v[sel], a[sel], dt[sel], c[sel], to_rest[sel], to_wall[sel])
+    keep_nearest(idx[sel], *got, best, miss, at_rest)
+
+
+def nearest(
+    rs: np.ndarray,
+    vs: np.ndarray,
+    as_: np.ndarray,
+    T: np.ndarray,
+    cs: np.ndarray,
+    to_rest: np.ndarray,
+    to_wall: np.ndarray,
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The closest approach of points cs to paths r + v t + a t^2/2, t in [0, T]: distance,
+    side (+1 with the point left of travel) and whether it is where a row ``to_rest`` stops.
 
     Minimises |r(t) - c|^2 by Newton steps on (r(t) - c) . v(t) from the straight-line
-    estimate, clipped to the interval; the signed distance is positive with c left of travel.
+    estimate, clipped to the interval. Each row's arithmetic is its own, so rows of several
+    stretches can be stacked in one call.
     """
     # on columns (x and y apart): the same arithmetic as row-wise dot products, fewer calls
-    if np.count_nonzero(sel) == sel.size:
-        rs, cs, vs, as_, T = r, c, v, a, dt
-    else:
-        rs, cs, vs, as_, T = r[sel], c[sel], v[sel], a[sel], dt[sel]
     px, py = rs[:, 0] - cs[:, 0], rs[:, 1] - cs[:, 1]
     vx, vy, ax, ay = vs[:, 0], vs[:, 1], as_[:, 0], as_[:, 1]
     hx, hy = 0.5 * ax, 0.5 * ay
@@ -168,10 +184,49 @@ def closest(
     side = np.where((us > 1e-12) & (side != 0), side, 1.0)
     # a stretch that ends on a wall with the point still ahead (a pocket mouth beyond the
     # box): measure on the line of travel carried on past the wall
-    ahead = to_wall[sel] & (t >= T * (1.0 - 1e-12)) & ((-qx * ux + -qy * uy) > 0)
+    ahead = to_wall & (t >= T * (1.0 - 1e-12)) & ((-qx * ux + -qy * uy) > 0)
     dist = np.where(ahead, np.abs(cross) / np.maximum(us, 1e-300), dist)
-    rows = idx[sel]
+    return dist, side, to_rest & (t >= T * (1.0 - 1e-9))
+
+
+def keep_nearest(
+    rows: np.ndarray,
+    dist: np.ndarray,
+    side: np.ndarray,
+    rest: np.ndarray,
+    best: np.ndarray,
+    miss: np.ndarray,
+    at_rest: np.ndarray,
+) -> None:
+    """Keep each row's nearest approach so far (``rows`` distinct): best distance, signed miss,
+    and whether it is where the row came to rest."""
     better = dist < best[rows]
     best[rows[better]] = dist[better]
     miss[rows[better]] = side[better] * dist[better]
-    at_rest[rows[better]] = (to_rest[sel] & (t >= T * (1.0 - 1e-9)))[better]
+    at_rest[rows[better]] = rest[better]
+
+
+Stretch = tuple[
+    np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray
+]
+"""Rows of one stretch for ``closest_of``: row ids, r, v, a, T, c, to_rest, to_wall."""
+
+
+def closest_of(
+    groups: list[Stretch], best: np.ndarray, miss: np.ndarray, at_rest: np.ndarray
+) -> None:
+    """``closest`` for stretches taken in turn (a row's earlier stretch first): their rows
+    stacked into one ``nearest`` call, then kept group by group in order."""
+    if not groups:
+        return
+    if len(groups) == 1:
+        g = groups[0]
+        keep_nearest(g[0], *nearest(*g[1:]), best, miss, at_rest)
+        return
+    got = nearest(*(np.concatenate([g[j] for g in groups]) for j in range(1, 8)))
+    at = 0
+    for g in groups:
+        k = g[0].size
+        part = (got[0][at : at + k], got[1][at : at + k], got[2][at : at + k])
+        keep_nearest(g[0], *part, best, miss, at_rest)
+        at += k

@@ -21,7 +21,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..table import OUTWARD_NORMALS, RAILS, TableSpec
-from .approach import closest, first_ball
+from .approach import Stretch, closest_of, first_ball
 from .cushion import rail_impact
 from .motion import ROLLING, SLIDING, evolve, evolve_sliding, prepare_moving, settle_into
 from .params import BallModel, check_rows, per_row, row_model, rows_of
@@ -227,17 +227,17 @@ def simulate(
             is_wall = (t_w <= dt) & ~is_ball
             # rows whose first stretch ends in its phase end go on into the second, or rest
             end1 = ~(is_ball[:nr] | is_wall[:nr]) & fin
+            groups: list[Stretch] = []  # stretches whose closest approach is to be taken
             use2 = end1 & mov2
             if np.count_nonzero(end1):
                 # the first stretch run to its end: direction, closest approach, path
                 last_dir[idx[end1 & mv_e]] = ve_dir[end1 & mv_e]
                 aft = end1 & (wl == nf)
-                if np.count_nonzero(aft):
-                    to_rest = ~sliding & aft
-                    none = np.zeros(nr, dtype=bool)
-                    closest(
-                        ri, vi, a, t_end, target_point[idx], aft, to_rest, none, best, miss,
-                        at_rest, idx,
+                if np.count_nonzero(aft):  # its closest approach, taken with the next stretch's
+                    ia = idx[aft]
+                    groups.append(
+                        (ia, ri[aft], vi[aft], a[aft], t_end[aft], target_point[ia],
+                         ~sliding[aft], np.zeros(ia.size, dtype=bool))
                     )  # fmt: skip
                 if record:
                     ph = np.where(sliding[end1], SLIDING, ROLLING).astype(np.int8)
@@ -256,6 +256,7 @@ def simulate(
                 b_id, dt, is_ball, is_wall = b_id[pick], dt[pick], is_ball[pick], is_wall[pick]
                 wl = wl[~rest2]
                 if idx.size == 0:
+                    closest_of(groups, best, miss, at_rest)
                     continue
                 if rows_m:
                     mi = rows_of(m, idx)
@@ -280,20 +281,15 @@ def simulate(
                 else:
                     tc, to_wall = dt, is_wall
                 to_rest = ~sliding & (t_end <= tc) & ~to_wall
-                closest(
-                    ri,
-                    vi,
-                    a,
-                    tc,
-                    target_point[idx],
-                    after,
-                    to_rest,
-                    to_wall,
-                    best,
-                    miss,
-                    at_rest,
-                    idx,
-                )
+                if np.count_nonzero(after) < after.size:
+                    ia = idx[after]
+                    groups.append(
+                        (ia, ri[after], vi[after], a[after], tc[after], target_point[ia],
+                         to_rest[after], to_wall[after])
+                    )  # fmt: skip
+                else:
+                    groups.append((idx, ri, vi, a, tc, target_point[idx], to_rest, to_wall))
+            closest_of(groups, best, miss, at_rest)
             # ball contact: note it, and run on through the ball (balls ignored from now)
             if np.count_nonzero(is_ball):
                 bi = idx[is_ball]

@@ -178,3 +178,42 @@ def test_batched_rows_move_each_row_as_if_alone(model: BallModel, table: TableSp
                 atol=1e-9,
                 err_msg=f"row {i}, {f}",
             )
+
+
+def test_root_read_off_matches_numpy_polynomial() -> None:
+    # The solver's quadratic through three samples and the read-off's Lagrange value, on
+    # Python floats, against numpy.polynomial (reference library): the Vandermonde system on
+    # centred, scaled abscissae, polyroots and polyval.
+    from numpy.polynomial import polynomial as P
+
+    from tablecoach.core.aim.physical_solve import _chord_zero, quadratic_zero
+    from tablecoach.core.aim.physical_trace import _through
+
+    rng = np.random.default_rng(17)
+    checked = 0
+    for _ in range(400):
+        ss = np.sort(rng.uniform(0.0, 2.0, 5))
+        mm = rng.normal(size=5) * 0.05
+        j = int(rng.integers(0, 4))
+        lin = _chord_zero(ss[j], ss[j + 1], mm[j], mm[j + 1])
+        lo, hi = min(ss[j], ss[j + 1]), max(ss[j], ss[j + 1])
+        want = lin
+        for k in (j - 1, j):
+            if k < 0 or k + 2 >= ss.size:
+                continue
+            c, h = ss[k + 1], ss[k + 2] - ss[k]
+            coef = np.linalg.solve(P.polyvander((ss[k : k + 3] - c) / h, 2), mm[k : k + 3])
+            roots = P.polyroots(P.polytrim(coef))
+            real = roots[np.isreal(roots)].real * h + c
+            inside = real[(real >= lo) & (real <= hi)]
+            if inside.size:
+                want = float(inside[np.argmin(np.abs(inside - lin))])
+                break
+        got = quadratic_zero(ss, mm, j)
+        assert abs(got - want) <= 1e-9 * (1.0 + abs(want)), (ss, mm, j)
+        checked += want != lin
+        xs, ys, x = ss[:3], mm[:3], float(rng.uniform(ss[0], ss[2]))
+        cc, hh = float(np.mean(xs)), float(np.ptp(xs))
+        ref = float(P.polyval((x - cc) / hh, np.linalg.solve(P.polyvander((xs - cc) / hh, 2), ys)))
+        assert abs(_through(xs, ys, x) - ref) <= 1e-9 * (1.0 + abs(ref))
+    assert checked > 50  # the quadratic, not only the chord, was compared
