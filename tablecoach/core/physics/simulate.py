@@ -187,21 +187,26 @@ def simulate(
             # stretches at once (rows stacked), so a pass takes one loop pass per wall or ball
             # rather than two (each row still goes from event to event as before)
             fin = np.isfinite(t_end)
-            re, ve, we = evolve_sliding(mi, ri, vi, wi, sliding, np.where(fin, t_end, 0.0), a)
-            sp = np.hypot(ve[:, 0], ve[:, 1])
-            mv_e = sp > 1e-12
-            ve_dir = ve / np.where(mv_e, sp, 1.0)[:, None]
-            ve2, we2 = ve, we
-            settle_into(R, ve2, we2, sliding)
-            sl2, mov2, a2, te2 = prepare_moving(mi, ve2, we2)
-            te2 = np.where(mov2 & fin, te2, 0.0)  # none: a zero-length stretch
-            rs = np.concatenate((ri, re))
-            vs = np.concatenate((vi, ve2))
-            ws_ = np.concatenate((wi, we2))
-            slides = np.concatenate((sliding, sl2))
-            acc = np.concatenate((a, a2))
-            tends = np.concatenate((t_end, te2))
-            both = ar[: 2 * nr]
+            two = bool(np.count_nonzero(sliding & fin))  # else every roll ends at rest
+            if two:
+                re, ve, we = evolve_sliding(mi, ri, vi, wi, sliding, np.where(fin, t_end, 0.0), a)
+                sp = np.hypot(ve[:, 0], ve[:, 1])
+                mv_e = sp > 1e-12
+                ve_dir = ve / np.where(mv_e, sp, 1.0)[:, None]
+                ve2, we2 = ve, we
+                settle_into(R, ve2, we2, sliding)
+                sl2, mov2, a2, te2 = prepare_moving(mi, ve2, we2)
+                te2 = np.where(mov2 & fin, te2, 0.0)  # none: a zero-length stretch
+                rs = np.concatenate((ri, re))
+                vs = np.concatenate((vi, ve2))
+                ws_ = np.concatenate((wi, we2))
+                slides = np.concatenate((sliding, sl2))
+                acc = np.concatenate((a, a2))
+                tends = np.concatenate((t_end, te2))
+                nb = 2 * nr
+            else:
+                rs, vs, acc, tends, nb = ri, vi, a, t_end, nr
+            both = ar[:nb]
             # cushion (box) crossings: one quadratic per wall
             c2 = 0.5 * acc[:, ax4] * sgn
             c1 = vs[:, ax4] * sgn
@@ -211,12 +216,12 @@ def simulate(
             t_w = t_wall[both, wall_code]  # the first wall's time
             tw_end = np.minimum(tends, t_w)
             wl = walls[idx]
-            wl2 = np.concatenate((wl, wl))
+            wl2 = np.concatenate((wl, wl)) if two else wl
             # still balls: one quartic per ball
-            t_b = np.full(2 * nr, np.inf)
-            b_id = np.full(2 * nr, -1, dtype=np.int64)
+            t_b = np.full(nb, np.inf)
+            b_id = np.full(nb, -1, dtype=np.int64)
             if k:
-                idx2 = np.concatenate((idx, idx))
+                idx2 = np.concatenate((idx, idx)) if two else idx
                 act = bvalid[idx2] & (wl2[:, None] >= ball_from[idx2]) & (ball[idx2, None] < 0)
                 if np.count_nonzero(act):
                     t_b, b_id = first_ball(balls[idx2], act, rs, vs, acc, tw_end, two_r)
@@ -228,8 +233,8 @@ def simulate(
             # rows whose first stretch ends in its phase end go on into the second, or rest
             end1 = ~(is_ball[:nr] | is_wall[:nr]) & fin
             groups: list[Stretch] = []  # stretches whose closest approach is to be taken
-            use2 = end1 & mov2
-            if np.count_nonzero(end1):
+            if two and np.count_nonzero(end1):
+                use2 = end1 & mov2
                 # the first stretch run to its end: direction, closest approach, path
                 last_dir[idx[end1 & mv_e]] = ve_dir[end1 & mv_e]
                 aft = end1 & (wl == nf)
@@ -308,6 +313,9 @@ def simulate(
                 ro = is_end & ~sliding
                 v2[ro] = 0.0
                 w2[ro, :2] = 0.0
+                if np.count_nonzero(ro):  # at rest: it leaves now (as the next pass would)
+                    stop_pos[idx[ro]] = r2[ro]
+                    live[idx[ro]] = False
             # wall crossings
             if np.count_nonzero(is_wall):
                 wi_rows = np.flatnonzero(is_wall)
