@@ -228,19 +228,23 @@ def _stepped_columns(
     # (a piece changes the slips by about mu_w vy / segments)
     tiny = np.maximum(_SLIP_TOL * np.hypot(X[0], X[1]), 1e-12)
     # work arrays, reused by every piece (the same arithmetic as fresh arrays, fewer
-    # allocations), and views of them
+    # allocations), and views of them made once
     f = np.empty((4, n))
     f_top, f_bot, f1 = f[:2], f[2:], f[1]
     kk = np.empty(n)
     sl = np.empty((4, n))
     sq = np.empty((4, n))
+    sq_x, sq_y = sq[0::2], sq[1::2]
     mags = np.empty((2, n))  # slip speeds of the cushion and cloth contacts
     held = np.empty((2, n))
     d = np.empty((4, n))  # held slip directions (cushion x, y; cloth x, y)
+    d_top, d_bot = d[:2], d[2:]
+    sl3, held3, d3 = sl.reshape(2, 2, n), held[:, None, :], d.reshape(2, 2, n)
     zero = np.empty((2, n), dtype=bool)
     r = np.empty((5, n))  # dX/dP
     dvy = r[1]
     sr = np.empty((4, n))
+    sr_x, sr_y = sr[0::2], sr[1::2]
     dsd = np.empty((2, n))
     chk = np.empty((2, n))
     over = np.empty((2, n), dtype=bool)
@@ -249,37 +253,41 @@ def _stepped_columns(
     fall = np.empty(n, dtype=bool)
     ndvy = np.empty(n)
     rh = np.empty((5, n))
-    vy0 = np.empty(n)
+    # |vy| at the ends of the pieces and the pieces' impulses (the work of a phase's pieces
+    # is summed when it is needed: each piece at the end of compression, in turn, as before)
+    vabs = np.empty((segments + 1, n))
+    hs_ = np.empty((segments, n))
     dw = np.empty(n)
     X1 = X[1]
     half_c = c * 0.5
 
-    def rates(mw: np.ndarray | float, ms: np.ndarray | float, dd: np.ndarray) -> None:
+    def rates(mw: np.ndarray | float, ms: np.ndarray | float) -> None:
         """r = A f + b for the friction levels and held directions (f as the docstring)."""
-        np.multiply(mw, dd[:2], out=f_top)
+        np.multiply(mw, d_top, out=f_top)
         np.multiply(f1, c, out=kk)  # k = sin theta + cos theta f2
         np.add(kk, s, out=kk)
-        np.multiply(ms, dd[2:], out=f_bot)
+        np.multiply(ms, d_bot, out=f_bot)
         np.multiply(f_bot, kk, out=f_bot)
         np.matmul(A, f, out=r)
         np.add(r, b, out=r)
 
     for phase in (0, 1):
+        np.abs(X1, out=vabs[0])
         for j in range(segments):
             left = segments - j
             np.matmul(S, X, out=sl)  # (4, n): cushion slip x, y; cloth slip x, y
             np.multiply(sl, sl, out=sq)
-            np.add(sq[0::2], sq[1::2], out=mags)
+            np.add(sq_x, sq_y, out=mags)
             np.sqrt(mags, out=mags)
             np.maximum(mags, tiny, out=held)
-            np.divide(sl.reshape(2, 2, n), held[:, None, :], out=d.reshape(2, 2, n))
+            np.divide(sl3, held3, out=d3)
             np.less_equal(mags, tiny, out=zero)
             if np.count_nonzero(zero):
                 # a contact with no slip: its slip starts in the direction the other forces
                 # drive it (friction there off), and its friction opposes that start
                 z4 = np.repeat(zero, 2, axis=0)
                 d[...] = np.where(z4, _UNIT_X, d)
-                rates(np.where(zero[0], 0.0, mu_w), np.where(zero[1], 0.0, mu_s), d)
+                rates(np.where(zero[0], 0.0, mu_w), np.where(zero[1], 0.0, mu_s))
                 r0 = SA @ f + Sb
                 m0 = np.sqrt(r0[0::2] ** 2 + r0[1::2] ** 2)
                 d0 = np.where(np.repeat(m0 > 0, 2, axis=0), r0, _UNIT_X)
@@ -287,7 +295,7 @@ def _stepped_columns(
                 d[...] = np.where(z4, d0, d)
             mw: np.ndarray | float = mu_w
             ms: np.ndarray | float = mu_s
-            rates(mw, ms, d)
+            rates(mw, ms)
             need = np.maximum(wc * (1.0 + e2) - work, 0.0) / c if phase else None
             for _ in range(3):
                 if phase == 0:
@@ -312,7 +320,7 @@ def _stepped_columns(
                 # reverse inside the piece sticks, its friction cut to stop the slip at zero
                 np.matmul(S, r, out=sr)
                 sr *= d
-                np.add(sr[0::2], sr[1::2], out=dsd)  # (2, n): cushion, cloth
+                np.add(sr_x, sr_y, out=dsd)  # (2, n): cushion, cloth
                 # the slip would pass zero inside the piece (mags + dsd h < 0); its impulse
                 # to zero is mags / -dsd
                 np.multiply(dsd, h, out=chk)
@@ -328,17 +336,24 @@ def _stepped_columns(
                 hs = np.maximum(h, 1e-300)
                 mw = np.where(stick[0], mu_w * pwt[0] / hs, mw)
                 ms = np.where(stick[1], mu_s * pwt[1] / hs, ms)
-                rates(mw, ms, d)
-            np.abs(X1, out=vy0)
+                rates(mw, ms)
             np.multiply(r, h, out=rh)
             X += rh
-            # work c |vy| dP over the piece, by the trapezoid
-            np.abs(X1, out=dw)
-            dw += vy0
-            dw *= half_c
-            dw *= h
-            work += dw
+            np.abs(X1, out=vabs[j + 1])
+            if phase:
+                # work c |vy| dP over the piece, by the trapezoid
+                np.add(vabs[j + 1], vabs[j], out=dw)
+                dw *= half_c
+                dw *= h
+                work += dw
+            else:
+                hs_[j] = h
         if phase == 0:
+            # the compression pieces' work, summed piece after piece as it was done
+            dws = vabs[1:] + vabs[:-1]
+            dws *= half_c
+            dws *= hs_
+            work = np.add.reduce(dws, axis=0)
             np.minimum(X1, 0.0, out=X1)
             wc = work.copy()
     return X[0], X[1], X[2], X[3], X[4]
