@@ -169,6 +169,46 @@ def prepare_moving(
     return sliding, moving, a, t_end
 
 
+def prepare_rolled(m: BallModel, v: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """``prepare_moving`` for balls just settled by ``phase_end``: none slides (a settled slide
+    has its spin locked to v, so its slip is a rounding residue, some 1e-16 of the speed, far
+    under EPS_V), so only the rolling branch is computed: which move, their acceleration and
+    the time to rest (the same arithmetic as ``prepare``)."""
+    v0, v1 = v[:, 0], v[:, 1]
+    vs = np.sqrt(v0 * v0 + v1 * v1)
+    moving = vs > EPS_V
+    kr = np.divide(-m.mu_r * m.g, vs, out=np.zeros_like(vs), where=moving)
+    a = np.empty_like(v)
+    a[:, 0] = kr * v0
+    a[:, 1] = kr * v1
+    return moving, a, _over(vs, m.mu_r * m.g)
+
+
+def phase_end(
+    m: BallModel,
+    r: np.ndarray,
+    v: np.ndarray,
+    w: np.ndarray,
+    sl: np.ndarray,
+    t: np.ndarray,
+    a: np.ndarray,
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Where each ball's phase ends (``t`` its duration; ``sl`` which slide): position and
+    velocity there, then velocity and spin settled onto the next phase (a slide ends rolling,
+    a roll at rest) - ``evolve_sliding`` and ``settle`` without the in-plane spins that
+    the settling replaces."""
+    tt = t[:, None]
+    r2 = r + (v + 0.5 * a * tt) * tt
+    v2 = v + a * tt
+    R = m.radius
+    w2 = np.empty_like(w)
+    w2[:, 0] = np.where(sl, -v2[:, 1] / R, 0.0)
+    w2[:, 1] = np.where(sl, v2[:, 0] / R, 0.0)
+    wz = w[:, 2]
+    w2[:, 2] = np.sign(wz) * np.maximum(np.abs(wz) - m.spin_decel * t, 0.0)
+    return r2, v2, np.where(sl[:, None], v2, 0.0), w2
+
+
 def evolve(
     m: BallModel,
     r: np.ndarray,
@@ -220,16 +260,6 @@ def settle(
     sp = ended & (phase == SPINNING)
     w[sp] = 0.0
     v[sp] = 0.0
-
-
-def settle_into(radius: float, v: np.ndarray, w: np.ndarray, sliding: np.ndarray) -> None:
-    """``settle`` for balls that all just ended a slide (``sliding``) or a roll (in place):
-    a slide ends rolling (in-plane spin locked to v), a roll at rest."""
-    w[sliding, 0] = -v[sliding, 1] / radius
-    w[sliding, 1] = v[sliding, 0] / radius
-    ro = ~sliding
-    v[ro] = 0.0
-    w[ro, :2] = 0.0
 
 
 def energy(m: BallModel, v: np.ndarray, w: np.ndarray) -> np.ndarray:

@@ -23,7 +23,15 @@ import numpy as np
 from ..table import OUTWARD_NORMALS, RAILS, TableSpec
 from .approach import Stretch, closest_of, first_ball
 from .cushion import rail_impact
-from .motion import ROLLING, SLIDING, evolve, evolve_sliding, prepare_moving, settle_into
+from .motion import (
+    ROLLING,
+    SLIDING,
+    evolve,
+    evolve_sliding,
+    phase_end,
+    prepare_moving,
+    prepare_rolled,
+)
 from .params import BallModel, check_rows, per_row, row_model, rows_of
 from .roots import quadratic_root_quiet
 from .table_arrays import on_cushion, table_arrays
@@ -189,13 +197,12 @@ def simulate(
             fin = np.isfinite(t_end)
             two = bool(np.count_nonzero(sliding & fin))  # else every roll ends at rest
             if two:
-                re, ve, we = evolve_sliding(mi, ri, vi, wi, sliding, np.where(fin, t_end, 0.0), a)
+                re, ve, ve2, we2 = phase_end(mi, ri, vi, wi, sliding, np.where(fin, t_end, 0.0), a)
                 sp = np.hypot(ve[:, 0], ve[:, 1])
                 mv_e = sp > 1e-12
                 ve_dir = ve / np.where(mv_e, sp, 1.0)[:, None]
-                ve2, we2 = ve, we
-                settle_into(R, ve2, we2, sliding)
-                sl2, mov2, a2, te2 = prepare_moving(mi, ve2, we2)
+                mov2, a2, te2 = prepare_rolled(mi, ve2)
+                sl2 = np.zeros(nr, dtype=bool)
                 te2 = np.where(mov2 & fin, te2, 0.0)  # none: a zero-length stretch
                 rs = np.concatenate((ri, re))
                 vs = np.concatenate((vi, ve2))

@@ -217,3 +217,41 @@ def test_root_read_off_matches_numpy_polynomial() -> None:
         ref = float(P.polyval((x - cc) / hh, np.linalg.solve(P.polyvander((xs - cc) / hh, 2), ys)))
         assert abs(_through(xs, ys, x) - ref) <= 1e-9 * (1.0 + abs(ref))
     assert checked > 50  # the quadratic, not only the chord, was compared
+
+
+def test_phase_end_is_evolve_then_settle(model: BallModel) -> None:
+    # The loop's end-of-phase state (phase_end, prepare_rolled) against the plain path:
+    # motion.evolve to the phase's end, motion.settle, motion.prepare (the same arithmetic,
+    # so equal to the last bit).
+    from tablecoach.core.physics.motion import (
+        ROLLING,
+        SLIDING,
+        phase_end,
+        prepare,
+        prepare_rolled,
+        settle,
+    )
+
+    rng = np.random.default_rng(23)
+    n = 300
+    v = rng.normal(size=(n, 2)) * 2.0
+    w = rng.normal(size=(n, 3)) * 40.0
+    R = model.radius
+    rolling = rng.uniform(size=n) < 0.4
+    w[rolling, 0], w[rolling, 1] = -v[rolling, 1] / R, v[rolling, 0] / R
+    r = rng.uniform(0.3, 1.0, (n, 2))
+    ph, a, t_end = prepare(model, v, w)
+    assert set(np.unique(ph)) == {ROLLING, SLIDING}
+    want_r, want_v, want_w = evolve(model, r, v, w, ph, t_end, a)
+    got_r, got_v, got_vn, got_w = phase_end(model, r, v, w, ph == SLIDING, t_end, a)
+    np.testing.assert_array_equal(got_r, want_r)
+    np.testing.assert_array_equal(got_v, want_v)
+    settle(model, want_v, want_w, np.ones(n, dtype=bool), ph)
+    np.testing.assert_array_equal(got_vn, want_v)
+    np.testing.assert_array_equal(got_w, want_w)
+    ph2, a2, t2 = prepare(model, want_v, want_w)
+    moving, a3, t3 = prepare_rolled(model, got_vn)
+    assert not np.any(ph2 == SLIDING)
+    np.testing.assert_array_equal(moving, ph2 == ROLLING)
+    np.testing.assert_array_equal(a3[moving], a2[moving])
+    np.testing.assert_array_equal(t3[moving], t2[moving])
