@@ -298,22 +298,32 @@ def _stepped_columns(
             rates(mw, ms)
             need = np.maximum(wc * (1.0 + e2) - work, 0.0) / c if phase else None
             for _ in range(3):
+                # (vy falls through compression and grows backward through restitution, so
+                # the guarded branches below are for rows that do not, almost never seen)
+                np.negative(dvy, out=ndvy)
                 if phase == 0:
                     np.less(dvy, 0.0, out=fall)
-                    np.negative(dvy, out=ndvy)
-                    span.fill(0.0)
-                    np.divide(X1, ndvy, out=span, where=fall)
+                    if np.count_nonzero(fall) == n:
+                        np.divide(X1, ndvy, out=span)
+                    else:
+                        span.fill(0.0)
+                        np.divide(X1, ndvy, out=span, where=fall)
                 else:
                     # work c |vy| dP over the piece: (-vy) p + (-dvy) p^2 / 2 = need / c
                     assert need is not None
-                    a_, b_ = -X1, -dvy
-                    disc = np.maximum(a_ * a_ + 2.0 * b_ * need, 0.0)
-                    pos = b_ > 1e-300
-                    span[...] = np.where(
-                        pos,
-                        (np.sqrt(disc) - a_) / np.where(pos, b_, 1.0),
-                        need / np.where(a_ > 0, a_, 1.0),
-                    )
+                    a_ = -X1
+                    disc = np.maximum(a_ * a_ + 2.0 * ndvy * need, 0.0)
+                    np.greater(ndvy, 1e-300, out=fall)
+                    if np.count_nonzero(fall) == n:
+                        np.sqrt(disc, out=disc)
+                        disc -= a_
+                        np.divide(disc, ndvy, out=span)
+                    else:
+                        span[...] = np.where(
+                            fall,
+                            (np.sqrt(disc) - a_) / np.where(fall, ndvy, 1.0),
+                            need / np.where(a_ > 0, a_, 1.0),
+                        )
                 np.maximum(span, 0.0, out=h)
                 h /= left
                 # slip rates along each contact's held direction: a contact whose slip would
