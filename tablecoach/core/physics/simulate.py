@@ -440,6 +440,7 @@ def sample_path(
     With ``until_ball`` the path stops where the row met its first ball (as the ideal trace).
     """
     m = row_model(m, row)
+    steps = np.arange(per_segment + 1, dtype=float)
     last = int(res.ball_event[row]) if until_ball and res.ball[row] >= 0 else len(res.segments)
     rs, vs, ws, phs, tss = [], [], [], [], []
     for seg in res.segments[: last + 1]:
@@ -448,7 +449,13 @@ def sample_path(
             continue
         j = int(hit[0])
         T = float(seg.dt[j])
-        ts = np.linspace(0.0, T, per_segment + 1) if T > 0 else np.zeros(1)
+        if T > 0:
+            # np.linspace(0, T, per_segment + 1)'s arithmetic (i * step, the end exactly T)
+            # without its wrapper's cost
+            ts = steps * (T / per_segment)
+            ts[-1] = T
+        else:
+            ts = np.zeros(1)
         rs.append(seg.r[j])
         vs.append(seg.v[j])
         ws.append(seg.w[j])
