@@ -273,7 +273,7 @@ def simulate(
                 if rows_m:
                     mi = rows_of(m, idx)
             else:
-                t_end, t_w, wall_code, t_b = t_end, t_w[:nr], wall_code[:nr], t_b[:nr]
+                t_w, wall_code, t_b = t_w[:nr], wall_code[:nr], t_b[:nr]
                 b_id, dt, is_ball, is_wall = b_id[:nr], dt[:nr], is_ball[:nr], is_wall[:nr]
             if record:
                 ph = np.where(sliding, SLIDING, ROLLING).astype(np.int8)
