@@ -7,7 +7,8 @@ Run from the repository root:
 The set: the setups of bench_physics.py section 1 and ``--n`` setups dealt from the built-in
 packs (seed 7, every item in turn), each solved at its dealt stroke. ``compare`` prints the
 largest difference of the reading, the window ends, the landing and the contacts (diamonds),
-and any setup whose outcome (solved or the error's kind) changed.
+how many solves are identical to the last bit, and any setup whose outcome (solved or the
+error's kind) changed.
 """
 
 from __future__ import annotations
@@ -95,6 +96,7 @@ def main() -> None:
     old = json.loads(args.file.read_text())
     worst = {"reading": 0.0, "lo": 0.0, "hi": 0.0, "landing": 0.0, "contacts": 0.0}
     changed = 0
+    identical = sum(a == b for a, b in zip(old, rows, strict=True))
     for i, (a, b) in enumerate(zip(old, rows, strict=True)):
         if ("error" in a) != ("error" in b) or a.get("error") != b.get("error"):
             changed += 1
@@ -113,8 +115,12 @@ def main() -> None:
         else:
             for c, d in zip(a["contacts"], b["contacts"], strict=True):
                 worst["contacts"] = max(worst["contacts"], abs(c[1] - d[1]))
-    print(f"{len(rows)} solves, {changed} outcomes changed; largest differences (diamonds):")
+    print(
+        f"{len(rows)} solves, {changed} outcomes changed, {identical} identical to the last bit; "
+        "largest differences (diamonds):"
+    )
     print("  " + ", ".join(f"{k} {v:.5f}" for k, v in worst.items()))
+    print("  (exactly: " + ", ".join(f"{k} {v:.3g}" for k, v in worst.items()) + ")")
 
 
 if __name__ == "__main__":

@@ -146,11 +146,8 @@ def run(
     stroke: StrokeRows,
     record: bool = False,
     lean: bool | np.ndarray = False,
-    gather: bool = False,
 ) -> tuple[SimResult, Launch]:
-    """Launch and simulate rows; a row whose launch fails has no miss and does not score.
-
-    ``gather`` (the search's passes) batches the cushion impacts (physics.simulate)."""
+    """Launch and simulate rows; a row whose launch fails has no miss and does not score."""
     ln = launch(m, table, pr, pi, s, stroke)
     v0 = np.where(ln.ok[:, None], ln.v0, 0.0)
     w0 = np.where(ln.ok[:, None], ln.w0, 0.0)
@@ -167,7 +164,6 @@ def run(
         pr.pocket[pi],
         record=record,
         lean=lean,
-        gather=gather,
     )
     bad = ~ln.ok
     res.miss[bad] = np.nan

@@ -11,10 +11,10 @@ docs/model.md, "Aim solving", gives the reasons and the figures.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
-from numpy.polynomial import polynomial as P
 
 from ..physics.params import BallModel
 from ..physics.simulate import SimResult
@@ -80,21 +80,47 @@ def _chord_zero(s0: float, s1: float, m0: float, m1: float) -> float:
 
 def quadratic_zero(ss: np.ndarray, mm: np.ndarray, j: int) -> float:
     """The zero, inside the bracket [ss[j], ss[j + 1]], of the quadratic through three
-    neighbouring samples (numpy.polynomial: the Vandermonde system on centred, scaled
-    abscissae, then polyroots), or the chord's zero when no such quadratic has one there."""
+    neighbouring samples, or the chord's zero when no such quadratic has one there.
+
+    The quadratic is taken on centred, scaled abscissae u = (s - s_mid) / span in Newton's form
+    (divided differences), its real roots by the cancellation-free quadratic formula, all in
+    Python floats (a few numpy calls would cost more than the arithmetic); the result agrees
+    with numpy.polynomial's Vandermonde solve and polyroots (tests/core/physics/test_aim.py).
+    """
     lin = _chord_zero(ss[j], ss[j + 1], mm[j], mm[j + 1])
     lo, hi = min(ss[j], ss[j + 1]), max(ss[j], ss[j + 1])
     for k in (j - 1, j):
-        if k < 0 or k + 2 >= ss.size or not np.all(np.isfinite(mm[k : k + 3])):
+        if k < 0 or k + 2 >= ss.size:
             continue
-        c, h = ss[k + 1], ss[k + 2] - ss[k]
-        coef = np.linalg.solve(P.polyvander((ss[k : k + 3] - c) / h, 2), mm[k : k + 3])
-        roots = P.polyroots(P.polytrim(coef))
-        real = roots[np.isreal(roots)].real * h + c
-        inside = real[(real >= lo) & (real <= hi)]
-        if inside.size:
-            return float(inside[np.argmin(np.abs(inside - lin))])
+        x0, x1, x2 = float(ss[k]), float(ss[k + 1]), float(ss[k + 2])
+        y0, y1, y2 = float(mm[k]), float(mm[k + 1]), float(mm[k + 2])
+        if not (math.isfinite(y0) and math.isfinite(y1) and math.isfinite(y2)):
+            continue
+        h = x2 - x0
+        u0, u2 = (x0 - x1) / h, (x2 - x1) / h
+        if u0 == 0.0 or u2 == 0.0 or u2 == u0:
+            continue
+        d0, d2 = (y0 - y1) / u0, (y2 - y1) / u2
+        a2 = (d2 - d0) / (u2 - u0)
+        a1 = d0 - a2 * u0
+        inside = [u * h + x1 for u in _real_roots(a2, a1, y1) if lo <= u * h + x1 <= hi]
+        if inside:
+            return min(inside, key=lambda z: abs(z - lin))
     return lin
+
+
+def _real_roots(a2: float, a1: float, a0: float) -> list[float]:
+    """The real roots of a2 u^2 + a1 u + a0 (cancellation-free form; degree drops where the
+    leading coefficients are zero)."""
+    if a2 == 0.0:
+        return [-a0 / a1] if a1 != 0.0 else []
+    disc = a1 * a1 - 4.0 * a2 * a0
+    if disc < 0.0:
+        return []
+    q = -0.5 * (a1 + math.copysign(math.sqrt(disc), a1))
+    if q == 0.0:
+        return [0.0]
+    return [q / a2, a0 / q]
 
 
 def solve_batch(
@@ -116,7 +142,7 @@ def solve_batch(
     GRID = offs.size
     grid = np.broadcast_to(offs, (P, GRID)).copy()
     pi = np.repeat(np.arange(P), GRID)
-    res, _ = run(m, table, pr, pi, grid.ravel(), stroke, lean=True, gather=True)
+    res, _ = run(m, table, pr, pi, grid.ravel(), stroke, lean=True)
     mv = res.miss.reshape(P, GRID)
     sc = res.scores.reshape(P, GRID)
     # brackets: [root lo, root hi, m lo, m hi] and the window ends [bad, good] x 2
@@ -181,7 +207,7 @@ def solve_batch(
         lean = np.concatenate(
             [np.full(v.size, not (final and t[1] == 0)) for v, t in zip(vals, tags, strict=True)]
         )
-        res, _ = run(m, table, pr, pi, s_all, stroke, record=final, lean=lean, gather=True)
+        res, _ = run(m, table, pr, pi, s_all, stroke, record=final, lean=lean)
         last_res = res
         at = 0
         for row, (p, side) in enumerate(tags):

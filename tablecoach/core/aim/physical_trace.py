@@ -11,7 +11,6 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from numpy.polynomial import polynomial as P
 
 from ..geometry import box_exit
 from ..physics.params import BallModel
@@ -100,11 +99,19 @@ def trace_of(
 
 
 def _through(xs: np.ndarray, ys: np.ndarray, x: float) -> float:
-    """The value at x of the polynomial through the points (xs, ys) (numpy.polynomial: the
-    Vandermonde system on centred, scaled abscissae)."""
-    c, h = float(np.mean(xs)), float(np.ptp(xs))
-    coef = np.linalg.solve(P.polyvander((xs - c) / h, xs.size - 1), ys)
-    return float(P.polyval((x - c) / h, coef))
+    """The value at x of the polynomial through the points (xs, ys), in Lagrange's form on
+    Python floats (the same polynomial as numpy.polynomial's Vandermonde solve, for the
+    three points of the read-off; a few numpy calls would cost more than the arithmetic)."""
+    px = [float(p) for p in xs]
+    py = [float(q) for q in ys]
+    total = 0.0
+    for i, (xi, yi) in enumerate(zip(px, py, strict=True)):
+        term = yi
+        for m, xm in enumerate(px):
+            if m != i:
+                term *= (x - xm) / (xi - xm)
+        total += term
+    return total
 
 
 def read_off(

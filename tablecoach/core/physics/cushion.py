@@ -40,6 +40,9 @@ Two integrations of these equations:
 - ``fine_impact`` ("fine"): the paper's method with small midpoint steps (``fine_steps`` per
   M vy0 of impulse), the reference the stepped integration is tested against.
 
+The model's mu_w, mu_s and e_cushion may be per-row arrays (params.BallModel), one value per
+arriving ball.
+
 Every equation is homogeneous of degree one in the velocities, so the outcome of an impact
 scales with the arrival speed: a check over angles and spins at one speed holds at every speed.
 """
@@ -50,7 +53,7 @@ from functools import lru_cache
 
 import numpy as np
 
-from .params import BallModel
+from .params import BallModel, per_row, rows_of
 
 
 def impulse_rates(
@@ -105,15 +108,17 @@ def fine_impact(
     work = np.zeros(n)
     wc = np.full(n, np.nan)  # work at the end of compression
     active = np.ones(n, dtype=bool)
-    e2 = m.e_cushion**2
+    e2 = np.asarray(m.e_cushion, dtype=float) ** 2
+    rows = per_row(m)
     for _ in range(50 * steps):
         if not np.count_nonzero(active):
             break
         idx = np.flatnonzero(active)
         x = st[idx]
         h = dp[idx][:, None]
-        k1 = impulse_rates(m, x, m.mu_w, m.mu_s)
-        k2 = impulse_rates(m, x + 0.5 * h * k1, m.mu_w, m.mu_s)
+        mi = rows_of(m, idx) if rows else m
+        k1 = impulse_rates(m, x, mi.mu_w, mi.mu_s)
+        k2 = impulse_rates(m, x + 0.5 * h * k1, mi.mu_w, mi.mu_s)
         nx = x + h * k2
         vy0, vy1 = x[:, 1], nx[:, 1]
         comp = np.isnan(wc[idx])
@@ -125,7 +130,7 @@ def fine_impact(
         w_before = work[idx]
         w_after = w_before + dw
         wc_new = np.where(cross, w_before + c * 0.5 * vy0 * f * h[:, 0], wc[idx])
-        target = wc_new * (1.0 + e2)
+        target = wc_new * (1.0 + (e2[idx] if e2.ndim else e2))
         done = ~np.isnan(wc_new) & (w_after >= target)
         g = np.where(done, (target - w_before) / np.where(dw > 0, dw, 1.0), 1.0)
         g = np.clip(g, 0.0, 1.0)
@@ -208,66 +213,130 @@ def _stepped_columns(
     e2 = m.e_cushion**2
     X = np.array([vx, vy, wx, wy, wz], dtype=float)
     n = X.shape[1]
+    if n == 1:
+        # numpy's matrix product takes another path for one column, whose last bits can differ
+        # from those of a column of a larger product: a lone row runs as two copies, so a row
+        # comes out of every batch the same (and per-row figures stay one per row)
+        X2 = np.repeat(X, 2, axis=1)
+        v1, v2, v3, v4, v5 = _stepped_columns(
+            rows_of(m, np.zeros(2, dtype=np.intp)), X2[0], X2[1], X2[2], X2[3], X2[4], segments
+        )
+        return v1[:1], v2[:1], v3[:1], v4[:1], v5[:1]
     work = np.zeros(n)
-    wc = np.zeros(n)
+    wc = work
     # a slip this small counts as none: held for a whole piece, its direction would be noise
     # (a piece changes the slips by about mu_w vy / segments)
     tiny = np.maximum(_SLIP_TOL * np.hypot(X[0], X[1]), 1e-12)
+    # work arrays, reused by every piece (the same arithmetic as fresh arrays, fewer
+    # allocations), and views of them made once
     f = np.empty((4, n))
+    f_top, f_bot, f1 = f[:2], f[2:], f[1]
+    kk = np.empty(n)
+    sl = np.empty((4, n))
+    sq = np.empty((4, n))
+    sq_x, sq_y = sq[0::2], sq[1::2]
+    mags = np.empty((2, n))  # slip speeds of the cushion and cloth contacts
+    held = np.empty((2, n))
+    d = np.empty((4, n))  # held slip directions (cushion x, y; cloth x, y)
+    d_top, d_bot = d[:2], d[2:]
+    sl3, held3, d3 = sl.reshape(2, 2, n), held[:, None, :], d.reshape(2, 2, n)
+    zero = np.empty((2, n), dtype=bool)
+    r = np.empty((5, n))  # dX/dP
+    dvy = r[1]
+    sr = np.empty((4, n))
+    sr_x, sr_y = sr[0::2], sr[1::2]
+    dsd = np.empty((2, n))
+    chk = np.empty((2, n))
+    over = np.empty((2, n), dtype=bool)
+    span = np.empty(n)
+    h = np.empty(n)
+    fall = np.empty(n, dtype=bool)
+    ndvy = np.empty(n)
+    rh = np.empty((5, n))
+    # |vy| at the ends of the pieces and the pieces' impulses (the work of a phase's pieces
+    # is summed when it is needed: each piece at the end of compression, in turn, as before)
+    vabs = np.empty((segments + 1, n))
+    hs_ = np.empty((segments, n))
+    dw = np.empty(n)
+    X1 = X[1]
+    half_c = c * 0.5
 
-    def terms(mw: np.ndarray | float, ms: np.ndarray | float, d: np.ndarray) -> np.ndarray:
-        np.multiply(mw, d[:2], out=f[:2])
-        k = s + c * f[1]
-        np.multiply(ms, d[2:], out=f[2:])
-        f[2:] *= k
-        return f
+    def rates(mw: np.ndarray | float, ms: np.ndarray | float) -> None:
+        """r = A f + b for the friction levels and held directions (f as the docstring)."""
+        np.multiply(mw, d_top, out=f_top)
+        np.multiply(f1, c, out=kk)  # k = sin theta + cos theta f2
+        np.add(kk, s, out=kk)
+        np.multiply(ms, d_bot, out=f_bot)
+        np.multiply(f_bot, kk, out=f_bot)
+        np.matmul(A, f, out=r)
+        np.add(r, b, out=r)
 
     for phase in (0, 1):
+        np.abs(X1, out=vabs[0])
         for j in range(segments):
             left = segments - j
-            sl = S @ X  # (4, n): cushion slip x, y; cloth slip x, y
-            sq = sl * sl
-            mags = np.sqrt(sq[0::2] + sq[1::2])  # (2, n): cushion, cloth slip speeds
-            d = (sl.reshape(2, 2, n) / np.maximum(mags, tiny)[:, None, :]).reshape(4, n)
-            zero = mags <= tiny
+            np.matmul(S, X, out=sl)  # (4, n): cushion slip x, y; cloth slip x, y
+            np.multiply(sl, sl, out=sq)
+            np.add(sq_x, sq_y, out=mags)
+            np.sqrt(mags, out=mags)
+            np.maximum(mags, tiny, out=held)
+            np.divide(sl3, held3, out=d3)
+            np.less_equal(mags, tiny, out=zero)
             if np.count_nonzero(zero):
                 # a contact with no slip: its slip starts in the direction the other forces
                 # drive it (friction there off), and its friction opposes that start
                 z4 = np.repeat(zero, 2, axis=0)
-                d = np.where(z4, _UNIT_X, d)
-                r0 = SA @ terms(np.where(zero[0], 0.0, mu_w), np.where(zero[1], 0.0, mu_s), d) + Sb
+                d[...] = np.where(z4, _UNIT_X, d)
+                rates(np.where(zero[0], 0.0, mu_w), np.where(zero[1], 0.0, mu_s))
+                r0 = SA @ f + Sb
                 m0 = np.sqrt(r0[0::2] ** 2 + r0[1::2] ** 2)
                 d0 = np.where(np.repeat(m0 > 0, 2, axis=0), r0, _UNIT_X)
                 d0 = d0 / np.repeat(np.where(m0 > 0, m0, 1.0), 2, axis=0)
-                d = np.where(z4, d0, d)
+                d[...] = np.where(z4, d0, d)
             mw: np.ndarray | float = mu_w
             ms: np.ndarray | float = mu_s
-            r = A @ terms(mw, ms, d) + b
+            rates(mw, ms)
             need = np.maximum(wc * (1.0 + e2) - work, 0.0) / c if phase else None
             for _ in range(3):
-                dvy = r[1]
+                # (vy falls through compression and grows backward through restitution, so
+                # the guarded branches below are for rows that do not, almost never seen)
+                np.negative(dvy, out=ndvy)
                 if phase == 0:
-                    fall = dvy < 0
-                    span = np.where(fall, X[1] / np.where(fall, -dvy, 1.0), 0.0)
+                    np.less(dvy, 0.0, out=fall)
+                    if np.count_nonzero(fall) == n:
+                        np.divide(X1, ndvy, out=span)
+                    else:
+                        span.fill(0.0)
+                        np.divide(X1, ndvy, out=span, where=fall)
                 else:
                     # work c |vy| dP over the piece: (-vy) p + (-dvy) p^2 / 2 = need / c
                     assert need is not None
-                    a_, b_ = -X[1], -dvy
-                    disc = np.maximum(a_ * a_ + 2.0 * b_ * need, 0.0)
-                    pos = b_ > 1e-300
-                    span = np.where(
-                        pos,
-                        (np.sqrt(disc) - a_) / np.where(pos, b_, 1.0),
-                        need / np.where(a_ > 0, a_, 1.0),
-                    )
-                h = np.maximum(span, 0.0) / left
+                    a_ = -X1
+                    disc = np.maximum(a_ * a_ + 2.0 * ndvy * need, 0.0)
+                    np.greater(ndvy, 1e-300, out=fall)
+                    if np.count_nonzero(fall) == n:
+                        np.sqrt(disc, out=disc)
+                        disc -= a_
+                        np.divide(disc, ndvy, out=span)
+                    else:
+                        span[...] = np.where(
+                            fall,
+                            (np.sqrt(disc) - a_) / np.where(fall, ndvy, 1.0),
+                            need / np.where(a_ > 0, a_, 1.0),
+                        )
+                np.maximum(span, 0.0, out=h)
+                h /= left
                 # slip rates along each contact's held direction: a contact whose slip would
                 # reverse inside the piece sticks, its friction cut to stop the slip at zero
-                pd = (S @ r) * d
-                dsd = pd[0::2] + pd[1::2]  # (2, n): cushion, cloth
+                np.matmul(S, r, out=sr)
+                sr *= d
+                np.add(sr_x, sr_y, out=dsd)  # (2, n): cushion, cloth
                 # the slip would pass zero inside the piece (mags + dsd h < 0); its impulse
                 # to zero is mags / -dsd
-                if not np.count_nonzero(dsd * h + mags < 0.0):
+                np.multiply(dsd, h, out=chk)
+                chk += mags
+                np.less(chk, 0.0, out=over)
+                if not np.count_nonzero(over):
                     break
                 neg = dsd < 0
                 pwt = np.where(neg, mags / np.where(neg, -dsd, 1.0), np.inf)
@@ -277,12 +346,25 @@ def _stepped_columns(
                 hs = np.maximum(h, 1e-300)
                 mw = np.where(stick[0], mu_w * pwt[0] / hs, mw)
                 ms = np.where(stick[1], mu_s * pwt[1] / hs, ms)
-                r = A @ terms(mw, ms, d) + b
-            vy0 = np.abs(X[1])
-            X += r * h
-            work += c * 0.5 * (vy0 + np.abs(X[1])) * h
+                rates(mw, ms)
+            np.multiply(r, h, out=rh)
+            X += rh
+            np.abs(X1, out=vabs[j + 1])
+            if phase:
+                # work c |vy| dP over the piece, by the trapezoid
+                np.add(vabs[j + 1], vabs[j], out=dw)
+                dw *= half_c
+                dw *= h
+                work += dw
+            else:
+                hs_[j] = h
         if phase == 0:
-            X[1] = np.minimum(X[1], 0.0)
+            # the compression pieces' work, summed piece after piece as it was done
+            dws = vabs[1:] + vabs[:-1]
+            dws *= half_c
+            dws *= hs_
+            work = np.add.reduce(dws, axis=0)
+            np.minimum(X1, 0.0, out=X1)
             wc = work.copy()
     return X[0], X[1], X[2], X[3], X[4]
 

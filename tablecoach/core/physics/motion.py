@@ -3,7 +3,8 @@
 After W. Leckie and M. Greenspan, "An event-based pool physics simulator", Advances in Computer
 Games, LNCS 4250 (2006), with the phase equations of docs/model.md, "Ball on cloth" (Coriolis
 1835; Alciatore's parameter ranges). Every function works on a batch: positions ``r`` (n, 2),
-velocities ``v`` (n, 2), spins ``w`` (n, 3) (rad/s, z up from the cloth), SI units.
+velocities ``v`` (n, 2), spins ``w`` (n, 3) (rad/s, z up from the cloth), SI units; the
+model's cloth figures may be per-row arrays of shape (n,) (params.BallModel).
 
 Frame: the table's x and y with z = x cross y taken as "up" (away from the cloth) and all cross
 products by the usual formula. Mechanics is the same in a mirror image, so positions and
@@ -24,7 +25,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .params import BallModel
+from .params import BallModel, RowParam
 from .roots import first_quadratic_root
 
 STOPPED, SPINNING, ROLLING, SLIDING = 0, 1, 2, 3
@@ -64,12 +65,30 @@ def accel(m: BallModel, v: np.ndarray, w: np.ndarray, phase: np.ndarray) -> np.n
     sl = phase == SLIDING
     if sl.any():
         u = slip(m, v[sl], w[sl])
-        a[sl] = -m.mu_s * m.g * u / np.hypot(u[:, 0], u[:, 1])[:, None]
+        a[sl] = _col(-_at(m.mu_s, sl) * m.g) * u / np.hypot(u[:, 0], u[:, 1])[:, None]
     ro = phase == ROLLING
     if ro.any():
         vv = v[ro]
-        a[ro] = -m.mu_r * m.g * vv / np.hypot(vv[:, 0], vv[:, 1])[:, None]
+        a[ro] = _col(-_at(m.mu_r, ro) * m.g) * vv / np.hypot(vv[:, 0], vv[:, 1])[:, None]
     return a
+
+
+def _at(val: RowParam, sel: np.ndarray) -> RowParam:
+    """A model figure for the rows ``sel``: a per-row array indexed, a float as it is."""
+    return val[sel] if isinstance(val, np.ndarray) else val
+
+
+def _col(val: RowParam) -> RowParam:
+    """A per-row array as a column (to scale (n, 2) rows), a float as it is."""
+    return val[:, None] if isinstance(val, np.ndarray) else val
+
+
+def _over(num: np.ndarray, den: RowParam) -> np.ndarray:
+    """num / den, inf where den is not positive (den a float or one value per row)."""
+    if isinstance(den, np.ndarray):
+        out: np.ndarray = np.divide(num, den, out=np.full_like(num, np.inf), where=den > 0)
+        return out
+    return num / den if den > 0 else np.full_like(num, np.inf)
 
 
 def phase_duration(m: BallModel, v: np.ndarray, w: np.ndarray, phase: np.ndarray) -> np.ndarray:
@@ -79,17 +98,16 @@ def phase_duration(m: BallModel, v: np.ndarray, w: np.ndarray, phase: np.ndarray
     Greenspan 2006; docs/model.md, "Ball on cloth").
     """
     out = np.full(v.shape[0], np.inf)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        sl = phase == SLIDING
-        if sl.any():
-            u = np.hypot(*slip(m, v[sl], w[sl]).T)
-            out[sl] = 2.0 * u / (7.0 * m.mu_s * m.g) if m.mu_s > 0 else np.inf
-        ro = phase == ROLLING
-        if ro.any():
-            out[ro] = np.hypot(v[ro, 0], v[ro, 1]) / (m.mu_r * m.g) if m.mu_r > 0 else np.inf
-        sp = phase == SPINNING
-        if sp.any():
-            out[sp] = np.abs(w[sp, 2]) / m.spin_decel if m.spin_decel > 0 else np.inf
+    sl = phase == SLIDING
+    if sl.any():
+        u = np.hypot(*slip(m, v[sl], w[sl]).T)
+        out[sl] = _over(2.0 * u, 7.0 * _at(m.mu_s, sl) * m.g)
+    ro = phase == ROLLING
+    if ro.any():
+        out[ro] = _over(np.hypot(v[ro, 0], v[ro, 1]), _at(m.mu_r, ro) * m.g)
+    sp = phase == SPINNING
+    if sp.any():
+        out[sp] = _over(np.abs(w[sp, 2]), _at(m.spin_decel, sp))
     return out
 
 
@@ -117,13 +135,78 @@ def prepare(
     a = np.empty_like(v)
     a[:, 0] = ks * ux + kr * v[:, 0]
     a[:, 1] = ks * uy + kr * v[:, 1]
-    t_slide = 2.0 * us / (7.0 * m.mu_s * m.g) if m.mu_s > 0 else np.full_like(us, np.inf)
-    t_roll = vs / (m.mu_r * m.g) if m.mu_r > 0 else np.full_like(vs, np.inf)
-    t_spin = wz / m.spin_decel if m.spin_decel > 0 else np.full_like(wz, np.inf)
+    t_slide = _over(2.0 * us, 7.0 * m.mu_s * m.g)
+    t_roll = _over(vs, m.mu_r * m.g)
+    t_spin = _over(wz, m.spin_decel)
     t_end = np.where(
         sliding, t_slide, np.where(rolling, t_roll, np.where(spinning, t_spin, np.inf))
     )
     return phase.astype(np.int8), a, t_end
+
+
+def prepare_moving(
+    m: BallModel, v: np.ndarray, w: np.ndarray
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """``prepare`` for the simulation loop, which drops balls that stopped or only spin: which
+    balls slide, which move (slide or roll), and the acceleration and phase duration of the
+    moving ones (the same arithmetic as ``prepare``; the values of the others are not used)."""
+    R = m.radius
+    v0, v1 = v[:, 0], v[:, 1]
+    ux = v0 - R * w[:, 1]
+    uy = v1 + R * w[:, 0]
+    us = np.sqrt(ux * ux + uy * uy)
+    vs = np.sqrt(v0 * v0 + v1 * v1)
+    sliding = us > EPS_V
+    moving = vs > EPS_V
+    rolling = moving & ~sliding
+    moving |= sliding
+    ks = np.divide(-m.mu_s * m.g, us, out=np.zeros_like(us), where=sliding)
+    kr = np.divide(-m.mu_r * m.g, vs, out=np.zeros_like(vs), where=rolling)
+    a = np.empty_like(v)
+    a[:, 0] = ks * ux + kr * v0
+    a[:, 1] = ks * uy + kr * v1
+    t_end = np.where(sliding, _over(2.0 * us, 7.0 * m.mu_s * m.g), _over(vs, m.mu_r * m.g))
+    return sliding, moving, a, t_end
+
+
+def prepare_rolled(m: BallModel, v: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """``prepare_moving`` for balls just settled by ``phase_end``: none slides (a settled slide
+    has its spin locked to v, so its slip is a rounding residue, some 1e-16 of the speed, far
+    under EPS_V), so only the rolling branch is computed: which move, their acceleration and
+    the time to rest (the same arithmetic as ``prepare``)."""
+    v0, v1 = v[:, 0], v[:, 1]
+    vs = np.sqrt(v0 * v0 + v1 * v1)
+    moving = vs > EPS_V
+    kr = np.divide(-m.mu_r * m.g, vs, out=np.zeros_like(vs), where=moving)
+    a = np.empty_like(v)
+    a[:, 0] = kr * v0
+    a[:, 1] = kr * v1
+    return moving, a, _over(vs, m.mu_r * m.g)
+
+
+def phase_end(
+    m: BallModel,
+    r: np.ndarray,
+    v: np.ndarray,
+    w: np.ndarray,
+    sl: np.ndarray,
+    t: np.ndarray,
+    a: np.ndarray,
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Where each ball's phase ends (``t`` its duration; ``sl`` which slide): position and
+    velocity there, then velocity and spin settled onto the next phase (a slide ends rolling,
+    a roll at rest) - ``evolve_sliding`` and ``settle`` without the in-plane spins that
+    the settling replaces."""
+    tt = t[:, None]
+    r2 = r + (v + 0.5 * a * tt) * tt
+    v2 = v + a * tt
+    R = m.radius
+    w2 = np.empty_like(w)
+    w2[:, 0] = np.where(sl, -v2[:, 1] / R, 0.0)
+    w2[:, 1] = np.where(sl, v2[:, 0] / R, 0.0)
+    wz = w[:, 2]
+    w2[:, 2] = np.sign(wz) * np.maximum(np.abs(wz) - m.spin_decel * t, 0.0)
+    return r2, v2, np.where(sl[:, None], v2, 0.0), w2
 
 
 def evolve(
@@ -196,12 +279,24 @@ def evolve_moving(
 ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """``evolve`` for rows that all roll or slide (simulate's loop has dropped the rest): the
     same arithmetic without the branches for stopped and spinning balls."""
+    return evolve_sliding(m, r, v, w, phase == SLIDING, t, a)
+
+
+def evolve_sliding(
+    m: BallModel,
+    r: np.ndarray,
+    v: np.ndarray,
+    w: np.ndarray,
+    sl: np.ndarray,
+    t: np.ndarray,
+    a: np.ndarray,
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """``evolve_moving`` given which rows slide (the others roll)."""
     tt = t[:, None]
     r2 = r + (v + 0.5 * a * tt) * tt
     v2 = v + a * tt
     k = 2.5 / m.radius
     w2 = np.empty_like(w)
-    sl = phase == SLIDING
     w2[:, 0] = np.where(sl, w[:, 0] + k * a[:, 1] * t, -v2[:, 1] / m.radius)
     w2[:, 1] = np.where(sl, w[:, 1] - k * a[:, 0] * t, v2[:, 0] / m.radius)
     wz = w[:, 2]

@@ -18,18 +18,26 @@ def first_quadratic_root(
     Uses the cancellation-free form of the quadratic formula (q = -(b + sign(b) sqrt(D)) / 2).
     """
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-        lin = np.abs(c2) < 1e-14
-        disc = c1 * c1 - 4.0 * c2 * c0
-        sq = np.sqrt(np.maximum(disc, 0.0))
-        q = -0.5 * (c1 + np.copysign(sq, c1))
-        r1 = np.where(lin, -c0 / c1, q / c2)
-        r2 = np.where(lin, np.inf, c0 / q)
-        ok_disc = lin | (disc >= 0)
-        d2 = 2.0 * c2
-        g1 = ok_disc & (r1 > T_MIN) & (r1 <= t_max) & ((d2 * r1 + c1) < 0)
-        g2 = ok_disc & (r2 > T_MIN) & (r2 <= t_max) & ((d2 * r2 + c1) < 0)
-        # the smaller of the good roots (the same as taking them in turn)
-        best = np.minimum(np.where(g1, r1, np.inf), np.where(g2, r2, np.inf))
+        return quadratic_root_quiet(c2, c1, c0, t_max)
+
+
+def quadratic_root_quiet(
+    c2: np.ndarray, c1: np.ndarray, c0: np.ndarray, t_max: np.ndarray
+) -> np.ndarray:
+    """``first_quadratic_root`` for a caller that already silences numpy's division and
+    invalid-value warnings (np.errstate costs as much as several array operations)."""
+    lin = np.abs(c2) < 1e-14
+    disc = c1 * c1 - 4.0 * c2 * c0
+    sq = np.sqrt(np.maximum(disc, 0.0))
+    q = -0.5 * (c1 + np.copysign(sq, c1))
+    r1 = np.where(lin, -c0 / c1, q / c2)
+    r2 = np.where(lin, np.inf, c0 / q)
+    ok_disc = lin | (disc >= 0)
+    d2 = 2.0 * c2
+    g1 = ok_disc & (r1 > T_MIN) & (r1 <= t_max) & ((d2 * r1 + c1) < 0)
+    g2 = ok_disc & (r2 > T_MIN) & (r2 <= t_max) & ((d2 * r2 + c1) < 0)
+    # the smaller of the good roots (the same as taking them in turn)
+    best = np.minimum(np.where(g1, r1, np.inf), np.where(g2, r2, np.inf))
     return np.asarray(best)
 
 

@@ -140,14 +140,13 @@ def test_sampled_path_is_each_stretch_evolved_in_turn(table: TableSpec, model: B
     np.testing.assert_allclose(np.array(got), np.array(want), atol=1e-12)
 
 
-def test_gathered_cushion_impacts_move_each_row_as_if_alone(
-    model: BallModel, table: TableSpec
-) -> None:
-    # The rows of a batch are independent shots: holding a row at its wall while the others
-    # reach theirs (``gather``) must give every row what it gets simulated on its own, one row
-    # per call (the plain event loop, no batching at all). Strokes of all directions and
-    # speeds, with english, two still balls and a three-rail order, so rows meet cushions,
-    # balls and pockets at different events.
+def test_batched_rows_move_each_row_as_if_alone(model: BallModel, table: TableSpec) -> None:
+    # The rows of a batch are independent shots: running them together (each loop pass takes
+    # every row to its next wall or ball, through a phase end on the way, so rows at different
+    # stages share the pass and its cushion call) must give every row what it gets simulated on
+    # its own, one row per call. Strokes of all directions and speeds, with english, two still
+    # balls and a three-rail order, so rows meet cushions, balls and pockets at different
+    # events.
     rng = np.random.default_rng(11)
     n = 40
     r0 = np.stack((rng.uniform(0.3, 1.0, n), rng.uniform(0.3, 0.9, n)), axis=1)
@@ -162,9 +161,7 @@ def test_gathered_cushion_impacts_move_each_row_as_if_alone(
     pocket = np.full(n, -1, dtype=np.int64)
     rails = ("left", "foot", "right")
     lean = rng.uniform(size=n) < 0.5
-    got = simulate(
-        model, table, rails, r0, v0, w0, balls, ball_from, target, pocket, lean=lean, gather=True
-    )
+    got = simulate(model, table, rails, r0, v0, w0, balls, ball_from, target, pocket, lean=lean)
     fields = ("walls", "hits", "hit_at", "ball", "ball_pos", "pocket", "landing_rail")
     fields += ("landing_at", "stop_pos", "miss", "scores", "end_speed", "rail_vn")
     for i in range(n):
@@ -181,3 +178,80 @@ def test_gathered_cushion_impacts_move_each_row_as_if_alone(
                 atol=1e-9,
                 err_msg=f"row {i}, {f}",
             )
+
+
+def test_root_read_off_matches_numpy_polynomial() -> None:
+    # The solver's quadratic through three samples and the read-off's Lagrange value, on
+    # Python floats, against numpy.polynomial (reference library): the Vandermonde system on
+    # centred, scaled abscissae, polyroots and polyval.
+    from numpy.polynomial import polynomial as P
+
+    from tablecoach.core.aim.physical_solve import _chord_zero, quadratic_zero
+    from tablecoach.core.aim.physical_trace import _through
+
+    rng = np.random.default_rng(17)
+    checked = 0
+    for _ in range(400):
+        ss = np.sort(rng.uniform(0.0, 2.0, 5))
+        mm = rng.normal(size=5) * 0.05
+        j = int(rng.integers(0, 4))
+        lin = _chord_zero(ss[j], ss[j + 1], mm[j], mm[j + 1])
+        lo, hi = min(ss[j], ss[j + 1]), max(ss[j], ss[j + 1])
+        want = lin
+        for k in (j - 1, j):
+            if k < 0 or k + 2 >= ss.size:
+                continue
+            c, h = ss[k + 1], ss[k + 2] - ss[k]
+            coef = np.linalg.solve(P.polyvander((ss[k : k + 3] - c) / h, 2), mm[k : k + 3])
+            roots = P.polyroots(P.polytrim(coef))
+            real = roots[np.isreal(roots)].real * h + c
+            inside = real[(real >= lo) & (real <= hi)]
+            if inside.size:
+                want = float(inside[np.argmin(np.abs(inside - lin))])
+                break
+        got = quadratic_zero(ss, mm, j)
+        assert abs(got - want) <= 1e-9 * (1.0 + abs(want)), (ss, mm, j)
+        checked += want != lin
+        xs, ys, x = ss[:3], mm[:3], float(rng.uniform(ss[0], ss[2]))
+        cc, hh = float(np.mean(xs)), float(np.ptp(xs))
+        ref = float(P.polyval((x - cc) / hh, np.linalg.solve(P.polyvander((xs - cc) / hh, 2), ys)))
+        assert abs(_through(xs, ys, x) - ref) <= 1e-9 * (1.0 + abs(ref))
+    assert checked > 50  # the quadratic, not only the chord, was compared
+
+
+def test_phase_end_is_evolve_then_settle(model: BallModel) -> None:
+    # The loop's end-of-phase state (phase_end, prepare_rolled) against the plain path:
+    # motion.evolve to the phase's end, motion.settle, motion.prepare (the same arithmetic,
+    # so equal to the last bit).
+    from tablecoach.core.physics.motion import (
+        ROLLING,
+        SLIDING,
+        phase_end,
+        prepare,
+        prepare_rolled,
+        settle,
+    )
+
+    rng = np.random.default_rng(23)
+    n = 300
+    v = rng.normal(size=(n, 2)) * 2.0
+    w = rng.normal(size=(n, 3)) * 40.0
+    R = model.radius
+    rolling = rng.uniform(size=n) < 0.4
+    w[rolling, 0], w[rolling, 1] = -v[rolling, 1] / R, v[rolling, 0] / R
+    r = rng.uniform(0.3, 1.0, (n, 2))
+    ph, a, t_end = prepare(model, v, w)
+    assert set(np.unique(ph)) == {ROLLING, SLIDING}
+    want_r, want_v, want_w = evolve(model, r, v, w, ph, t_end, a)
+    got_r, got_v, got_vn, got_w = phase_end(model, r, v, w, ph == SLIDING, t_end, a)
+    np.testing.assert_array_equal(got_r, want_r)
+    np.testing.assert_array_equal(got_v, want_v)
+    settle(model, want_v, want_w, np.ones(n, dtype=bool), ph)
+    np.testing.assert_array_equal(got_vn, want_v)
+    np.testing.assert_array_equal(got_w, want_w)
+    ph2, a2, t2 = prepare(model, want_v, want_w)
+    moving, a3, t3 = prepare_rolled(model, got_vn)
+    assert not np.any(ph2 == SLIDING)
+    np.testing.assert_array_equal(moving, ph2 == ROLLING)
+    np.testing.assert_array_equal(a3[moving], a2[moving])
+    np.testing.assert_array_equal(t3[moving], t2[moving])
