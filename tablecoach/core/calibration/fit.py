@@ -123,7 +123,8 @@ def _result(
         )
         for j, n in enumerate(TABLE_PARAMS)
     )
-    base, fitted = prob.outcomes(np.zeros(prob.n_p))[0], prob.outcomes(u)[0]
+    base = prob.prior_outcomes or prob.outcomes(np.zeros(prob.n_p))[0]
+    fitted = sol.outcomes
     r0 = lk.landing_residuals(ev, base)
     r1 = lk.landing_residuals(ev, fitted)
     d1 = prob.residuals(fitted, u)[: 2 * len(ev)].reshape(-1, 2)

@@ -81,6 +81,8 @@ class Problem:
         self.n_p = len(self.centre)
         self.noise = lk.DEFAULT_NOISE
         self.anchor = np.full(len(ev), np.nan)
+        self.prior_outcomes: Outcomes | None = None
+        """The model's outcomes at the priors (u = 0), once run."""
         self.evaluations = 0
 
     def theta(self, u: np.ndarray) -> np.ndarray:
@@ -107,41 +109,105 @@ class Problem:
         return self.runner.run(self.table_at(u), np.array(sets))
 
     def residuals(self, out: Outcomes, u: np.ndarray) -> np.ndarray:
-        """The evidence's residuals with the priors appended."""
+        """The evidence's residuals with the priors appended (u of shape (k, p) with outcomes
+        of shape (k, n): one row of residuals per set)."""
         r = lk.residuals(self.ev, out, self.noise, self.table.diamond, self.anchor)
-        return np.concatenate((r, u))
+        return np.concatenate((r, u), axis=-1)
 
     def cost(self, out: Outcomes, u: np.ndarray) -> float:
         """The MAP objective: half the robust loss of the data plus half the priors' squares."""
         f = self.residuals(out, u)
         return 0.5 * float(np.sum(lk.robust_loss(f.size - self.n_p)(f * f)[0]))
 
-    def linearise(self, u: np.ndarray, free: np.ndarray, base: Outcomes, up: Outcomes) -> Linear:
-        """Outcomes near u, linear in u: forward differences of STEP prior sd (``up`` is the run
-        with every speed a step up, which moves each shot by its own stroke's speed only), one
-        run for each free table parameter."""
+    def linearise(
+        self,
+        u: np.ndarray,
+        free: np.ndarray,
+        base: Outcomes,
+        up: Outcomes,
+        prev: Linear | None = None,
+    ) -> Linear:
+        """Outcomes near u, linear in u. The speed slopes are forward differences of STEP
+        prior sd (``up`` is the run with every speed a step up, which moves each shot by its
+        own stroke's speed only). The table slopes are forward differences too, one parameter
+        set each (Runner.run_sets), or, given ``prev`` (the linearisation of the step before),
+        its slopes updated by Broyden's rank-one rule to agree with the change the model made
+        from there to here (no model runs)."""
         n = len(self.ev)
         g = {k: np.zeros((n, self.n_p)) for k in ("landing", "reach", "miss")}
         cols = N_T + self.ev.stroke
         rows = np.arange(n)
         for k, d in _diffs(base, up).items():
             g[k][rows, cols] = d / STEP
-        for j in range(N_T):
-            if not free[j]:
-                continue
-            h = STEP if u[j] + STEP <= self.u_hi[j] else -STEP
-            uu = u.copy()
-            uu[j] += h
-            for k, d in _diffs(base, self.outcomes(uu)[0]).items():
-                g[k][:, j] = d / h
-        return Linear(u.copy(), base, g["landing"], g["reach"], g["miss"])
+        tab = np.flatnonzero(free[:N_T])
+        if prev is not None:
+            _broyden(g, prev, u, base, tab)
+        elif tab.size:
+            hs, us = [], []
+            for j in tab:
+                h = STEP if u[j] + STEP <= self.u_hi[j] else -STEP
+                uu = u.copy()
+                uu[j] += h
+                hs.append(h)
+                us.append(uu)
+            self.evaluations += 1
+            outs = self.runner.run_sets(
+                [self.table_at(uu) for uu in us], np.array([self.row_speeds(uu) for uu in us])
+            )
+            for j, h, o in zip(tab, hs, outs, strict=True):
+                for k, d in _diffs(base, o).items():
+                    g[k][:, j] = d / h
+        fresh = prev is None or tab.size == 0
+        return Linear(u.copy(), base, g["landing"], g["reach"], g["miss"], fresh)
 
+
+def _broyden(
+    g: dict[str, np.ndarray], prev: Linear, u: np.ndarray, base: Outcomes, tab: np.ndarray
+) -> None:
+    """Broyden's update of the table columns of the slopes ``g`` (speed columns already
+    measured at u): take prev's table slopes and correct them, row by row, by the part of the
+    change from prev.u to u that the new speed slopes and the old table slopes do not explain,
+    spread along the whole step (its table part kept) (C. G. Broyden, "A class of methods for
+    solving nonlinear simultaneous equations", Math. Comp. 19 (1965)). A row whose outcome
+    jumped across an edge (_diffs gives it no slope) keeps prev's table slopes."""
+    du = u - prev.u
+    dt = du[tab]
+    nt = float(du @ du)  # the whole step: a step mostly of speeds corrects the table little
+    for k, d in _step_diffs(prev.base, base, du).items():
+        gk = g[k]
+        old = getattr(prev, "g_" + k)
+        gk[:, tab] = old[:, tab]
+        if nt < 1e-12:
+            continue
+        ok = np.isfinite(d)
+        pred = gk @ du  # speed columns new, table columns old
+        r = np.where(ok, d - pred, 0.0)
+        gk[:, tab] += np.outer(r, dt) / nt
+
+
+BROYDEN_TRUST = 0.5
+"""A kept step whose true gain is at least this share of the gain the linearised model
+promised keeps its slopes by Broyden's update; a worse one measures them again."""
 
 EDGE = {"landing": 0.3, "reach": 1.0, "miss": 0.05}
 """Largest change of an outcome (diamonds; metres; metres) for one finite-difference step that
 counts as a slope. A larger one has crossed an edge (a pocket mouth, a ball stopping short, a
 landing on the next rail round): its slope there says nothing about the parameter, so it is
 taken as zero."""
+
+
+def _step_diffs(a: Outcomes, b: Outcomes, du: np.ndarray) -> dict[str, np.ndarray]:
+    """The change of each outcome over a step of du (prior sd); nan where the outcome is
+    missing at either end or changed by more than EDGE times the step's largest move (crossed
+    an edge: a pocket, a stop, the next rail)."""
+    scale = max(float(np.max(np.abs(du), initial=0.0)) / STEP, 1.0)
+    out = {}
+    for k in ("landing", "reach", "miss"):
+        d = getattr(b, k) - getattr(a, k)
+        if k == "landing":
+            d = wrap(d)
+        out[k] = np.where(np.isfinite(d) & (np.abs(d) <= EDGE[k] * scale), d, np.nan)
+    return out
 
 
 def _diffs(a: Outcomes, b: Outcomes) -> dict[str, np.ndarray]:
@@ -163,13 +229,16 @@ class Linear:
     g_landing: np.ndarray
     g_reach: np.ndarray
     g_miss: np.ndarray
+    fresh: bool = True
+    """The table slopes were measured (finite differences) rather than Broyden-updated."""
 
     def at(self, u: np.ndarray) -> Outcomes:
+        """The linearised outcomes at u (p,), or at each row of u (k, p): shape (k, n)."""
         du = u - self.u
         return Outcomes(
-            self.base.landing + self.g_landing @ du,
-            self.base.reach + self.g_reach @ du,
-            self.base.miss + self.g_miss @ du,
+            self.base.landing + du @ self.g_landing.T,
+            self.base.reach + du @ self.g_reach.T,
+            self.base.miss + du @ self.g_miss.T,
         )
 
 
@@ -194,8 +263,38 @@ def _inner(prob: Problem, lin: Linear, free: np.ndarray, radius: float) -> np.nd
         u = full(x)
         return prob.residuals(lin.at(u), u)
 
+    idx = np.flatnonzero(free)
+    n = len(prob.ev)
+    pos_g = {
+        k: getattr(lin, "g_" + k)[:, idx] for k in ("landing", "miss", "reach")
+    }  # slopes of the outcomes (n, free)
+    eye = np.eye(prob.n_p)[:, idx]
+
+    def jac(x: np.ndarray) -> np.ndarray:
+        """The residuals' Jacobian by the chain rule: each row's two residuals depend on its
+        own outcomes only (its landing or its closest approach, and its reach), so one
+        perturbed evaluation gives every row's derivatives; times the outcomes' slopes."""
+        u = full(x)
+        out = lin.at(u)
+        d_pos, d_reach, by_miss = lk.residual_slopes(
+            prob.ev, out, prob.noise, prob.table.diamond, prob.anchor
+        )
+        g_pos = np.where(by_miss[:, None], pos_g["miss"], pos_g["landing"])
+        J = np.empty((2 * n + prob.n_p, idx.size))
+        J[0 : 2 * n : 2] = d_pos[:, None] * g_pos
+        J[1 : 2 * n : 2] = d_reach[:, None] * pos_g["reach"]
+        J[2 * n :] = eye
+        return J
+
     x = np.clip(u_c[free], lo, hi)
-    kw: dict[str, Any] = {"bounds": (lo, hi), "x_scale": 1.0, "xtol": 1e-4, "ftol": 1e-6}
+    kw: dict[str, Any] = {
+        "bounds": (lo, hi),
+        "x_scale": 1.0,
+        "xtol": 1e-4,
+        "ftol": 1e-6,
+        "jac": jac,
+        "tr_solver": "lsmr",
+    }
     x = least_squares(fun, x, loss="linear", **kw).x
     x = least_squares(fun, x, loss=lk.robust_loss(nd), **kw).x
     return full(x)
@@ -227,6 +326,8 @@ class Solution:
     cov: np.ndarray
     free: np.ndarray
     iterations: int
+    outcomes: Outcomes
+    """The model's outcomes at u."""
 
 
 def _descend(
@@ -236,21 +337,33 @@ def _descend(
     progress: Progress | None,
     max_steps: int,
     radius: float = 1.5,
-) -> tuple[np.ndarray, Linear, int]:
+    start: tuple[Linear, Outcomes] | None = None,
+) -> tuple[np.ndarray, Linear, Outcomes, int]:
     """Trust-region steps: linearise the model's outcomes at u, let least_squares find the
     optimum of the linearised problem within ``radius`` prior sd, run the model there, keep the
-    step if the true objective fell (and widen the region), else shrink the region. Ends when a
-    step moves less than 0.01 prior sd or gains less than 1e-4 of the objective."""
-    base, up = prob.outcomes(u, (0.0, STEP))
+    step if the true objective fell (and widen the region), else shrink the region. After a
+    kept step the table slopes are Broyden-updated rather than measured again; a step refused
+    on such slopes measures them before the region shrinks. Ends when a step moves less than
+    0.01 prior sd or gains less than 1e-4 of the objective. ``start`` is a linearisation at u
+    and its speed-step run (from an earlier descent at the same u: the model's outcomes do not
+    depend on the noise scale). Returns u, the linearisation there and its speed-step run."""
+    if start is not None and np.array_equal(start[0].u, u):
+        lin, up = start
+        base = lin.base
+    else:
+        base, up = prob.outcomes(u, (0.0, STEP))
+        lin = prob.linearise(u, free, base, up)
     cost = prob.cost(base, u)
-    lin = prob.linearise(u, free, base, up)
     steps = 0
     while steps < max_steps:
         steps += 1
         cand = _inner(prob, lin, free, radius)
         move = float(np.max(np.abs(cand - u))) if cand.size else 0.0
         if move < 0.01:
-            break
+            if lin.fresh:
+                break
+            lin = prob.linearise(u, free, base, up)
+            continue
         b2, up2 = prob.outcomes(cand, (0.0, STEP))
         c2 = prob.cost(b2, cand)
         if progress is not None:
@@ -260,16 +373,23 @@ def _descend(
             )
         if c2 < cost:
             gain = cost - c2
+            promised = cost - prob.cost(lin.at(cand), cand)
+            good = gain >= BROYDEN_TRUST * promised
+            lin = prob.linearise(cand, free, b2, up2, prev=lin if good else None)
             u, base, up, cost = cand, b2, up2, c2
             radius = min(max(radius, 2.0 * move), 4.0)
-            lin = prob.linearise(u, free, base, up)
             if gain < 1e-4 * max(cost, 1.0):
-                break
+                if lin.fresh:
+                    break
+                lin = prob.linearise(u, free, base, up)
+        elif not lin.fresh:
+            lin = prob.linearise(u, free, base, up)
+            radius = 0.5 * move
         else:
             radius = 0.25 * move
             if radius < 0.01:
                 break
-    return u, lin, steps
+    return u, lin, up, steps
 
 
 def _covariance(prob: Problem, lin: Linear, free: np.ndarray) -> np.ndarray:
@@ -295,14 +415,15 @@ def _covariance(prob: Problem, lin: Linear, free: np.ndarray) -> np.ndarray:
 def solve(prob: Problem, progress: Progress | None = None, max_steps: int = 8) -> Solution:
     """Start, descend, re-measure the landing noise at the optimum and descend again from there
     if it changed; then put any table parameter that ran to its bound back at its prior (the
-    report says so) and refit the rest."""
+    report says so) and refit the rest. The spreads come from slopes measured at the end."""
     free = np.ones(prob.n_p, dtype=bool)
     out0 = prob.outcomes(np.zeros(prob.n_p))[0]
+    prob.prior_outcomes = out0
     prob.anchor = out0.landing.copy()
     measured = lk.landing_noise(prob.ev, out0)
     prob.noise = max(measured, COARSE_NOISE)
     u = _start(prob, free)
-    u, lin, total = _descend(prob, u, free, progress, max_steps)
+    u, lin, up, total = _descend(prob, u, free, progress, max_steps)
     for _round in range(3):
         measured = lk.landing_noise(prob.ev, lin.base)
         if _round and abs(measured / prob.noise - 1.0) <= 0.15:
@@ -310,7 +431,7 @@ def solve(prob: Problem, progress: Progress | None = None, max_steps: int = 8) -
         prob.noise = measured
         if progress is not None:
             progress(f"fitting: landing noise {measured:.2f} diamond, robust loss")
-        u, lin, n = _descend(prob, u, free, progress, max_steps)
+        u, lin, up, n = _descend(prob, u, free, progress, max_steps, start=(lin, up))
         total += n
     tol = 1e-3
     at_bound = free & ((u <= prob.u_lo + tol) | (u >= prob.u_hi - tol))
@@ -320,6 +441,8 @@ def solve(prob: Problem, progress: Progress | None = None, max_steps: int = 8) -
         u = np.where(at_bound, 0.0, u)
         if progress is not None:
             progress("fitting: a parameter ran to the end of its range; keeping its prior")
-        u, lin, n = _descend(prob, u, free, progress, max_steps)
+        u, lin, up, n = _descend(prob, u, free, progress, max_steps)
         total += n
-    return Solution(u, _covariance(prob, lin, free), free, total)
+    if not lin.fresh:
+        lin = prob.linearise(u, free, lin.base, up)
+    return Solution(u, _covariance(prob, lin, free), free, total, lin.base)
