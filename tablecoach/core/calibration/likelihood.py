@@ -121,16 +121,24 @@ def residuals(
     win = np.where(kind == JAW, ev.mouth, ev.window)
     is_w = (kind == HIT) | (kind == JAW)
     has_m = np.isfinite(out.miss)
-    cw = censored_window(np.where(has_m, out.miss, 0.0), win, sd_m)
+    cols = np.flatnonzero(is_w)  # the censored terms cost: only the rows that have them
+    cw = np.zeros_like(pos)
+    m_w = out.miss[..., cols]
+    cw[..., cols] = censored_window(np.where(np.isfinite(m_w), m_w, 0.0), win[cols], sd_m)
     pos = np.where(is_w & has_m, cw, pos)
     ar = wrap(anchor - out.landing) / noise
     pos = np.where(is_w & ~has_m & np.isfinite(ar), ar, pos)
     # how far the ball gets
     rr = np.where(np.isfinite(out.reach), out.reach, 0.0)
-    up = censored_above(rr, REACH_SD)
-    down = censored_above(-rr, REACH_SD)
+    is_s = kind == SHORT
+    up_c = np.flatnonzero(~is_s)
+    dn_c = np.flatnonzero(is_s)
+    up = np.zeros_like(pos)
+    down = np.zeros_like(pos)
+    up[..., up_c] = censored_above(rr[..., up_c], REACH_SD)
+    down[..., dn_c] = censored_above(-rr[..., dn_c], REACH_SD)
     reach = np.where(is_l | (is_w & ~has_m), up, reach)
-    reach = np.where(kind == SHORT, down, reach)
+    reach = np.where(is_s, down, reach)
     pos = np.where(dead & (kind != SHORT), NO_OUTCOME, pos)
     reach = np.where(dead, NO_OUTCOME, reach)
     both = np.stack((pos, reach), axis=-1)

@@ -15,6 +15,7 @@ imported here only, when a fit runs.
 
 from __future__ import annotations
 
+import copy
 import math
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
@@ -25,7 +26,7 @@ import numpy as np
 from .. import shots
 from ..table import TableSpec
 from . import likelihood as lk
-from .evidence import Evidence
+from .evidence import Evidence, sample_rows, subset
 from .model import Outcomes, Runner, wrap
 from .params import (
     LOG_SPEED_LIMIT,
@@ -48,6 +49,14 @@ which makes the objective rough at a small noise scale; the fit goes down the sm
 first, then at the measured noise (continuation)."""
 CORRELATED = 0.9
 """Posterior correlation beyond which two parameters are reported as not told apart."""
+SAMPLE_ROWS = 1200
+"""Rows the descents use at most (solve): beyond this the fit runs on a sample of the rows,
+then polishes on all of them. Four table parameters and a speed a named stroke are pinned
+long before 1,200 shots; the model's runs and the inner solves grow with the rows."""
+SAMPLE_SEED = 12
+"""The sample is drawn the same way every time (a fit is repeatable)."""
+POLISH_STEPS = 2
+"""Steps on every row after a fit on a sample."""
 N_T = len(TABLE_PARAMS)
 """The table parameters come first in u; the strokes follow."""
 
@@ -84,6 +93,15 @@ class Problem:
         self.prior_outcomes: Outcomes | None = None
         """The model's outcomes at the priors (u = 0), once run."""
         self.evaluations = 0
+
+    def on_rows(self, rows: np.ndarray) -> Problem:
+        """The same problem (priors, bounds, strokes) over some of the evidence's rows."""
+        sub = copy.copy(self)
+        sub.ev = subset(self.ev, rows)
+        sub.runner = Runner(self.table, sub.ev)
+        sub.anchor = self.anchor[rows]
+        sub.prior_outcomes = None
+        return sub
 
     def theta(self, u: np.ndarray) -> np.ndarray:
         return np.asarray(self.centre + self.sd * u, dtype=float)
@@ -412,7 +430,38 @@ def _covariance(prob: Problem, lin: Linear, free: np.ndarray) -> np.ndarray:
     return cov
 
 
-def solve(prob: Problem, progress: Progress | None = None, max_steps: int = 8) -> Solution:
+def solve(
+    prob: Problem,
+    progress: Progress | None = None,
+    max_steps: int = 8,
+    sample: int | None = None,
+) -> Solution:
+    """The MAP fit. With more rows than ``sample`` (default SAMPLE_ROWS) the descents run on
+    a sample of them (evidence.sample_rows: every family, player and stroke kept, in
+    proportion), then at most POLISH_STEPS steps on every row from there; the spreads, and
+    the outcomes the report uses, are always those of every row."""
+    most = SAMPLE_ROWS if sample is None else sample
+    if len(prob.ev) <= most:
+        return _solve_rows(prob, progress, max_steps)
+    rows = sample_rows(prob.ev, most, np.random.default_rng(SAMPLE_SEED))
+    sub = prob.on_rows(rows)
+    if progress is not None:
+        progress(f"fitting a sample of {rows.size} of {len(prob.ev)} attempts")
+    first = _solve_rows(sub, progress, max_steps)
+    prob.noise = sub.noise
+    out0 = prob.outcomes(np.zeros(prob.n_p))[0]
+    prob.prior_outcomes = out0
+    prob.anchor = out0.landing.copy()
+    if progress is not None:
+        progress(f"fitting: every one of the {len(prob.ev)} attempts from there")
+    u, lin, up, n = _descend(prob, first.u, first.free, progress, POLISH_STEPS)
+    if not lin.fresh:
+        lin = prob.linearise(u, first.free, lin.base, up)
+    cov = _covariance(prob, lin, first.free)
+    return Solution(u, cov, first.free, first.iterations + n, lin.base)
+
+
+def _solve_rows(prob: Problem, progress: Progress | None, max_steps: int) -> Solution:
     """Start, descend, re-measure the landing noise at the optimum and descend again from there
     if it changed; then put any table parameter that ran to its bound back at its prior (the
     report says so) and refit the rest. The spreads come from slopes measured at the end."""
