@@ -406,10 +406,10 @@ def part_own(seed: int) -> None:
         print(f"   {name:>20} {res[0]:10.3f} {res[1]:12.3f} {res[2]:7.3f}")
 
 
-def part_time(seed: int) -> None:
-    print("\n3. fit time (the lively invented table, one-, two- and three-rail kicks)")
+def part_time(seed: int, tab: OtherTable) -> None:
+    print(f"\n3. fit time (the {tab.name} table, one-, two- and three-rail kicks)")
     rng = np.random.default_rng(seed + 1)
-    pool = practise(LIVELY, rng, 3334)
+    pool = practise(tab, rng, 3334)
     for n, reps in ((1000, 3), (10000, 1)):
         walls, cpus, steps = [], [], []
         for r in range(reps):
@@ -437,7 +437,9 @@ def main() -> None:
     if not args.skip_own:
         part_own(args.seed)
     if not args.skip_time:
-        part_time(args.seed)
+        part_time(args.seed, LIVELY)
+        if args.earlier:
+            part_time(args.seed, OLD_LIVELY)
 
 
 if __name__ == "__main__":

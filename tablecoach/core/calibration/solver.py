@@ -27,7 +27,8 @@ from .. import shots
 from ..table import TableSpec
 from . import likelihood as lk
 from .evidence import Evidence, sample_rows, subset
-from .model import Outcomes, Runner, wrap
+from .linear import STEP, Linear, broyden_update, slopes_of
+from .model import Outcomes, Runner
 from .params import (
     LOG_SPEED_LIMIT,
     PARAM_BOUNDS,
@@ -40,8 +41,6 @@ from .params import (
 
 Progress = Callable[[str], None]
 
-STEP = 0.05
-"""Finite-difference step, in prior sd."""
 COARSE_NOISE = 0.3
 """The landing noise (diamonds) the first descent assumes at least: the model's landings of
 multi-rail shots jump by a few tenths of a diamond where a path meets a rail near a corner,
@@ -51,12 +50,11 @@ CORRELATED = 0.9
 """Posterior correlation beyond which two parameters are reported as not told apart."""
 SAMPLE_ROWS = 1200
 """Rows the descents use at most (solve): beyond this the fit runs on a sample of the rows,
-then polishes on all of them. Four table parameters and a speed a named stroke are pinned
-long before 1,200 shots; the model's runs and the inner solves grow with the rows."""
+then runs the fitted model on all of them. Four table parameters and a speed a named stroke
+are pinned long before 1,200 shots; the model's runs and the inner solves grow with the
+rows."""
 SAMPLE_SEED = 12
 """The sample is drawn the same way every time (a fit is repeatable)."""
-POLISH_STEPS = 2
-"""Steps on every row after a fit on a sample."""
 N_T = len(TABLE_PARAMS)
 """The table parameters come first in u; the strokes follow."""
 
@@ -93,6 +91,19 @@ class Problem:
         self.prior_outcomes: Outcomes | None = None
         """The model's outcomes at the priors (u = 0), once run."""
         self.evaluations = 0
+
+    def warm_start(self, params: dict[str, float], speeds: dict[str, float]) -> np.ndarray:
+        """u of an earlier fit's values (table parameters by name; m/s by (player, named
+        stroke) as ``player|stroke``); a value not given starts at its prior."""
+        th = self.centre.copy()
+        for j, name in enumerate(TABLE_PARAMS):
+            if name in params:
+                th[j] = params[name]
+        for k, (player, preset) in enumerate(self.ev.strokes):
+            v = speeds.get(f"{player}|{preset}")
+            if v is not None and v > 0.0:
+                th[N_T + k] = math.log(v)
+        return np.asarray((th - self.centre) / self.sd, dtype=float)
 
     def on_rows(self, rows: np.ndarray) -> Problem:
         """The same problem (priors, bounds, strokes) over some of the evidence's rows."""
@@ -155,11 +166,11 @@ class Problem:
         g = {k: np.zeros((n, self.n_p)) for k in ("landing", "reach", "miss")}
         cols = N_T + self.ev.stroke
         rows = np.arange(n)
-        for k, d in _diffs(base, up).items():
+        for k, d in slopes_of(base, up).items():
             g[k][rows, cols] = d / STEP
         tab = np.flatnonzero(free[:N_T])
         if prev is not None:
-            _broyden(g, prev, u, base, tab)
+            broyden_update(g, prev, u, base, tab)
         elif tab.size:
             hs, us = [], []
             for j in tab:
@@ -173,91 +184,20 @@ class Problem:
                 [self.table_at(uu) for uu in us], np.array([self.row_speeds(uu) for uu in us])
             )
             for j, h, o in zip(tab, hs, outs, strict=True):
-                for k, d in _diffs(base, o).items():
+                for k, d in slopes_of(base, o).items():
                     g[k][:, j] = d / h
         fresh = prev is None or tab.size == 0
         return Linear(u.copy(), base, g["landing"], g["reach"], g["miss"], fresh)
 
 
-def _broyden(
-    g: dict[str, np.ndarray], prev: Linear, u: np.ndarray, base: Outcomes, tab: np.ndarray
-) -> None:
-    """Broyden's update of the table columns of the slopes ``g`` (speed columns already
-    measured at u): take prev's table slopes and correct them, row by row, by the part of the
-    change from prev.u to u that the new speed slopes and the old table slopes do not explain,
-    spread along the whole step (its table part kept) (C. G. Broyden, "A class of methods for
-    solving nonlinear simultaneous equations", Math. Comp. 19 (1965)). A row whose outcome
-    jumped across an edge (_diffs gives it no slope) keeps prev's table slopes."""
-    du = u - prev.u
-    dt = du[tab]
-    nt = float(du @ du)  # the whole step: a step mostly of speeds corrects the table little
-    for k, d in _step_diffs(prev.base, base, du).items():
-        gk = g[k]
-        old = getattr(prev, "g_" + k)
-        gk[:, tab] = old[:, tab]
-        if nt < 1e-12:
-            continue
-        ok = np.isfinite(d)
-        pred = gk @ du  # speed columns new, table columns old
-        r = np.where(ok, d - pred, 0.0)
-        gk[:, tab] += np.outer(r, dt) / nt
-
+GAIN_ENOUGH = 0.1
+"""A kept step that lowers the objective (minus the log-posterior) by less than this ends the
+descent: a tenth of a unit of log-likelihood is far below what the data can tell apart (a
+parameter's one-sd interval spans half a unit)."""
 
 BROYDEN_TRUST = 0.5
 """A kept step whose true gain is at least this share of the gain the linearised model
 promised keeps its slopes by Broyden's update; a worse one measures them again."""
-
-EDGE = {"landing": 0.3, "reach": 1.0, "miss": 0.05}
-"""Largest change of an outcome (diamonds; metres; metres) for one finite-difference step that
-counts as a slope. A larger one has crossed an edge (a pocket mouth, a ball stopping short, a
-landing on the next rail round): its slope there says nothing about the parameter, so it is
-taken as zero."""
-
-
-def _step_diffs(a: Outcomes, b: Outcomes, du: np.ndarray) -> dict[str, np.ndarray]:
-    """The change of each outcome over a step of du (prior sd); nan where the outcome is
-    missing at either end or changed by more than EDGE times the step's largest move (crossed
-    an edge: a pocket, a stop, the next rail)."""
-    scale = max(float(np.max(np.abs(du), initial=0.0)) / STEP, 1.0)
-    out = {}
-    for k in ("landing", "reach", "miss"):
-        d = getattr(b, k) - getattr(a, k)
-        if k == "landing":
-            d = wrap(d)
-        out[k] = np.where(np.isfinite(d) & (np.abs(d) <= EDGE[k] * scale), d, np.nan)
-    return out
-
-
-def _diffs(a: Outcomes, b: Outcomes) -> dict[str, np.ndarray]:
-    out = {}
-    for k in ("landing", "reach", "miss"):
-        d = getattr(b, k) - getattr(a, k)
-        if k == "landing":
-            d = wrap(d)
-        out[k] = np.where(np.isfinite(d) & (np.abs(d) <= EDGE[k]), d, 0.0)
-    return out
-
-
-@dataclass(frozen=True, slots=True)
-class Linear:
-    """The model's outcomes near ``u``: ``base`` there and their slopes (n, parameters)."""
-
-    u: np.ndarray
-    base: Outcomes
-    g_landing: np.ndarray
-    g_reach: np.ndarray
-    g_miss: np.ndarray
-    fresh: bool = True
-    """The table slopes were measured (finite differences) rather than Broyden-updated."""
-
-    def at(self, u: np.ndarray) -> Outcomes:
-        """The linearised outcomes at u (p,), or at each row of u (k, p): shape (k, n)."""
-        du = u - self.u
-        return Outcomes(
-            self.base.landing + du @ self.g_landing.T,
-            self.base.reach + du @ self.g_reach.T,
-            self.base.miss + du @ self.g_miss.T,
-        )
 
 
 def _inner(prob: Problem, lin: Linear, free: np.ndarray, radius: float) -> np.ndarray:
@@ -362,9 +302,10 @@ def _descend(
     step if the true objective fell (and widen the region), else shrink the region. After a
     kept step the table slopes are Broyden-updated rather than measured again; a step refused
     on such slopes measures them before the region shrinks. Ends when a step moves less than
-    0.01 prior sd or gains less than 1e-4 of the objective. ``start`` is a linearisation at u
-    and its speed-step run (from an earlier descent at the same u: the model's outcomes do not
-    depend on the noise scale). Returns u, the linearisation there and its speed-step run."""
+    0.01 prior sd or gains less than GAIN_ENOUGH (or 1e-4 of the objective). ``start`` is a
+    linearisation at u and its speed-step run (from an earlier descent at the same u: the
+    model's outcomes do not depend on the noise scale). Returns u, the linearisation there
+    and its speed-step run."""
     if start is not None and np.array_equal(start[0].u, u):
         lin, up = start
         base = lin.base
@@ -396,7 +337,7 @@ def _descend(
             lin = prob.linearise(cand, free, b2, up2, prev=lin if good else None)
             u, base, up, cost = cand, b2, up2, c2
             radius = min(max(radius, 2.0 * move), 4.0)
-            if gain < 1e-4 * max(cost, 1.0):
+            if gain < max(1e-4 * cost, GAIN_ENOUGH):
                 if lin.fresh:
                     break
                 lin = prob.linearise(u, free, base, up)
@@ -410,10 +351,11 @@ def _descend(
     return u, lin, up, steps
 
 
-def _covariance(prob: Problem, lin: Linear, free: np.ndarray) -> np.ndarray:
-    """Laplace approximation at the optimum: the inverse of J^T W J + I, J the slopes of the
-    data residuals (through the linearised outcomes), W their Cauchy weights, I the priors;
-    fixed parameters keep their prior sd (1)."""
+def _covariance(prob: Problem, lin: Linear, free: np.ndarray, scale: float = 1.0) -> np.ndarray:
+    """Laplace approximation at the optimum: the inverse of scale J^T W J + I, J the slopes of
+    the data residuals (through the linearised outcomes), W their Cauchy weights, I the priors;
+    fixed parameters keep their prior sd (1). ``scale`` > 1 when the rows are a sample of
+    scale times as many."""
     u = lin.u
     nd = 2 * len(prob.ev)
     f0 = prob.residuals(lin.at(u), u)[:nd]
@@ -424,7 +366,7 @@ def _covariance(prob: Problem, lin: Linear, free: np.ndarray) -> np.ndarray:
         uu[j] += 1e-3
         J[:, c] = (prob.residuals(lin.at(uu), uu)[:nd] - f0) / 1e-3
     w = lk.cauchy_weights(f0)
-    H = (J * w[:, None]).T @ J + np.eye(idx.size)
+    H = scale * ((J * w[:, None]).T @ J) + np.eye(idx.size)
     cov = np.eye(prob.n_p)
     cov[np.ix_(idx, idx)] = np.linalg.inv(H)
     return cov
@@ -435,63 +377,97 @@ def solve(
     progress: Progress | None = None,
     max_steps: int = 8,
     sample: int | None = None,
+    warm: tuple[np.ndarray, float] | None = None,
 ) -> Solution:
-    """The MAP fit. With more rows than ``sample`` (default SAMPLE_ROWS) the descents run on
-    a sample of them (evidence.sample_rows: every family, player and stroke kept, in
-    proportion), then at most POLISH_STEPS steps on every row from there; the spreads, and
-    the outcomes the report uses, are always those of every row."""
+    """The MAP fit. With more rows than ``sample`` (default SAMPLE_ROWS) it runs on a sample
+    of them (evidence.sample_rows: every family, player, stroke and kind kept, in
+    proportion); the outcomes the report uses are then run on every row, and the spreads are
+    the sample's with its information scaled up to every row (rows / sample: the rows are
+    drawn alike, so each adds about as much). ``warm`` (u, landing noise) starts from an
+    earlier fit of the same table (Problem.warm_start) instead of the grid of starts and the
+    coarse first descent."""
     most = SAMPLE_ROWS if sample is None else sample
     if len(prob.ev) <= most:
-        return _solve_rows(prob, progress, max_steps)
+        return _solve_rows(prob, progress, max_steps, warm)
     rows = sample_rows(prob.ev, most, np.random.default_rng(SAMPLE_SEED))
     sub = prob.on_rows(rows)
     if progress is not None:
         progress(f"fitting a sample of {rows.size} of {len(prob.ev)} attempts")
-    first = _solve_rows(sub, progress, max_steps)
+    first = _solve_rows(sub, progress, max_steps, warm, scale=len(prob.ev) / rows.size)
     prob.noise = sub.noise
-    out0 = prob.outcomes(np.zeros(prob.n_p))[0]
+    if progress is not None:
+        progress(f"fitting: the fitted model on every one of the {len(prob.ev)} attempts")
+    out0, fitted = prob.runner.run_sets(
+        [prob.table_at(np.zeros(prob.n_p)), prob.table_at(first.u)],
+        np.array([prob.row_speeds(np.zeros(prob.n_p)), prob.row_speeds(first.u)]),
+    )
     prob.prior_outcomes = out0
     prob.anchor = out0.landing.copy()
-    if progress is not None:
-        progress(f"fitting: every one of the {len(prob.ev)} attempts from there")
-    u, lin, up, n = _descend(prob, first.u, first.free, progress, POLISH_STEPS)
-    if not lin.fresh:
-        lin = prob.linearise(u, first.free, lin.base, up)
-    cov = _covariance(prob, lin, first.free)
-    return Solution(u, cov, first.free, first.iterations + n, lin.base)
+    return Solution(first.u, first.cov, first.free, first.iterations, fitted)
 
 
-def _solve_rows(prob: Problem, progress: Progress | None, max_steps: int) -> Solution:
-    """Start, descend, re-measure the landing noise at the optimum and descend again from there
-    if it changed; then put any table parameter that ran to its bound back at its prior (the
-    report says so) and refit the rest. The spreads come from slopes measured at the end."""
+def _solve_rows(
+    prob: Problem,
+    progress: Progress | None,
+    max_steps: int,
+    warm: tuple[np.ndarray, float] | None = None,
+    scale: float = 1.0,
+) -> Solution:
+    """Start (the grid, or ``warm``), descend, re-measure the landing noise at the optimum and
+    descend again from there if it changed; then put any table parameter that ran to its
+    bound back at its prior (the report says so) and refit the rest. The spreads come from
+    slopes measured at the end."""
     free = np.ones(prob.n_p, dtype=bool)
     out0 = prob.outcomes(np.zeros(prob.n_p))[0]
     prob.prior_outcomes = out0
     prob.anchor = out0.landing.copy()
-    measured = lk.landing_noise(prob.ev, out0)
-    prob.noise = max(measured, COARSE_NOISE)
-    u = _start(prob, free)
+    if warm is None:
+        prob.noise = max(lk.landing_noise(prob.ev, out0), COARSE_NOISE)
+        u = _start(prob, free)
+    else:
+        u = np.clip(warm[0], prob.u_lo, prob.u_hi)
+        prob.noise = warm[1]
     u, lin, up, total = _descend(prob, u, free, progress, max_steps)
     for _round in range(3):
         measured = lk.landing_noise(prob.ev, lin.base)
-        if _round and abs(measured / prob.noise - 1.0) <= 0.15:
+        if (_round or warm is not None) and abs(measured / prob.noise - 1.0) <= 0.15:
             break
         prob.noise = measured
         if progress is not None:
             progress(f"fitting: landing noise {measured:.2f} diamond, robust loss")
         u, lin, up, n = _descend(prob, u, free, progress, max_steps, start=(lin, up))
         total += n
+    u, free, lin, up, n = _pin_bounds(prob, u, free, lin, up, progress, max_steps)
+    total += n
+    if not lin.fresh:
+        lin = prob.linearise(u, free, lin.base, up)
+    return Solution(u, _covariance(prob, lin, free, scale), free, total, lin.base)
+
+
+def _pin_bounds(
+    prob: Problem,
+    u: np.ndarray,
+    free: np.ndarray,
+    lin: Linear,
+    up: Outcomes,
+    progress: Progress | None,
+    max_steps: int,
+) -> tuple[np.ndarray, np.ndarray, Linear, Outcomes, int]:
+    """Any parameter at the end of its range (a table parameter at a bound of its published
+    range, a stroke at half or twice the book's pace) goes back to its prior and stays there
+    (the report says so); the rest are refitted from there. A stroke pushed that far says
+    more about the shots, or about what the model cannot do on this table, than about the
+    player."""
     tol = 1e-3
-    at_bound = free & ((u <= prob.u_lo + tol) | (u >= prob.u_hi - tol))
-    at_bound[N_T:] = False
-    if at_bound.any():
+    total = 0
+    for _round in range(3):
+        at_bound = free & ((u <= prob.u_lo + tol) | (u >= prob.u_hi - tol))
+        if not at_bound.any():
+            break
         free = free & ~at_bound
         u = np.where(at_bound, 0.0, u)
         if progress is not None:
             progress("fitting: a parameter ran to the end of its range; keeping its prior")
         u, lin, up, n = _descend(prob, u, free, progress, max_steps)
         total += n
-    if not lin.fresh:
-        lin = prob.linearise(u, free, lin.base, up)
-    return Solution(u, _covariance(prob, lin, free), free, total, lin.base)
+    return u, free, lin, up, total
