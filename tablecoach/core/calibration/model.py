@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, fields, replace
 from typing import Any
 
 import numpy as np
@@ -70,9 +70,27 @@ class Runner:
         key = (g, copies)
         b = self._batches.get(key)
         if b is None:
-            rows = self.ev.groups[g]
-            setups = [self.ev.setups[i] for i in rows] * copies
-            b = self._batches[key] = self._pa.shot_batch(self.table, setups, balls=False)
+            if copies == 1:
+                rows = self.ev.groups[g]
+                setups = [self.ev.setups[i] for i in rows]
+                b = self._pa.shot_batch(self.table, setups, balls=False)
+            else:  # the one batch's arrays repeated, rather than built again copies times
+                one = self._batch(g, 1)
+                b = replace(
+                    one,
+                    **{
+                        f.name: (
+                            np.tile(v, (copies,) + (1,) * (v.ndim - 1))
+                            if isinstance(v, np.ndarray)
+                            else v * copies
+                            if isinstance(v, tuple)
+                            else v
+                        )
+                        for f in fields(one)
+                        for v in (getattr(one, f.name),)
+                    },
+                )
+            self._batches[key] = b
         return b
 
     def run(self, table: TableSpec, speeds: np.ndarray) -> list[Outcomes]:
