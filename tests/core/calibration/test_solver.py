@@ -113,7 +113,8 @@ def test_broyden_update_meets_the_secant_condition() -> None:
 
 def test_run_sets_gives_each_table_its_own_landings(few) -> None:  # type: ignore[no-untyped-def]
     # Several parameter sets in one call: each set lands every row where the model, one shot
-    # at a time (model_landing), lands it on that set's table.
+    # at a time (model_landing), lands it on that set's table. A consistency check against
+    # the project's own one-shot path (no outside source; invented test data).
     ev = gather(T9, few)
     other = with_params(T9, TRUE)
     run = Runner(T9, ev)
