@@ -5,13 +5,14 @@ from __future__ import annotations
 import argparse
 import json
 import sys
-import time
 from typing import Any
 
 from .options import add_common
+from .progress import status
 
 PROGRESS_AFTER = 1.0
-"""Seconds after which a running fit reports what it is doing (on stderr)."""
+"""Seconds after which a running fit shows what it is doing (a spinner on stderr, at a
+terminal only)."""
 
 
 def register(sub: Any) -> None:
@@ -40,20 +41,6 @@ def register(sub: Any) -> None:
     p.set_defaults(func=run)
 
 
-def _progress() -> Any:
-    """Progress lines for a long fit, only when stderr is a terminal (a script or a pipe
-    reading stderr gets one line per problem and nothing else)."""
-    if not sys.stderr.isatty():
-        return None
-    t0 = time.perf_counter()
-
-    def say(text: str) -> None:
-        if time.perf_counter() - t0 >= PROGRESS_AFTER:
-            print(f"  ... {text}", file=sys.stderr, flush=True)
-
-    return say
-
-
 def run(args: argparse.Namespace) -> int:
     from ..core.calibration.params import CalibrationError
     from ..core.calibration.report import head, sentences, stroke_sentences, table_sentences
@@ -66,9 +53,9 @@ def run(args: argparse.Namespace) -> int:
         raise CalibrationError(
             f"no practice database at {path} yet: log some attempts on the table first"
         )
-    with Store.open(path) as store:
+    with Store.open(path) as store, status(PROGRESS_AFTER) as say:
         cals = calibrate_from_store(
-            store, args.table, args.player, save=not args.no_save, progress=_progress()
+            store, args.table, args.player, save=not args.no_save, progress=say
         )
         table = store.get_table(args.table)
     saved = not args.no_save

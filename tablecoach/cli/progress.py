@@ -1,10 +1,13 @@
-"""A progress bar for long commands: Rich, on stderr, only when stderr is a terminal."""
+"""Progress for long commands: Rich, on stderr, only when stderr is a terminal (a bar for a
+counted job, a spinner with the latest message for a calibration fit)."""
 
 from __future__ import annotations
 
 import sys
-from collections.abc import Iterable, Iterator
-from typing import TypeVar
+import time
+from collections.abc import Callable, Iterable, Iterator
+from contextlib import contextmanager
+from typing import Any, TypeVar
 
 T = TypeVar("T")
 
@@ -30,3 +33,33 @@ def tracked(items: Iterable[T], total: int | None, what: str) -> Iterator[T]:
             if done % 1000 == 0:
                 bar.update(task, completed=done)
         bar.update(task, completed=done)
+
+
+@contextmanager
+def status(after: float = 1.0) -> Iterator[Callable[[str], None] | None]:
+    """A progress callback for a job without a count (a calibration fit): with a terminal on
+    stderr, a Rich spinner on stderr showing the latest message once the job has run
+    ``after`` seconds, cleared at the end; elsewhere None (pipes and files see nothing)."""
+    if not sys.stderr.isatty():
+        yield None
+        return
+    from rich.console import Console
+
+    console = Console(stderr=True)
+    t0 = time.perf_counter()
+    shown: list[Any] = []
+
+    def say(text: str) -> None:
+        if time.perf_counter() - t0 < after:
+            return
+        if not shown:
+            shown.append(console.status(text))
+            shown[0].start()
+        else:
+            shown[0].update(text)
+
+    try:
+        yield say
+    finally:
+        if shown:
+            shown[0].stop()

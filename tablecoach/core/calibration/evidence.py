@@ -179,3 +179,50 @@ def gather(table: TableSpec, attempts: Sequence[Any]) -> Evidence:
 
 def _stroke_order(key: tuple[str, str]) -> tuple[str, int]:
     return key[0], list(shots.SPEED_PRESETS).index(key[1])
+
+
+def subset(ev: Evidence, rows: np.ndarray) -> Evidence:
+    """The evidence of some of its rows (``rows`` sorted, indices into ``ev``): the same
+    strokes (so stroke indices keep their meaning), the families regrouped."""
+    rows = np.asarray(rows, dtype=np.int64)
+    keep = set(rows.tolist())
+    where = {int(i): k for k, i in enumerate(rows)}
+    groups = tuple(
+        np.array([where[int(i)] for i in g if int(i) in keep], dtype=np.int64) for g in ev.groups
+    )
+    return Evidence(
+        tuple(ev.setups[int(i)] for i in rows),
+        ev.reading[rows],
+        ev.logged[rows],
+        ev.english[rows],
+        ev.follow[rows],
+        ev.stroke[rows],
+        ev.strokes,
+        ev.kind[rows],
+        ev.observed[rows],
+        tuple(ev.landings[int(i)] for i in rows),
+        ev.window[rows],
+        ev.mouth[rows],
+        tuple(ev.family[int(i)] for i in rows),
+        ev.source[rows],
+        tuple(g for g in groups if g.size),
+        ev.given,
+    )
+
+
+def sample_rows(ev: Evidence, most: int, rng: np.random.Generator) -> np.ndarray:
+    """At most about ``most`` rows, sorted, drawn without replacement within each (family,
+    stroke, kind) stratum in proportion to its size, at least one from each (so every
+    player's every named stroke and every family keeps its evidence)."""
+    n = len(ev)
+    if n <= most:
+        return np.arange(n, dtype=np.int64)
+    keys: dict[tuple[str, int, int], list[int]] = {}
+    for i in range(n):
+        keys.setdefault((ev.family[i], int(ev.stroke[i]), int(ev.kind[i])), []).append(i)
+    share = most / n
+    out: list[int] = []
+    for members in keys.values():
+        take = max(1, round(len(members) * share))
+        out.extend(rng.choice(members, size=min(take, len(members)), replace=False).tolist())
+    return np.array(sorted(out), dtype=np.int64)

@@ -55,13 +55,16 @@ def fit_table(
     prior_speeds: dict[str, float] | None = None,
     progress: Progress | None = None,
     max_steps: int = 8,
+    warm: Sequence[Calibration] = (),
 ) -> TableFit:
     """Fit the table's cloth and cushion from everyone's attempts and each player's strokes
     from their own (robust MAP, module docstring).
 
     ``table`` gives the geometry; ``prior_table`` (default ``table``) the cloth and cushion the
     priors are centred on; ``prior_speeds`` the m/s the stroke priors are centred on (default
-    the book's, shots.SPEED_PRESETS). ``progress`` is told what the fit is doing.
+    the book's, shots.SPEED_PRESETS). ``progress`` is told what the fit is doing. ``warm``:
+    earlier calibrations of this table (the same model version), to start from instead of the
+    grid of starts: the priors stay where they are, only the search begins nearer the answer.
     """
     t0 = time.perf_counter()
     prior_table = prior_table or table
@@ -76,8 +79,20 @@ def fit_table(
     if progress is not None:
         progress(f"fitting {len(ev)} attempts")
     prob = Problem(table, prior_table, ev, speeds0)
-    sol = solve(prob, progress, max_steps)
+    sol = solve(prob, progress, max_steps, warm=_warm(prob, warm))
     return _result(prob, sol, prior_table, speeds0, len(attempts), time.perf_counter() - t0)
+
+
+def _warm(prob: Problem, cals: Sequence[Calibration]) -> tuple[np.ndarray, float] | None:
+    """(u, landing noise) of earlier calibrations of the table, or None without any."""
+    if not cals:
+        return None
+    params = {e.name: e.value for e in cals[0].params if not e.kept}
+    speeds = {f"{c.player}|{e.name}": e.value for c in cals for e in c.speeds}
+    noise = cals[0].noise
+    if not (math.isfinite(noise) and noise > 0.0):
+        noise = lk.DEFAULT_NOISE
+    return prob.warm_start(params, speeds), max(noise, lk.NOISE_FLOOR)
 
 
 def fit(
@@ -88,6 +103,7 @@ def fit(
     prior_speeds: dict[str, float] | None = None,
     progress: Progress | None = None,
     max_steps: int = 8,
+    warm: Sequence[Calibration] = (),
 ) -> Calibration:
     """fit_table for one player's attempts: that player's Calibration."""
     return fit_table(
@@ -97,6 +113,7 @@ def fit(
         prior_speeds=prior_speeds,
         progress=progress,
         max_steps=max_steps,
+        warm=warm,
     ).only()
 
 
@@ -123,7 +140,8 @@ def _result(
         )
         for j, n in enumerate(TABLE_PARAMS)
     )
-    base, fitted = prob.outcomes(np.zeros(prob.n_p))[0], prob.outcomes(u)[0]
+    base = prob.prior_outcomes or prob.outcomes(np.zeros(prob.n_p))[0]
+    fitted = sol.outcomes
     r0 = lk.landing_residuals(ev, base)
     r1 = lk.landing_residuals(ev, fitted)
     d1 = prob.residuals(fitted, u)[: 2 * len(ev)].reshape(-1, 2)
@@ -139,7 +157,8 @@ def _result(
             v = math.exp(theta[j])
             p = ev.strokes[k][1]
             sd_v = v * float(prob.sd[j] * sd_u[j])
-            speeds.append(Estimate(p, v, sd_v, speeds0[p], v * float(prob.sd[j])))
+            kept = "" if sol.free[j] else KEPT_BOUND
+            speeds.append(Estimate(p, v, sd_v, speeds0[p], v * float(prob.sd[j]), kept))
         inl = rows & ~outlier
         cals.append(
             Calibration(

@@ -101,16 +101,16 @@ def landing_residuals(ev: Evidence, out: Outcomes) -> np.ndarray:
 def residuals(
     ev: Evidence, out: Outcomes, noise: float, diamond: float, anchor: np.ndarray
 ) -> np.ndarray:
-    """The 2n residuals (position then reach, row by row) in noise units.
+    """The 2n residuals (position then reach, row by row) in noise units. Outcomes of shape
+    (k, n) (k sets of the n rows) give residuals of shape (k, 2n).
 
     ``noise`` is the landing noise in diamonds and ``diamond`` a diamond in metres (the scatter
     at the target is taken as the landing noise there); ``anchor`` a landing (diamonds round
     the table) to pull a hit's path back toward when the model's path leaves the family's order
     and so has no closest approach (the model's landing at the prior; nan: none)."""
-    n = len(ev)
     kind = ev.kind
-    pos = np.zeros(n)
-    reach = np.zeros(n)
+    pos = np.zeros(np.shape(out.reach))
+    reach = np.zeros_like(pos)
     dead = ~np.isfinite(out.reach)
     # measured landings
     lr = wrap(ev.observed - out.landing) / noise
@@ -121,19 +121,49 @@ def residuals(
     win = np.where(kind == JAW, ev.mouth, ev.window)
     is_w = (kind == HIT) | (kind == JAW)
     has_m = np.isfinite(out.miss)
-    cw = censored_window(np.where(has_m, out.miss, 0.0), win, sd_m)
+    cols = np.flatnonzero(is_w)  # the censored terms cost: only the rows that have them
+    cw = np.zeros_like(pos)
+    m_w = out.miss[..., cols]
+    cw[..., cols] = censored_window(np.where(np.isfinite(m_w), m_w, 0.0), win[cols], sd_m)
     pos = np.where(is_w & has_m, cw, pos)
     ar = wrap(anchor - out.landing) / noise
     pos = np.where(is_w & ~has_m & np.isfinite(ar), ar, pos)
     # how far the ball gets
     rr = np.where(np.isfinite(out.reach), out.reach, 0.0)
-    up = censored_above(rr, REACH_SD)
-    down = censored_above(-rr, REACH_SD)
+    is_s = kind == SHORT
+    up_c = np.flatnonzero(~is_s)
+    dn_c = np.flatnonzero(is_s)
+    up = np.zeros_like(pos)
+    down = np.zeros_like(pos)
+    up[..., up_c] = censored_above(rr[..., up_c], REACH_SD)
+    down[..., dn_c] = censored_above(-rr[..., dn_c], REACH_SD)
     reach = np.where(is_l | (is_w & ~has_m), up, reach)
-    reach = np.where(kind == SHORT, down, reach)
+    reach = np.where(is_s, down, reach)
     pos = np.where(dead & (kind != SHORT), NO_OUTCOME, pos)
     reach = np.where(dead, NO_OUTCOME, reach)
-    return np.column_stack((pos, reach)).ravel()
+    both = np.stack((pos, reach), axis=-1)
+    return both.reshape(*both.shape[:-2], -1)
+
+
+SLOPE_STEP = 1e-6
+"""Step (diamonds; metres) of the forward differences in residual_slopes."""
+
+
+def residual_slopes(
+    ev: Evidence, out: Outcomes, noise: float, diamond: float, anchor: np.ndarray
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Each row's residuals against its own outcomes: (d position / d outcome, d reach / d
+    reach, uses_miss). A row's position residual follows its closest approach of the target
+    (``uses_miss``: a hit or jaw whose modelled path passes the target) or else its landing;
+    its reach residual follows its reach. Every outcome moves by SLOPE_STEP at once in one
+    evaluation (each residual sees only one of them)."""
+    h = SLOPE_STEP
+    r0 = residuals(ev, out, noise, diamond, anchor).reshape(-1, 2)
+    moved = Outcomes(out.landing + h, out.reach + h, out.miss + h)
+    r1 = residuals(ev, moved, noise, diamond, anchor).reshape(-1, 2)
+    d = (r1 - r0) / h
+    uses_miss = ((ev.kind == HIT) | (ev.kind == JAW)) & np.isfinite(out.miss)
+    return d[:, 0], d[:, 1], uses_miss
 
 
 def robust_loss(n_data: int):  # type: ignore[no-untyped-def]

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, fields, replace
 from typing import Any
 
 import numpy as np
@@ -70,15 +70,59 @@ class Runner:
         key = (g, copies)
         b = self._batches.get(key)
         if b is None:
-            rows = self.ev.groups[g]
-            setups = [self.ev.setups[i] for i in rows] * copies
-            b = self._batches[key] = self._pa.shot_batch(self.table, setups, balls=False)
+            if copies == 1:
+                rows = self.ev.groups[g]
+                setups = [self.ev.setups[i] for i in rows]
+                b = self._pa.shot_batch(self.table, setups, balls=False)
+            else:  # the one batch's arrays repeated, rather than built again copies times
+                one = self._batch(g, 1)
+                b = replace(
+                    one,
+                    **{
+                        f.name: (
+                            np.tile(v, (copies,) + (1,) * (v.ndim - 1))
+                            if isinstance(v, np.ndarray)
+                            else v * copies
+                            if isinstance(v, tuple)
+                            else v
+                        )
+                        for f in fields(one)
+                        for v in (getattr(one, f.name),)
+                    },
+                )
+            self._batches[key] = b
         return b
 
     def run(self, table: TableSpec, speeds: np.ndarray) -> list[Outcomes]:
         """Outcomes of every row for each set of per-row speeds (``speeds`` (k, n) or (n,)):
         k sets run together in one batch per family."""
         sp = np.atleast_2d(np.asarray(speeds, dtype=float))
+        return self.run_sets([table] * sp.shape[0], sp)
+
+    def run_sets(self, tables: Sequence[TableSpec], speeds: np.ndarray) -> list[Outcomes]:
+        """Outcomes of every row under several parameter sets: set i is ``tables[i]``'s cloth
+        and cushion with the per-row speeds ``speeds[i]`` (shape (k, n)).
+
+        The one place that evaluates several tables' parameters. The physics batch takes one
+        cloth and cushion a call, so the sets of one table run together in one batch per
+        family and different tables one after another. Once the batch takes per-row
+        parameters (BallModel's mu_s, mu_r, spin_decel, e_cushion, mu_w as arrays of shape
+        (rows,)), every set can run in one call per family: tile the rows k times and give
+        each row its set's parameters; nothing else in the fit needs to change."""
+        sp = np.atleast_2d(np.asarray(speeds, dtype=float))
+        if len(tables) != sp.shape[0]:
+            raise ValueError("run_sets: one table per set of speeds")
+        out: list[Outcomes | None] = [None] * len(tables)
+        same: dict[int, list[int]] = {}
+        for i, t in enumerate(tables):
+            key = next((j for j in same if tables[j] == t), i)
+            same.setdefault(key, []).append(i)
+        for j, members in same.items():
+            for i, o in zip(members, self._run_one(tables[j], sp[members]), strict=True):
+                out[i] = o
+        return [o for o in out if o is not None]
+
+    def _run_one(self, table: TableSpec, sp: np.ndarray) -> list[Outcomes]:
         k, n = sp.shape
         land = np.full((k, n), np.nan)
         reach = np.full((k, n), np.nan)

@@ -109,6 +109,13 @@ def stroke_sentences(cal: Calibration, table: TableSpec | None = None) -> list[s
     for e in cal.speeds:
         book_l = shots.STROKE_LENGTHS[e.name]
         book = shots.SPEED_PRESETS[e.name]
+        if e.kept == KEPT_BOUND:
+            out.append(
+                f"{who} {e.name}: the shots pushed it to the end of its range (half or twice "
+                "the book's pace), which says more about those shots, or about what the model "
+                f"cannot do on this table, than about your stroke; kept at {e.value:.2f} m/s."
+            )
+            continue
         lengths = _lengths(here, e.value)
         if lengths is not None:
             text = (

@@ -140,8 +140,23 @@ def calibrate_from_store(
                 f"no attempts logged on the {table_name} table yet: practise first (the table "
                 "check in the practice screen takes 5 to 10 shots)"
             )
-    cals = list(fit_table(table, attempts, progress=progress).calibrations)
+    warm = _earlier(store, table_name, sorted({str(a.player) for a in attempts}))
+    cals = list(fit_table(table, attempts, progress=progress, warm=warm).calibrations)
     if save:
         for cal in cals:
             store.save_calibration(table_name, cal.player, cal.as_dict(), cal.attempts)
     return cals
+
+
+def _earlier(store: Any, table_name: str, players: list[str]) -> list[Calibration]:
+    """The stored calibrations of the table for these players that the fit can start from
+    (stale or damaged ones are skipped: the fit then starts from its grid)."""
+    out = []
+    for p in players:
+        try:
+            cal = stored_calibration(store, table_name, p)
+        except CalibrationError:  # StaleCalibration included
+            continue
+        if cal is not None:
+            out.append(cal)
+    return out

@@ -62,6 +62,13 @@ def test_an_old_calibration_is_stale_not_applied(tmp_path) -> None:  # type: ign
         assert r.calibration is None and r.table == T9
         assert r.status == "calibrated under an older model: run calibrate again"
         assert use.needs_table_check(store, "9ft", "ann")
+        # a stale calibration is no place to start a new fit from either
+        assert use._earlier(store, "9ft", ["ann"]) == []
+        cal = calibration()
+        store.save_calibration("9ft", "ann", cal.as_dict(), cal.attempts)
+        got = use._earlier(store, "9ft", ["ann", "bob"])
+        assert [c.player for c in got] == ["ann"]
+        assert got[0].value("cushion.restitution") == cal.value("cushion.restitution")
 
 
 def test_the_aim_command_shows_the_stale_line_and_loads_no_scipy(tmp_path) -> None:  # type: ignore[no-untyped-def]
@@ -139,6 +146,10 @@ def test_calibrate_command_fits_saves_and_prints(tmp_path, noiseless, capsys) ->
         table, status = use.calibrated_table(store, "9ft", None)
     assert status == f"calibrated from {len(noiseless)} attempts"
     assert table.cushion.restitution == pytest.approx(0.92, abs=0.01)
+    # again, now starting from the saved calibration: the same table
+    assert cli.main(["calibrate", "--data-dir", str(tmp_path), "--table", "9ft", "--json"]) == 0
+    again = json.loads(capsys.readouterr().out)
+    assert again["params"]["cushion.restitution"]["value"] == pytest.approx(0.92, abs=0.01)
     # plain text, not saved
     assert cli.main(["calibrate", "--data-dir", str(tmp_path), "--table", "9ft", "--no-save"]) == 0
     text = capsys.readouterr().out
