@@ -11,7 +11,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from ..physics.params import CushionModel, model_of
+from ..physics.params import BallModel, CushionModel, model_of
 from ..physics.simulate import SimResult
 from ..shots import RailPoint, Setup
 from ..table import TableSpec
@@ -49,13 +49,15 @@ def run_shots(
     english: np.ndarray,
     follow: np.ndarray,
     cushion: CushionModel = "stepped",
+    model: BallModel | None = None,
 ) -> tuple[SimResult, np.ndarray]:
     """Every row of a batch struck at its reading (metres along the first rail's sights, the
     reported reading: for a bank, the object's thrown launch line, turned back into the line
     of centres as the physical predict does) with its own speed and spin. Returns the
     simulation and whether each row was launched (a bank whose cue ball stops before the
-    object ball, or cannot send it along the line, is not)."""
-    m = model_of(table, cushion)
+    object ball, or cannot send it along the line, is not). ``model`` replaces the table's
+    own BallModel (calibration passes one with per-row cloth and cushion figures)."""
+    m = model_of(table, cushion) if model is None else model
     n = len(batch.setups)
     pi = np.arange(n, dtype=np.int64)
     reading = np.asarray(readings, dtype=float)

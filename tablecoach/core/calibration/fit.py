@@ -54,7 +54,7 @@ def fit_table(
     *,
     prior_speeds: dict[str, float] | None = None,
     progress: Progress | None = None,
-    max_steps: int = 8,
+    max_steps: int = 16,
     warm: Sequence[Calibration] = (),
 ) -> TableFit:
     """Fit the table's cloth and cushion from everyone's attempts and each player's strokes
@@ -102,7 +102,7 @@ def fit(
     *,
     prior_speeds: dict[str, float] | None = None,
     progress: Progress | None = None,
-    max_steps: int = 8,
+    max_steps: int = 16,
     warm: Sequence[Calibration] = (),
 ) -> Calibration:
     """fit_table for one player's attempts: that player's Calibration."""

@@ -103,39 +103,73 @@ class Runner:
         """Outcomes of every row under several parameter sets: set i is ``tables[i]``'s cloth
         and cushion with the per-row speeds ``speeds[i]`` (shape (k, n)).
 
-        The one place that evaluates several tables' parameters. The physics batch takes one
-        cloth and cushion a call, so the sets of one table run together in one batch per
-        family and different tables one after another. Once the batch takes per-row
-        parameters (BallModel's mu_s, mu_r, spin_decel, e_cushion, mu_w as arrays of shape
-        (rows,)), every set can run in one call per family: tile the rows k times and give
-        each row its set's parameters; nothing else in the fit needs to change."""
+        The one place that evaluates several tables' parameters. Tables that differ only in
+        their cloth and cushion figures (what a fit moves) run together: one batch per family
+        with the rows repeated once a set and each row given its set's figures (the physics
+        batch takes them per row); other tables run one after another."""
         sp = np.atleast_2d(np.asarray(speeds, dtype=float))
         if len(tables) != sp.shape[0]:
             raise ValueError("run_sets: one table per set of speeds")
+        if not tables:
+            return []
+        from ..physics.params import ROW_FIELDS, model_of
+
+        models = [model_of(t) for t in tables]
+        base = models[0]
+        same_rest = all(
+            replace(m, **{f: getattr(base, f) for f in ROW_FIELDS}) == base
+            and replace(t, cloth=tables[0].cloth, cushion=tables[0].cushion) == tables[0]
+            for m, t in zip(models, tables, strict=True)
+        )
+        if all(m == base for m in models):
+            return self._run_one(tables[0], sp)
+        if same_rest:
+            figures = {
+                f: np.array([getattr(m, f) for m in models], dtype=float) for f in ROW_FIELDS
+            }
+            mu_roll = np.array([t.cloth.mu_roll for t in tables], dtype=float)
+            return self._run_one(tables[0], sp, figures, mu_roll)
         out: list[Outcomes | None] = [None] * len(tables)
-        same: dict[int, list[int]] = {}
         for i, t in enumerate(tables):
-            key = next((j for j in same if tables[j] == t), i)
-            same.setdefault(key, []).append(i)
-        for j, members in same.items():
-            for i, o in zip(members, self._run_one(tables[j], sp[members]), strict=True):
-                out[i] = o
+            out[i] = self._run_one(t, sp[i : i + 1])[0]
         return [o for o in out if o is not None]
 
-    def _run_one(self, table: TableSpec, sp: np.ndarray) -> list[Outcomes]:
+    def _run_one(
+        self,
+        table: TableSpec,
+        sp: np.ndarray,
+        figures: dict[str, np.ndarray] | None = None,
+        mu_roll: np.ndarray | None = None,
+    ) -> list[Outcomes]:
+        """k sets of per-row speeds ``sp`` (k, n) on ``table``; with ``figures`` (each ROW_FIELDS
+        name -> k values) set i plays with its own cloth and cushion figures, and ``mu_roll``
+        (k values) measures its roll past the landing rail."""
+        from ..physics.params import model_of
+
         k, n = sp.shape
         land = np.full((k, n), np.nan)
         reach = np.full((k, n), np.nan)
         miss = np.full((k, n), np.nan)
-        g_acc = 9.80665 * table.cloth.mu_roll
+        rolls = np.full(k, table.cloth.mu_roll) if mu_roll is None else mu_roll
         ev = self.ev
         for g, rows in enumerate(ev.groups):
             b = self._batch(g, k)
             nf = len(ev.setups[int(rows[0])].family.rails)
             rr = np.tile(rows, k)
+            m = None
+            if figures is not None:
+                per: dict[str, Any] = {f: np.repeat(v, rows.size) for f, v in figures.items()}
+                m = replace(model_of(table), **per)
             res, ok = self._pa.run_shots(
-                table, b, ev.reading[rr], sp[:, rows].ravel(), ev.english[rr], ev.follow[rr]
+                table,
+                b,
+                ev.reading[rr],
+                sp[:, rows].ravel(),
+                ev.english[rr],
+                ev.follow[rr],
+                model=m,
             )
+            g_acc = 9.80665 * np.repeat(rolls, rows.size)
             self.runs += 1
             code = res.landing_rail
             lp = perimeter_positions(table, code, res.landing_at)

@@ -375,7 +375,7 @@ def _covariance(prob: Problem, lin: Linear, free: np.ndarray, scale: float = 1.0
 def solve(
     prob: Problem,
     progress: Progress | None = None,
-    max_steps: int = 8,
+    max_steps: int = 16,
     sample: int | None = None,
     warm: tuple[np.ndarray, float] | None = None,
 ) -> Solution:

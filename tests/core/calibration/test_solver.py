@@ -203,3 +203,19 @@ def test_a_stroke_at_the_end_of_its_range_goes_back_to_the_book_pace(few, noisel
     kept = replace(cal, speeds=(replace(e, value=e.prior, kept=KEPT_BOUND), *cal.speeds[1:]))
     words = stroke_sentences(kept, T9)[0]
     assert "end of its range" in words and f"{e.prior:.2f} m/s" in words
+
+
+def test_run_sets_plays_different_tables_in_one_batch_a_family(few) -> None:  # type: ignore[no-untyped-def]
+    # Sets that differ in cloth and cushion run in one physics batch per family (per-row
+    # figures) and give exactly what each set gives run alone: landing, reach (its own rolling
+    # resistance) and miss. Internal consistency check (no outside source; invented test data).
+    ev = gather(T9, few)
+    other = with_params(T9, TRUE)
+    together = Runner(T9, ev)
+    sp = np.vstack((ev.logged, ev.logged * 1.1))
+    outs = together.run_sets([T9, other], sp)
+    assert together.runs == len(ev.groups)
+    for tbl, o, s in ((T9, outs[0], 0), (other, outs[1], 1)):
+        alone = Runner(T9, ev).run_sets([tbl], sp[s : s + 1])[0]
+        for name in ("landing", "reach", "miss"):
+            np.testing.assert_array_equal(getattr(o, name), getattr(alone, name), err_msg=name)
