@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 import sys
-from collections.abc import Iterable, Iterator
+from collections.abc import Callable, Iterable, Iterator
 from typing import TypeVar
 
 T = TypeVar("T")
@@ -12,10 +12,17 @@ SHOW_FROM = 20_000
 """Items a job must count at least before a bar is worth drawing."""
 
 
-def tracked(items: Iterable[T], total: int | None, what: str) -> Iterator[T]:
+def tracked(
+    items: Iterable[T],
+    total: int | None,
+    what: str,
+    done: Callable[[], int] | None = None,
+    show_from: int = SHOW_FROM,
+) -> Iterator[T]:
     """``items`` unchanged; with a terminal on stderr and a long job (``total`` at least
-    SHOW_FROM), a Rich bar on stderr counts them off. Pipes and files never see a bar."""
-    if total is None or total < SHOW_FROM or not sys.stderr.isatty():
+    ``show_from``), a Rich bar on stderr counts them off, or follows ``done()`` (e.g. bytes
+    read of a file ``total`` bytes long). Pipes and files never see a bar."""
+    if total is None or total < show_from or not sys.stderr.isatty():
         yield from items
         return
     from rich.console import Console
@@ -23,10 +30,10 @@ def tracked(items: Iterable[T], total: int | None, what: str) -> Iterator[T]:
 
     with Progress(console=Console(stderr=True), transient=True) as bar:
         task = bar.add_task(what, total=total)
-        done = 0
+        count = 0
         for item in items:
             yield item
-            done += 1
-            if done % 1000 == 0:
-                bar.update(task, completed=done)
-        bar.update(task, completed=done)
+            count += 1
+            if count % 1000 == 0:
+                bar.update(task, completed=done() if done is not None else count)
+        bar.update(task, completed=done() if done is not None else count)
