@@ -111,6 +111,17 @@ class Attempts(Connection):
         """The attempts ``query`` matches in the order of ``attempts``, read ``batch`` rows at a
         time (keyset paging on time then id): memory stays bounded whatever the size of the
         history, and no read holds the connection between batches."""
+        for rows in self.attempt_row_pages(query, batch):
+            with quiet_gc():
+                items = [from_row(r, r[-1]) for r in rows]
+            del rows
+            yield from items
+
+    def attempt_row_pages(
+        self, query: AttemptQuery = EVERYTHING, batch: int = READ_BATCH
+    ) -> Iterator[list[tuple[Any, ...]]]:
+        """``iter_attempts`` as the stored rows (``rows.COLS`` then the id), a page at a time:
+        for a writer that needs no Attempt (``formats.jsonl_line``)."""
         where, args = query.where()
         after: tuple[str, int] | None = None
         while True:
@@ -124,10 +135,7 @@ class Attempts(Connection):
             if not rows:
                 return
             after = (rows[-1][0], rows[-1][-1])
-            with quiet_gc():
-                items = [from_row(r, r[-1]) for r in rows]
-            del rows
-            yield from items
+            yield rows
 
     def latest_attempts(
         self, query: AttemptQuery, n: int, *, zone: str | None = None, landed: bool = False
