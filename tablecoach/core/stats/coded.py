@@ -2,7 +2,7 @@
 integers (store/coded.py), numpy reads a page of them from one text, and only the attempts
 whose landing is read against the aim bring their numbers one row at a time.
 
-``summarize_store`` gives the same History as ``history.summarize(read.read_frame(...))``
+``summarize_store`` gives the same History as ``history.summarize`` over the Attempts
 (tests/core/test_stats_coded.py holds them to each other on random stores); it is what
 ``tablecoach history`` and the history screen use.
 """
@@ -20,6 +20,7 @@ from .. import coach
 from ..shots import SPEED_BANDS
 from ..store.attempts import Attempts, quiet_gc
 from ..store.coded import CodePlan, aimed_numbers, coded_pages, stored_values
+from ..store.errors import StoreError
 from ..store.query import EVERYTHING, AttemptQuery
 from ..table import BUILTIN_TABLES, TableSpec
 from .bias import LandingBias, bias_by_codes, offsets_on
@@ -82,7 +83,10 @@ def _times(text: str, n: int) -> np.ndarray:
         parse_joined("".join(text.split("\x1f")), n) if len(text) == (ISO_LEN + 1) * n - 1 else None
     )
     if us is None:  # some time not in the stored fixed form: parsed one by one
-        us = parse_times(text.split("\x1f")).astype(np.int64)
+        texts = text.split("\x1f")
+        if len(texts) != n:
+            raise StoreError("a stored time holds a control character; restore from a backup")
+        us = parse_times(texts).astype(np.int64)
     return us
 
 
@@ -174,6 +178,8 @@ def offsets_of_coded(
     ok = np.array([spec is not None for spec in specs], bool)
     keep = np.flatnonzero(cols.aimed[pos] & ok[cols.table[pos]])
     pos, nums = pos[keep], nums[keep]
+    if len(pos) == 0:
+        return out
     tab, aim, rails = cols.table[pos], cols.aim[pos], cols.rails[pos]
     shape = (tab * (len(RAIL_NAMES) + 1) + aim) * (int(rails.max()) + 1) + rails
     for s in np.unique(shape).tolist():

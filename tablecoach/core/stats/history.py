@@ -63,13 +63,11 @@ def summarize(
     ``table_of`` resolves table names for the landing bias (None: built-in tables only).
     Works on the columnar frame: the same numbers as the one-concept functions of the other
     stats modules (the tests hold them to each other), fast enough for a hundred thousand
-    attempts. ``attempts`` may be a frame read from the store (``read.read_frame``): the same
-    History as for the Attempts it holds, without building any.
+    attempts. For a whole store, ``coded.summarize_store`` reads the same History without
+    building any Attempt.
     """
     with quiet_gc():
         cols = attempts if isinstance(attempts, Frame) else frame_of(attempts)
-        if zone_fn is not None and len(cols) and not cols.attempts:
-            raise ValueError("a custom zone key needs the attempts themselves, not a frame read")
         return _summarize(cols, tz, today, zone_fn, table_of, confidence, with_bias)
 
 
