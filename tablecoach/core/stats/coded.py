@@ -65,16 +65,25 @@ class Coded:
         return _EPOCH + timedelta(microseconds=int(self.us[i]))
 
 
+def first_order(keys: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Integer keys recoded 0.. in order of first appearance, and the distinct keys in that
+    order. Only the first key of each run of equal keys is sorted (rows in time order come in
+    runs: a session, a family practised for a while), then each key is looked up."""
+    if len(keys) == 0:
+        return np.zeros(0, np.int64), np.zeros(0, keys.dtype)
+    starts = np.flatnonzero(np.r_[True, keys[1:] != keys[:-1]])
+    uniq, first = np.unique(keys[starts], return_index=True)
+    by_first = np.argsort(first, kind="stable")
+    rank = np.empty(len(uniq), np.int32 if len(uniq) < 2**31 else np.int64)
+    rank[by_first] = np.arange(len(uniq))
+    return rank[np.searchsorted(uniq, keys)], uniq[by_first]
+
+
 def first_coded(keys: np.ndarray, names: Sequence[Any]) -> tuple[np.ndarray, tuple[Any, ...]]:
     """Integer keys (indexing ``names``) recoded 0.. in order of first appearance, and the
     names in that order (frame.codes for rows already coded)."""
-    if len(keys) == 0:
-        return np.zeros(0, np.int64), ()
-    uniq, first, inv = np.unique(keys, return_index=True, return_inverse=True)
-    by_first = np.argsort(first, kind="stable")
-    rank = np.empty(len(uniq), np.int64)
-    rank[by_first] = np.arange(len(uniq))
-    return rank[inv.reshape(-1)], tuple(names[int(k)] for k in uniq[by_first].tolist())
+    codes, order = first_order(keys)
+    return codes, tuple(names[int(k)] for k in order.tolist())
 
 
 def _times(text: str, n: int) -> np.ndarray:
@@ -102,22 +111,23 @@ def read_coded(c: Any, query: AttemptQuery) -> Coded | None:
         (coach.COL_WIDTH, coach.ROW_HEIGHT, coach.ZONE_COLS, coach.ZONE_ROWS),
         tuple(SPEED_BANDS.values()),
     )  # fmt: skip
-    parts: dict[str, list[np.ndarray]] = {"ints": [], "us": []}
+    parts: dict[str, list[np.ndarray]] = {k: [] for k in ("ids", "sess", "c1", "c2", "us")}
     for page in coded_pages(c, query, plan):
-        ints = np.fromstring(page.ints, np.int64, sep=",")  # text mode: parsed in C
-        parts["ints"].append(ints.reshape(page.n, 4))
+        ints = np.fromstring(page.ints, np.int64, sep=",").reshape(page.n, 4)  # parsed in C
+        for k, name in enumerate(("ids", "sess", "c1", "c2")):
+            parts[name].append(ints[:, k].copy())
+        del ints
         parts["us"].append(_times(page.times, page.n))
     if not parts["us"]:
         return None
-    ints = np.concatenate(parts["ints"])
-    us = np.concatenate(parts["us"])
-    ids = ints[:, 0]
+    ids, sess_id, code1, code2, us = (
+        np.concatenate(parts.pop(k)) for k in ("ids", "sess", "c1", "c2", "us")
+    )
     d_us, d_id = np.diff(us), np.diff(ids)
     if not bool(np.all((d_us > 0) | ((d_us == 0) & (d_id > 0)))):
         order = np.lexsort((ids, us))
-        ints, us, ids = ints[order], us[order], ids[order]
-    sess_id, code1, code2 = ints[:, 1], ints[:, 2], ints[:, 3]
-    del ints
+        ids, sess_id, code1, code2, us = (a[order] for a in (ids, sess_id, code1, code2, us))
+    del d_us, d_id
     hit = (code1 & 1).astype(bool)
     rest = code1 >> 1
     nf = len(raw_fams) + 1
@@ -133,6 +143,8 @@ def read_coded(c: Any, query: AttemptQuery) -> Coded | None:
     aim, rest = rest % nr, rest // nr
     land, rails = rest % nr, rest // nr
     land[land >= len(RAIL_NAMES)] = 0  # none, or not a rail: code 0, as in the frame
+    del code1, code2, rest
+    col, row, aim, land, rails = (a.astype(np.int32) for a in (col, row, aim, land, rails))
     # players and tables the query's attempts hold (the plan listed all the store's)
     player, players = first_coded(player, [*all_players, ""])
     table, tables = first_coded(table, [*all_tables, ""])
@@ -144,14 +156,12 @@ def read_coded(c: Any, query: AttemptQuery) -> Coded | None:
     band, bands = first_coded(band_raw, band_names)
     # sessions keyed as frame_of does: the store's id, or ("unsaved", player, table)
     key = np.where(sess_id >= 0, sess_id, -1 - (player * len(tables) + table))
-    uniq, first, inv = np.unique(key, return_index=True, return_inverse=True)
-    by_first = np.argsort(first, kind="stable")
-    rank = np.empty(len(uniq), np.int64)
-    rank[by_first] = np.arange(len(uniq))
-    session = rank[inv.reshape(-1)]
+    session, keys = first_order(key)
     sessions = tuple(
-        k if k >= 0 else ("unsaved", players[int(player[i])], tables[int(table[i])])
-        for k, i in zip(uniq[by_first].tolist(), first[by_first].tolist(), strict=True)
+        k
+        if k >= 0
+        else ("unsaved", players[(-1 - k) // len(tables)], tables[(-1 - k) % len(tables)])
+        for k in keys.tolist()
     )
     return Coded(
         us, ids, hit, family, families, band, bands, col, row, session, sessions,

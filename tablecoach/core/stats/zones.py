@@ -42,7 +42,9 @@ def zones_of_cells(
         return np.zeros(0, np.int64), ()
     nb = len(bands)
     raw = ((family * coach.ZONE_COLS + col) * coach.ZONE_ROWS + row) * nb + band
-    uniq, inv = np.unique(raw, return_inverse=True)
+    # every distinct value starts some run of equal values: sort only the runs' first values
+    uniq = np.unique(raw[np.flatnonzero(np.r_[True, raw[1:] != raw[:-1]])])
+    inv = np.searchsorted(uniq, raw)
     zones = []
     for r in uniq.tolist():
         b, r = r % nb, r // nb

@@ -116,9 +116,10 @@ class Attempts(Connection):
     ) -> Iterator[list[tuple[Any, ...]]]:
         """``iter_attempts`` as the stored rows (``rows.COLS`` then the id), a page at a time:
         for a writer that needs no Attempt (``formats.jsonl_line``)."""
-        where, args = query.where()
         after: tuple[str, int] | None = None
         while True:
+            # the time bound is raised to the last row's time: the index search starts there
+            where, args = query.where(None if after is None else after[0])
             page = where if after is None else where + " AND (at, id) > (?, ?)"
             more = list(args) if after is None else [*args, *after]
             with self.reading() as c:
