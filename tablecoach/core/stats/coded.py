@@ -172,26 +172,43 @@ def read_coded(c: Any, query: AttemptQuery) -> Coded | None:
 def offsets_of_coded(
     c: Any, query: AttemptQuery, cols: Coded, table_of: Callable[[str], TableSpec | None]
 ) -> np.ndarray:
-    """Each attempt's landing offset (NaN: none), as ``bias.offsets_of`` gives it."""
+    """Each attempt's landing offset (NaN: none), as ``bias.offsets_of`` gives it, worked out
+    a page of numbers at a time (each offset depends on its own attempt only)."""
     out = np.full(len(cols.us), np.nan)
     specs = [table_of(t) for t in cols.tables]
     if not any(spec is not None for spec in specs) or not cols.landed.any():
         return out
-    nums = np.concatenate(
-        [np.array(rows, np.float64).reshape(-1, 4) for rows in aimed_numbers(c, query)]
-        or [np.zeros((0, 4))]
-    )
-    pos = np.flatnonzero(cols.landed)
-    pos = pos[np.argsort(cols.ids[pos], kind="stable")]  # the numbers come in order of id
-    if len(pos) != len(nums):
-        raise RuntimeError("the coded read and the numbers read disagree")
     ok = np.array([spec is not None for spec in specs], bool)
-    keep = np.flatnonzero(cols.aimed[pos] & ok[cols.table[pos]])
-    pos, nums = pos[keep], nums[keep]
+    landed = np.flatnonzero(cols.landed)
+    landed = landed[np.argsort(cols.ids[landed], kind="stable")]  # numbers come by id
+    done = 0
+    for rows in aimed_numbers(c, query):
+        nums = np.array(rows, np.float64).reshape(-1, 4)
+        del rows
+        pos = landed[done : done + len(nums)]
+        done += len(nums)
+        if len(pos) != len(nums):
+            break
+        keep = np.flatnonzero(cols.aimed[pos] & ok[cols.table[pos]])
+        _offsets_into(out, pos[keep], nums[keep], cols, specs)
+    if done != len(landed):
+        raise RuntimeError("the coded read and the numbers read disagree")
+    return out
+
+
+def _offsets_into(
+    out: np.ndarray,
+    pos: np.ndarray,
+    nums: np.ndarray,
+    cols: Coded,
+    specs: Sequence[TableSpec | None],
+) -> None:
+    """The offsets of the attempts at ``pos`` (their numbers in ``nums``) into ``out``, one
+    table, aim rail and number of rails at a time."""
     if len(pos) == 0:
-        return out
+        return
     tab, aim, rails = cols.table[pos], cols.aim[pos], cols.rails[pos]
-    shape = (tab * (len(RAIL_NAMES) + 1) + aim) * (int(rails.max()) + 1) + rails
+    shape = (tab.astype(np.int64) * (len(RAIL_NAMES) + 1) + aim) * (int(rails.max()) + 1) + rails
     for s in np.unique(shape).tolist():
         sel = np.flatnonzero(shape == s)
         i0 = int(pos[sel[0]])
@@ -204,7 +221,6 @@ def offsets_of_coded(
             spec, nums[sel, 0:2], int(cols.rails[i0]), RAIL_NAMES[a], nums[sel, 2],
             cols.land[rows], nums[sel, 3],
         )  # fmt: skip
-    return out
 
 
 def summarize_store(
