@@ -826,3 +826,24 @@ def test_duplicates_in_the_file_and_in_the_store_are_skipped_once(
     created = conn.execute("SELECT created FROM players WHERE name = 'ann'").fetchone()[0]
     conn.close()
     assert created == "2026-03-14T18:30:00.000000+00:00"
+
+
+def test_json_line_reads_as_the_standard_parser_and_checks_long_numbers() -> None:
+    # Reference: json.loads (standard library). Numbers are read by the C parser unless the
+    # line holds a run of characters long enough to be an over-long number; either way the
+    # values are json.loads's, and an over-long number is still named.
+    from tablecoach.core import validate
+
+    long_text = "7" * 60
+    lines = [
+        json.dumps(_record()),
+        json.dumps(_record(note=long_text)),  # a long run inside a string: still read
+        json.dumps(_record(speed=1e-300)),
+        '{"a": [1, -2.5e10, 3], "b": {"c": null, "d": true}}',
+    ]
+    for line in lines:
+        assert validate.json_line(line) == json.loads(line)
+    with pytest.raises(validate.InputError, match="'speed': a number is 60 characters long"):
+        validate.json_line(json.dumps(_record()).replace('"speed": 2.0', f'"speed": {long_text}'))
+    with pytest.raises(validate.InputError, match="not a number JSON allows"):
+        validate.json_line('{"a": NaN}')
