@@ -99,7 +99,7 @@ def run(args: argparse.Namespace) -> int:
     from ..core.store import Store
     from ..core.store.importing import Staging
     from ..paths import db_path
-    from .progress import tracked
+    from .progress import tracked, working
 
     where = "standard input" if args.file == "-" else args.file
     errors: list[tuple[int, str]] = []
@@ -146,7 +146,8 @@ def run(args: argparse.Namespace) -> int:
                 f"{'them' if n != 1 else 'it'} or use --skip-bad to import the good lines"
             )
         # the whole file is known: the new attempts go in at once (all or none)
-        with Store.open(db_path()) as s:
+        big = size is None or size >= SHOW_BYTES
+        with Store.open(db_path()) as s, working("adding the attempts to the store", big):
             added, dups = staged.move_into(s)
     if args.json:
         print(

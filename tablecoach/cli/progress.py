@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import sys
 from collections.abc import Callable, Iterable, Iterator
+from contextlib import contextmanager
 from typing import TypeVar
 
 T = TypeVar("T")
@@ -37,3 +38,16 @@ def tracked(
             if count % 1000 == 0:
                 bar.update(task, completed=done() if done is not None else count)
         bar.update(task, completed=done() if done is not None else count)
+
+
+@contextmanager
+def working(what: str, show: bool) -> Iterator[None]:
+    """A Rich spinner on stderr saying ``what`` while the body runs, for a step that counts
+    nothing off (only at a terminal, and when ``show``)."""
+    if not show or not sys.stderr.isatty():
+        yield
+        return
+    from rich.console import Console
+
+    with Console(stderr=True).status(what):
+        yield

@@ -51,11 +51,11 @@ class CodePlan:
 class CodedPage:
     """One page: ``n`` rows; ``ints`` holds 4 integers a row, comma-separated (id, session id
     or -1, ``hit + 2 * (family + F * (band + B * (col + C * row)))``, ``player + P * (table +
-    T * (landed + 2 * aimed + 4 * (aim_rail + R * (landing_rail + R * rails))))`` with F, B, C,
-    P, T, R the sizes of the plan's lists (each one more, for "not listed"); ``landed`` is 1
-    when the landing is known, ``aimed`` when the aim is read on the first rail of the shot,
-    ``rails`` is the number of rails);
-    ``times`` the stored times, joined with char(31)."""
+    T * (landed + 2 * aimed + 4 * (aim_rail + R * (landing_rail + R * rails))))`` with F, P,
+    T, R the sizes of the plan's lists of families, players, tables and rails (each one more,
+    for "not listed"), B the number of bands and C the grid's columns; ``landed`` is 1 when
+    the landing is known, ``aimed`` when the aim is read on the first rail of the shot,
+    ``rails`` is the number of rails); ``times`` the stored times, joined with char(31)."""
 
     n: int
     ints: str
