@@ -1,7 +1,7 @@
 """Benchmark: history over 100,000 attempts (goal < 0.5 s) and the history screen (goal < 1 s).
 
-The screen and ``tablecoach history`` read the statistics' frame straight from the store
-(``stats.read.read_frame``) and summarise it; the Attempt-list figures are kept for comparison.
+The screen and ``tablecoach history`` read the history from the store as SQLite's integer codes
+(``stats.coded.summarize_store``); the Attempt-list figures are kept for comparison.
 
 Run: python benchmarks/bench_history.py [--attempts N] [--repeat R]. Prints figures; asserts
 nothing (the machines are shared and noisy, so goals are read, not enforced).
@@ -22,9 +22,9 @@ import numpy as np
 
 from tablecoach.core import demo
 from tablecoach.core.stats.bias import offsets_of
+from tablecoach.core.stats.coded import summarize_store
 from tablecoach.core.stats.frame import frame_of
 from tablecoach.core.stats.history import history_dict, summarize
-from tablecoach.core.stats.read import read_frame
 from tablecoach.core.stats.zones import zone_codes_of
 from tablecoach.core.store import Store
 from tablecoach.core.store.query import AttemptQuery
@@ -131,17 +131,10 @@ def main() -> None:
             added, _ = store.import_attempts(items)
             print(f"stored {added} attempts in {time.perf_counter() - t0:.1f} s (set-up)")
             show("store.attempts() of all (Attempt objects)", timed(store.attempts, 3))
-            show("read_frame of all (one SELECT -> the frame)", timed(lambda: read_frame(store), r))
-            frame = read_frame(store)
             show(
-                "summarize(frame read), landing bias too",
-                timed(lambda: summarize(frame, tz=UTC, today=NOW.date(), table_of=tables), r),
-                0.5,
-            )
-            show(
-                "read_frame + summarize (the command's path)",
+                "summarize_store (the command's path), landing bias too",
                 timed(
-                    lambda: summarize(read_frame(store), tz=UTC, today=NOW.date(), table_of=tables),
+                    lambda: summarize_store(store, tz=UTC, today=NOW.date(), table_of=tables),
                     r,
                 ),
                 0.5,
@@ -150,8 +143,9 @@ def main() -> None:
             show(
                 f"  the same for one player ({store.count_attempts(AttemptQuery(player=player))})",
                 timed(
-                    lambda: summarize(
-                        read_frame(store, AttemptQuery(player=player)),
+                    lambda: summarize_store(
+                        store,
+                        AttemptQuery(player=player),
                         tz=UTC,
                         today=NOW.date(),
                         table_of=tables,

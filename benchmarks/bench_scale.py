@@ -2,8 +2,8 @@
 
 Stores of N attempts are the demo club's four weeks (core/demo.py) replicated further back in
 time, four weeks a copy, written with ``Store.log_many`` in big transactions. Each store is built
-ONCE into a cache folder (default: <tmp>/tablecoach-bench-scale; --cache) and reused by later
-runs; an empty store with the club's tables is the baseline ("0").
+ONCE into a cache folder (default: <tmp>/tablecoach-bench-scale; $TABLECOACH_BENCH_CACHE or
+--cache) and reused by later runs; an empty store with the club's tables is the baseline ("0").
 
 Every measurement runs in a fresh Python process (imports included) and reports its wall time
 and its peak resident memory (resource.getrusage(RUSAGE_SELF).ru_maxrss of that process):
@@ -14,7 +14,13 @@ and its peak resident memory (resource.getrusage(RUSAGE_SELF).ru_maxrss of that 
   until the next setup is on the table (the store ends as it began: every h is undone);
 - history: ``tablecoach history --json`` over the whole store;
 - export: ``tablecoach export -o FILE`` (JSONL) of the whole store;
-- import: ``tablecoach import FILE`` of that export into an empty data folder.
+- import: ``tablecoach import FILE`` of that export into an empty data folder;
+- parse-and-insert floor: the same file parsed line by line (json.loads) and inserted into an
+  empty store's attempts table in one transaction with no checks (``FLOOR``), and the ratio of
+  import to floor.
+
+Times are wall time with the CPU time (user + system) of the process beside it: on a shared
+machine the CPU time is the steadier figure.
 
 Run: python benchmarks/bench_scale.py [--sizes 10000 100000] [--repeat 3]. Prints medians;
 asserts nothing (the machines are shared and noisy: goals are read, not enforced).
@@ -25,6 +31,7 @@ from __future__ import annotations
 import argparse
 import json
 import os
+import shutil
 import statistics
 import subprocess
 import sys
@@ -109,8 +116,47 @@ sys.path.insert(0, {root!r})
 from tablecoach.cli import main
 rc = main({argv!r})
 t = time.perf_counter() - t0
-rss = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
-print(json.dumps({{"seconds": t, "rss_kib": rss, "rc": rc}}), file=sys.stderr)
+r = resource.getrusage(resource.RUSAGE_SELF)
+out = {{"seconds": t, "cpu": r.ru_utime + r.ru_stime, "rss_kib": r.ru_maxrss, "rc": rc}}
+print(json.dumps(out), file=sys.stderr)
+"""
+
+FLOOR = r"""
+import hashlib, json, resource, sys, time
+t0 = time.perf_counter()
+sys.path.insert(0, {root!r})
+from tablecoach.core.store import Store
+from tablecoach.core.store.rows import COLS
+from tablecoach.paths import db_path
+
+# The floor an import is compared with: parse each JSONL line (json.loads), lay its fields
+# flat in the store's column order, insert them all into a fresh store (same table, same
+# indexes) in one transaction. No checks, no duplicate search, no scratch copy; the identity
+# column gets a hash of the line so the rows are as wide as a real import's.
+def flat(line):
+    o = json.loads(line)
+    sh, aim, land = o["shot"], o["aim"], o["landing"] or {{}}
+    tgt = sh["target"]
+    ball = tgt.get("ball") or (None, None)
+    obj = sh["object"] or (None, None)
+    return (
+        o["when"].replace("Z", "+00:00"), o["player"], o["table"], sh["travel"],
+        ",".join(sh["rails"]), sh["family"], tgt.get("pocket"), ball[0], ball[1],
+        sh["cue"][0], sh["cue"][1], obj[0], obj[1], o["speed"], o["english"], o["follow"],
+        aim["rail"], aim["given"], aim["used"], o["result"], land.get("rail"), land.get("at"),
+        o["note"], o["model"], o["drill"], o["zone"], o.get("miss_kind"), None,
+        hashlib.sha256(line.encode()).hexdigest(),
+    )
+
+marks = ", ".join("?" * (COLS.count(",") + 2))
+sql = f"INSERT INTO attempts ({{COLS}}, ident) VALUES ({{marks}})"
+with Store.open(db_path()) as s, open({path!r}, encoding="utf-8") as fh:
+    with s.transaction() as c:
+        c.executemany(sql, map(flat, fh))
+t = time.perf_counter() - t0
+r = resource.getrusage(resource.RUSAGE_SELF)
+out = {{"seconds": t, "cpu": r.ru_utime + r.ru_stime, "rss_kib": r.ru_maxrss, "rc": 0}}
+print(json.dumps(out), file=sys.stderr)
 """
 
 
@@ -168,9 +214,9 @@ def run_child(code: str, data: Path) -> dict[str, float]:
     return got
 
 
-def run_cli(argv: list[str], data: Path) -> dict[str, float]:
+def run_cli(argv: list[str], data: Path, code: str | None = None) -> dict[str, float]:
     env = dict(os.environ, TABLECOACH_DATA_DIR=str(data), TABLECOACH_CONFIG_DIR=str(data / "cfg"))
-    code = CLI.format(root=str(ROOT), argv=argv)
+    code = code or CLI.format(root=str(ROOT), argv=argv)
     t0 = time.perf_counter()
     out = subprocess.run(
         [sys.executable, "-c", code],
@@ -193,13 +239,26 @@ def med(values: list[float]) -> float:
     return statistics.median(values)
 
 
+def figure(runs: list[dict[str, float]]) -> str:
+    """Median wall time, median CPU time (user + system) and median peak memory of runs."""
+    cpu = [r["cpu"] for r in runs if "cpu" in r]
+    said = f"{med([r['seconds'] for r in runs]):.2f} s"
+    if cpu:
+        said += f" (CPU {med(cpu):.2f} s)"
+    return f"{said}, {med([r['rss_kib'] for r in runs]) / 1024:.0f} MiB"
+
+
 PATHS = ("launch", "keys", "history", "export", "import")
 
 
 def measure(
     folder: Path, repeat: int, player: str, table: str, paths: tuple[str, ...] = PATHS
 ) -> dict[str, str]:
-    row = dict.fromkeys(("launch", "h after u", "history --json", "export", "import"), "-")
+    row = dict.fromkeys(
+        ("launch", "h after u", "history --json", "export", "import", "parse-and-insert floor",
+         "import / floor"),
+        "-",
+    )  # fmt: skip
     if "launch" in paths:
         row.update(_launch(folder, repeat, player, table))
     if "keys" in paths:
@@ -209,10 +268,7 @@ def measure(
         row["h after u"] = f"{med(keys['times']) * 1000:.0f} ms"  # type: ignore[arg-type]
     if "history" in paths:
         hist = [run_cli(["history", "--json"], folder) for _ in range(repeat)]
-        row["history --json"] = (
-            f"{med([r['seconds'] for r in hist]):.2f} s, "
-            f"{med([r['rss_kib'] for r in hist]) / 1024:.0f} MiB"
-        )
+        row["history --json"] = figure(hist)
     if "export" in paths or "import" in paths:
         row.update(_export_import(folder, repeat, "import" in paths))
     return row
@@ -236,21 +292,23 @@ def _export_import(folder: Path, repeat: int, also_import: bool) -> dict[str, st
     with tempfile.TemporaryDirectory() as tmp:
         out = Path(tmp) / "all.jsonl"
         exp = [run_cli(["export", "-o", str(out)], folder) for _ in range(repeat)]
-        row["export"] = (
-            f"{med([r['seconds'] for r in exp]):.2f} s, "
-            f"{med([r['rss_kib'] for r in exp]) / 1024:.0f} MiB"
-        )
+        row["export"] = figure(exp)
         if not also_import:
             return row
-        imp = []
+        imp, floor = [], []
         for k in range(repeat):
             fresh = Path(tmp) / f"fresh{k}"
             fresh.mkdir()
             imp.append(run_cli(["import", str(out)], fresh))
-        row["import"] = (
-            f"{med([r['seconds'] for r in imp]):.2f} s, "
-            f"{med([r['rss_kib'] for r in imp]) / 1024:.0f} MiB"
-        )
+            shutil.rmtree(fresh)
+            fresh.mkdir()
+            floor.append(run_cli([], fresh, FLOOR.format(root=str(ROOT), path=str(out))))
+            shutil.rmtree(fresh)
+        row["import"] = figure(imp)
+        row["parse-and-insert floor"] = figure(floor)
+        ratio = med([r["seconds"] for r in imp]) / med([r["seconds"] for r in floor])
+        cpu_ratio = med([r["cpu"] for r in imp]) / med([r["cpu"] for r in floor])
+        row["import / floor"] = f"{ratio:.2f} (CPU {cpu_ratio:.2f})"
     return row
 
 
@@ -259,7 +317,14 @@ def main() -> None:
     ap.add_argument("--sizes", type=int, nargs="+", default=[0, 10_000, 100_000])
     ap.add_argument("--repeat", type=int, default=3)
     ap.add_argument(
-        "--cache", type=Path, default=Path(tempfile.gettempdir()) / "tablecoach-bench-scale"
+        "--cache",
+        type=Path,
+        default=Path(
+            os.environ.get("TABLECOACH_BENCH_CACHE")
+            or Path(tempfile.gettempdir()) / "tablecoach-bench-scale"
+        ),
+        help="folder of the built stores (default: $TABLECOACH_BENCH_CACHE, else "
+        "<tmp>/tablecoach-bench-scale)",
     )
     ap.add_argument("--paths", nargs="+", choices=PATHS, default=list(PATHS))
     args = ap.parse_args()

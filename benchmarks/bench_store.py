@@ -1,7 +1,7 @@
 """Store speed: time to log one attempt (goal under 5 ms) and to query 100,000 attempts.
 
-``attempts`` builds Attempt objects; ``read_frame`` (core/stats/read.py) reads the same rows as
-the statistics' columnar frame (the history's path).
+``attempts`` builds Attempt objects; ``summarize_store`` (core/stats/coded.py) reads the same
+rows as integer codes and sums them up (the history's path).
 
 Run: python benchmarks/bench_store.py [--n 100000]. Prints figures; asserts nothing, since the
 machines are shared and noisy.
@@ -23,7 +23,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 import numpy as np
 
 from tablecoach.core.records import Attempt, ShotRecord
-from tablecoach.core.stats.read import read_frame
+from tablecoach.core.stats.coded import summarize_store
 from tablecoach.core.store import Store
 from tablecoach.core.store.query import AttemptQuery as Q
 
@@ -120,8 +120,8 @@ def main() -> None:
                 ("session", lambda: s.attempts(Q(session=sid))),
                 ("player+session", lambda: s.attempts(Q(player="player0", session=sid))),
                 ("sessions list", lambda: s.sessions()),
-                ("frame all", lambda: read_frame(s)),
-                ("frame player", lambda: read_frame(s, Q(player="player1"))),
+                ("history all", lambda: summarize_store(s).rate.attempts),
+                ("history player", lambda: summarize_store(s, Q(player="player1")).rate.attempts),
             ]
             for name, fn in cases:
                 t, res = timed(fn)

@@ -22,7 +22,7 @@ import subprocess
 import sys
 import textwrap
 from dataclasses import replace
-from datetime import UTC
+from datetime import UTC, datetime, timedelta
 from pathlib import Path
 
 import pytest
@@ -775,3 +775,75 @@ def test_windows_creating_the_same_new_store_at_once_all_log(tmp_path: Path) -> 
     assert sorted(p.name for p in db.parent.iterdir() if not p.name.endswith(("-wal", "-shm"))) == [
         db.name
     ]
+
+
+def _many(n: int, start: datetime | None = None) -> list[str]:
+    """n distinct good records a second apart (invented data)."""
+    t0 = start or datetime(2026, 3, 14, 18, 30, tzinfo=UTC)
+    return [
+        json.dumps(_record(when=(t0 + timedelta(seconds=i)).isoformat().replace("+00:00", "Z")))
+        for i in range(n)
+    ]
+
+
+def test_a_bad_last_line_after_many_batches_leaves_the_store_as_it_was(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str], monkeypatch: pytest.MonkeyPatch
+) -> None:
+    # the file is read once; its good lines wait aside until the whole file is known
+    from tablecoach.cli import importer
+
+    monkeypatch.setattr(importer, "BATCH", 7)  # many batches before the bad line
+    code, _, err = _import(tmp_path, capsys, _many(3))
+    assert code == 0, err
+    db = tmp_path / "data" / "tablecoach.sqlite3"
+    before = db.read_bytes()
+    code, _, err = _import(tmp_path, capsys, [*_many(50, datetime(2026, 4, 1, tzinfo=UTC)), "{"])
+    assert code == 2 and "nothing imported" in err
+    assert db.read_bytes() == before
+    with Store.open(db) as s:
+        assert s.count_attempts() == 3
+
+
+def test_duplicates_in_the_file_and_in_the_store_are_skipped_once(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str], monkeypatch: pytest.MonkeyPatch
+) -> None:
+    from tablecoach.cli import importer
+
+    monkeypatch.setattr(importer, "BATCH", 4)
+    lines = _many(10)
+    code, out, err = _import(tmp_path, capsys, [*lines, *lines[:3], "", *lines[8:]], "--json")
+    assert code == 0, err
+    assert json.loads(out)["added"] == 10 and json.loads(out)["duplicates"] == 5
+    code, out, _ = _import(tmp_path, capsys, [*lines, *_many(2, datetime(2027, 1, 1, tzinfo=UTC))])
+    assert code == 0 and "added 2 attempts, 10 already there" in out
+    with Store.open(tmp_path / "data" / "tablecoach.sqlite3") as s:
+        got = s.attempts()
+        assert len(got) == 12 and all(a.session is None for a in got)
+        # ids follow the file's order, and the player dates from the first attempt added
+        assert [a.when for a in got] == sorted(a.when for a in got)
+        assert [a.id for a in got] == sorted(a.id for a in got)
+    conn = sqlite3.connect(tmp_path / "data" / "tablecoach.sqlite3")
+    created = conn.execute("SELECT created FROM players WHERE name = 'ann'").fetchone()[0]
+    conn.close()
+    assert created == "2026-03-14T18:30:00.000000+00:00"
+
+
+def test_json_line_reads_as_the_standard_parser_and_checks_long_numbers() -> None:
+    # Reference: json.loads (standard library). Numbers are read by the C parser unless the
+    # line holds a run of characters long enough to be an over-long number; either way the
+    # values are json.loads's, and an over-long number is still named.
+    from tablecoach.core import validate
+
+    long_text = "7" * 60
+    lines = [
+        json.dumps(_record()),
+        json.dumps(_record(note=long_text)),  # a long run inside a string: still read
+        json.dumps(_record(speed=1e-300)),
+        '{"a": [1, -2.5e10, 3], "b": {"c": null, "d": true}}',
+    ]
+    for line in lines:
+        assert validate.json_line(line) == json.loads(line)
+    with pytest.raises(validate.InputError, match="'speed': a number is 60 characters long"):
+        validate.json_line(json.dumps(_record()).replace('"speed": 2.0', f'"speed": {long_text}'))
+    with pytest.raises(validate.InputError, match="not a number JSON allows"):
+        validate.json_line('{"a": NaN}')

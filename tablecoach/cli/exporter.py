@@ -55,9 +55,19 @@ def _write(store: Any, args: argparse.Namespace, fmt: str) -> int:
     if store is not None:
         query = AttemptQuery(player=args.player, table=args.table, family=args.family)
         total = store.count_attempts(query) if sys.stderr.isatty() else None
-        attempts = tracked(store.iter_attempts(query), total, "exporting")
+        if fmt == "jsonl":  # straight from the stored rows, no Attempt built (jsonl_line)
+            rows = (r for page in store.attempt_row_pages(query) for r in page)
+            attempts = tracked(rows, total, "exporting")
+        else:
+            attempts = tracked(store.iter_attempts(query), total, "exporting")
+
+    def write(fh: Any) -> int:
+        if fmt == "jsonl" and store is not None:
+            return formats.write_jsonl_rows(attempts, fh)
+        return formats.write_any(attempts, fh, fmt)
+
     if args.output is None:
-        formats.write_any(attempts, sys.stdout, fmt)
+        write(sys.stdout)
         sys.stdout.flush()
         return 0
     out = Path(args.output)
@@ -66,7 +76,7 @@ def _write(store: Any, args: argparse.Namespace, fmt: str) -> int:
     fd, tmp = tempfile.mkstemp(prefix=f".{out.name}.", dir=out.parent)
     try:
         with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
-            n = formats.write_any(attempts, fh, fmt)
+            n = write(fh)
             fh.flush()
             os.fsync(fh.fileno())
         os.replace(tmp, out)

@@ -91,8 +91,8 @@ def text_report(h: History, said: str, tz: tzinfo | None, tz_name: str) -> str:
 
 def compute(args: argparse.Namespace) -> tuple[History, AttemptQuery, date | None, date | None]:
     """(History, query, first day, last day) for the command-line options."""
+    from ..core.stats.coded import summarize_store
     from ..core.stats.history import summarize
-    from ..core.stats.read import read_frame
 
     query, first, last = query_from(args)
     tz = parse_tz(args.tz)
@@ -100,7 +100,7 @@ def compute(args: argparse.Namespace) -> tuple[History, AttemptQuery, date | Non
     if store is None:
         return summarize([], tz=tz), query, first, last
     try:
-        h = summarize(read_frame(store, query), tz=tz, table_of=store.table_lookup())
+        h = summarize_store(store, query, tz=tz, table_of=store.table_lookup())
     finally:
         store.close()
     return h, query, first, last

@@ -1,15 +1,16 @@
-"""`tablecoach import FILE`: check every line of a JSONL or CSV file, then add its attempts."""
+"""`tablecoach import FILE`: read a JSONL or CSV file once, checking every line and keeping the
+good attempts aside; then add the new ones to the store in one transaction
+(core/store/importing.py)."""
 
 from __future__ import annotations
 
 import argparse
 import io
-import itertools
 import json
+import os
 import shutil
 import sys
 import tempfile
-from collections.abc import Iterator
 from typing import IO, Any
 
 from .options import add_common
@@ -36,14 +37,36 @@ def register(sub: Any) -> None:
     p.set_defaults(func=run)
 
 
-BATCH = 20_000
-"""Attempts checked against the store and added per call (each a few short transactions)."""
+BATCH = 5_000
+"""Attempts checked and kept in the import's scratch database per write."""
+
+SHOW_BYTES = 2_000_000
+"""Files at least this long (about 5,000 attempts) get a progress bar at a terminal."""
 
 
-def _open(name: str, spool: Any) -> IO[str]:
-    """The file (or standard input, spooled to ``spool`` so it can be read twice) as text."""
+class _Counted(io.RawIOBase):
+    """A binary file that counts the bytes read from it (for the progress bar)."""
+
+    def __init__(self, raw: IO[bytes]) -> None:
+        self.raw = raw
+        self.done = 0
+
+    def readable(self) -> bool:
+        return True
+
+    def readinto(self, b: Any) -> int:
+        data = self.raw.read(len(b))
+        n = len(data)
+        b[:n] = data
+        self.done += n
+        return n
+
+
+def _open(name: str, spool: IO[bytes]) -> tuple[IO[bytes], int | None]:
+    """The file (or standard input, spooled to ``spool``) as bytes, and its size if known."""
     if name != "-":
-        return open(name, encoding="utf-8-sig", newline="")
+        fh = open(name, "rb")  # noqa: SIM115 (closed by the caller)
+        return fh, os.fstat(fh.fileno()).st_size
     raw = getattr(sys.stdin, "buffer", None)
     if raw is not None:
         shutil.copyfileobj(raw, spool)
@@ -51,78 +74,81 @@ def _open(name: str, spool: Any) -> IO[str]:
         for chunk in iter(lambda: sys.stdin.read(1 << 16), ""):
             spool.write(chunk.encode("utf-8"))
     spool.seek(0)
-    return io.TextIOWrapper(spool, encoding="utf-8-sig", newline="")
+    return spool, None
 
 
-def _check(fh: IO[str], name: str, fmt: str | None) -> tuple[str, int, list[tuple[int, str]]]:
-    """First pass: the format, how many good records and every bad line (no attempt kept)."""
-    from ..core import formats
-    from ..core.records import Attempt
-
+def _read(name: str, raw: IO[bytes], fmt: str | None) -> tuple[str, _Counted, IO[str]]:
+    """The format (given, or guessed from the name and first line) and the text to parse."""
     try:
-        first = fh.readline()
-        fh.seek(0)
-        fmt = fmt or formats.guess_format(name, first.split("\n", 1)[0])
-        good = 0
-        errors: list[tuple[int, str]] = []
-        for item in formats.iter_any(fh, fmt):
-            if isinstance(item, Attempt):
-                good += 1
-            else:
-                errors.append(item)
+        first = raw.readline().decode("utf-8-sig").split("\n", 1)[0]
+        raw.seek(0)
     except UnicodeDecodeError:
         raise ImportFileError(f"{name}: not UTF-8 text; export it again as UTF-8") from None
     except OSError as exc:
         raise ImportFileError(f"{name}: cannot read the file ({exc.strerror})") from None
-    return fmt, good, errors
-
-
-def _good(fh: IO[str], fmt: str) -> Iterator[Any]:
-    """Second pass: only the good records, as they are read."""
     from ..core import formats
-    from ..core.records import Attempt
 
-    fh.seek(0)
-    for item in formats.iter_any(fh, fmt):
-        if isinstance(item, Attempt):
-            yield item
+    counted = _Counted(raw)
+    text = io.TextIOWrapper(io.BufferedReader(counted), encoding="utf-8-sig", newline="")
+    return fmt or formats.guess_format(name, first), counted, text
 
 
 def run(args: argparse.Namespace) -> int:
+    from ..core import formats
+    from ..core.records import Attempt
     from ..core.store import Store
+    from ..core.store.importing import Staging
     from ..paths import db_path
-    from .progress import tracked
+    from .progress import tracked, working
 
     where = "standard input" if args.file == "-" else args.file
-    with tempfile.TemporaryFile("w+b") as spool:
+    errors: list[tuple[int, str]] = []
+    with tempfile.TemporaryFile("w+b") as spool, Staging() as staged:
         try:
-            fh = _open(args.file, spool)
+            raw, size = _open(args.file, spool)
         except OSError as exc:
             raise ImportFileError(f"{args.file}: cannot read the file ({exc.strerror})") from None
-        with fh:
-            fmt, good, errors = _check(fh, args.file, args.format)
-            if not args.json:
-                for _, msg in errors:
-                    print(f"{where}: {msg}", file=sys.stderr)
-            if errors and not args.skip_bad:
-                if args.json:
-                    print(
-                        json.dumps({"added": 0, "duplicates": 0, "bad": [list(e) for e in errors]})
-                    )
-                n = len(errors)
+        with raw:
+            fmt, counted, lines = _read(args.file, raw, args.format)
+            # one pass: each good record is checked and kept aside, each bad line noted
+            items = tracked(
+                formats.iter_any(lines, fmt), size, "importing",
+                done=lambda: counted.done, show_from=SHOW_BYTES,
+            )  # fmt: skip
+            batch: list[Attempt] = []
+            try:
+                for item in items:
+                    if isinstance(item, Attempt):
+                        batch.append(item)
+                        if len(batch) >= BATCH:
+                            staged.add(batch)
+                            batch = []
+                    else:
+                        errors.append(item)
+                staged.add(batch)
+            except UnicodeDecodeError:
                 raise ImportFileError(
-                    f"{where}: {n} bad line{'s' if n != 1 else ''}, nothing imported; fix "
-                    f"{'them' if n != 1 else 'it'} or use --skip-bad to import the good lines"
-                )
-            added = dups = 0
-            with Store.open(db_path()) as s:
-                # a batch at a time: earlier batches are committed, so a repeat of one of their
-                # attempts later in the file is found in the store and skipped as before
-                items = tracked(_good(fh, fmt), good, "importing")
-                for batch in iter(lambda: list(itertools.islice(items, BATCH)), []):
-                    a, d = s.import_attempts(batch)
-                    added += a
-                    dups += d
+                    f"{args.file}: not UTF-8 text; export it again as UTF-8"
+                ) from None
+            except OSError as exc:
+                raise ImportFileError(
+                    f"{args.file}: cannot read the file ({exc.strerror})"
+                ) from None
+        if not args.json:
+            for _, msg in errors:
+                print(f"{where}: {msg}", file=sys.stderr)
+        if errors and not args.skip_bad:
+            if args.json:
+                print(json.dumps({"added": 0, "duplicates": 0, "bad": [list(e) for e in errors]}))
+            n = len(errors)
+            raise ImportFileError(
+                f"{where}: {n} bad line{'s' if n != 1 else ''}, nothing imported; fix "
+                f"{'them' if n != 1 else 'it'} or use --skip-bad to import the good lines"
+            )
+        # the whole file is known: the new attempts go in at once (all or none)
+        big = size is None or size >= SHOW_BYTES
+        with Store.open(db_path()) as s, working("adding the attempts to the store", big):
+            added, dups = staged.move_into(s)
     if args.json:
         print(
             json.dumps(

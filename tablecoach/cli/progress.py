@@ -15,10 +15,17 @@ SHOW_FROM = 20_000
 """Items a job must count at least before a bar is worth drawing."""
 
 
-def tracked(items: Iterable[T], total: int | None, what: str) -> Iterator[T]:
+def tracked(
+    items: Iterable[T],
+    total: int | None,
+    what: str,
+    done: Callable[[], int] | None = None,
+    show_from: int = SHOW_FROM,
+) -> Iterator[T]:
     """``items`` unchanged; with a terminal on stderr and a long job (``total`` at least
-    SHOW_FROM), a Rich bar on stderr counts them off. Pipes and files never see a bar."""
-    if total is None or total < SHOW_FROM or not sys.stderr.isatty():
+    ``show_from``), a Rich bar on stderr counts them off, or follows ``done()`` (e.g. bytes
+    read of a file ``total`` bytes long). Pipes and files never see a bar."""
+    if total is None or total < show_from or not sys.stderr.isatty():
         yield from items
         return
     from rich.console import Console
@@ -26,13 +33,13 @@ def tracked(items: Iterable[T], total: int | None, what: str) -> Iterator[T]:
 
     with Progress(console=Console(stderr=True), transient=True) as bar:
         task = bar.add_task(what, total=total)
-        done = 0
+        count = 0
         for item in items:
             yield item
-            done += 1
-            if done % 1000 == 0:
-                bar.update(task, completed=done)
-        bar.update(task, completed=done)
+            count += 1
+            if count % 1000 == 0:
+                bar.update(task, completed=done() if done is not None else count)
+        bar.update(task, completed=done() if done is not None else count)
 
 
 @contextmanager
@@ -63,3 +70,16 @@ def status(after: float = 1.0) -> Iterator[Callable[[str], None] | None]:
     finally:
         if shown:
             shown[0].stop()
+
+
+@contextmanager
+def working(what: str, show: bool) -> Iterator[None]:
+    """A Rich spinner on stderr saying ``what`` while the body runs, for a step that counts
+    nothing off (only at a terminal, and when ``show``)."""
+    if not show or not sys.stderr.isatty():
+        yield
+        return
+    from rich.console import Console
+
+    with Console(stderr=True).status(what):
+        yield

@@ -8,7 +8,10 @@ from __future__ import annotations
 
 import csv
 import json
-from collections.abc import Iterable, Iterator
+import math
+from collections.abc import Iterable, Iterator, Sequence
+from datetime import datetime
+from json.encoder import encode_basestring
 from typing import IO, Any
 
 from . import validate
@@ -38,6 +41,70 @@ def write_jsonl(attempts: Iterable[Attempt], fh: IO[str]) -> int:
     n = 0
     for a in attempts:
         fh.write(json.dumps(attempt_to_json(a), ensure_ascii=False, allow_nan=False))
+        fh.write("\n")
+        n += 1
+    return n
+
+
+_STR = encode_basestring  # the json module's own string text (ensure_ascii=False)
+_NUM = float.__repr__  # the json module's own text of a finite float
+
+
+def _num(v: Any) -> str:
+    f = float(v)
+    if not math.isfinite(f):
+        raise ValueError(f"out of range float values are not JSON compliant: {f!r}")
+    return _NUM(f)
+
+
+def _pair(x: Any, y: Any) -> str:
+    return f"[{_num(x)}, {_num(y)}]"
+
+
+def jsonl_line(row: Sequence[Any]) -> str:
+    """One stored row (store.rows.COLS order: records.FLAT_FIELDS, times as stored text, rails
+    joined with commas) as its JSONL line, without building the Attempt: the same text as
+    ``json.dumps(attempt_to_json(rows.from_row(row)), ensure_ascii=False, allow_nan=False)``
+    (tests/core/test_formats.py holds the two together), at a fraction of the cost."""
+    (at, player, table, travel, rails, family, pocket, tx, ty, cx, cy, ox, oy, speed, english,
+     follow, aim_rail, given, used, result, land_rail, land_at, note, model, drill, zone,
+     miss_kind) = row[:27]  # fmt: skip
+    if len(at) == 32 and at.endswith("+00:00") and at[10] == "T":
+        when = at[:-6] + "Z"  # the stored form is when_text's with "+00:00" for "Z"
+    else:
+        when = when_text(datetime.fromisoformat(at))
+    target = (
+        f'{{"pocket": {_STR(pocket)}}}'
+        if pocket is not None
+        else f'{{"ball": {"null" if tx is None else _pair(tx, ty)}}}'
+    )
+    obj = "null" if ox is None else _pair(ox, oy)
+    landing = (
+        f'{{"rail": {_STR(land_rail)}, "at": {_num(land_at)}}}'
+        if land_rail is not None and land_at is not None
+        else "null"
+    )
+    rail_list = ", ".join(map(_STR, rails.split(",")))
+    kind = ""
+    if result == "miss":
+        kind = f', "miss_kind": {"null" if miss_kind is None else _STR(miss_kind)}'
+    return (
+        f'{{"v": {SCHEMA_VERSION}, "when": "{when}", "player": {_STR(player)}, '
+        f'"table": {_STR(table)}, "shot": {{"travel": {_STR(travel)}, "rails": [{rail_list}], '
+        f'"family": {_STR(family)}, "target": {target}, "cue": {_pair(cx, cy)}, '
+        f'"object": {obj}}}, "speed": {_num(speed)}, "english": {_num(english)}, '
+        f'"follow": {_num(follow)}, "aim": {{"rail": {_STR(aim_rail)}, "given": {_num(given)}, '
+        f'"used": {_num(used)}}}, "result": {_STR(result)}, "landing": {landing}, '
+        f'"note": {_STR(note)}, "model": {_STR(model)}, "drill": {_STR(drill)}, '
+        f'"zone": {_STR(zone)}{kind}}}'
+    )
+
+
+def write_jsonl_rows(rows: Iterable[Sequence[Any]], fh: IO[str]) -> int:
+    """``write_jsonl`` for stored rows (``jsonl_line``); returns how many were written."""
+    n = 0
+    for row in rows:
+        fh.write(jsonl_line(row))
         fh.write("\n")
         n += 1
     return n
@@ -268,10 +335,12 @@ __all__ = [
     "FORMATS",
     "attempt_to_row",
     "guess_format",
+    "jsonl_line",
     "read_any",
     "read_csv",
     "read_jsonl",
     "write_any",
     "write_csv",
     "write_jsonl",
+    "write_jsonl_rows",
 ]

@@ -210,6 +210,16 @@ _LONG_NUMBER = re.compile(
 """A key whose value (or a member of its list) is a number too long: to name it in the message."""
 
 
+_CHECKING = json.JSONDecoder(
+    parse_int=_parse_int, parse_float=_parse_float, parse_constant=_no_constant
+)
+"""json.loads with every number's length checked (a Python call per number)."""
+_PLAIN = json.JSONDecoder(parse_constant=_no_constant)
+"""json.loads refusing NaN and Infinity, numbers read by the C parser."""
+_NUMBER_RUN = re.compile("[-+0-9.eE]{" + str(MAX_NUMBER_CHARS + 1) + ",}")
+"""A run of characters that could make a number longer than MAX_NUMBER_CHARS."""
+
+
 def json_line(line: str) -> Any:
     """Parse one JSON text with bounded nesting and number length; InputError otherwise.
 
@@ -217,10 +227,11 @@ def json_line(line: str) -> Any:
     """
     if line.count("[") + line.count("{") > MAX_DEPTH and _depth(line) > MAX_DEPTH:
         raise InputError(f"JSON nested deeper than {MAX_DEPTH} levels")
+    # no run of number characters longer than a number may be: the C parser reads the numbers
+    # (the same values as the checking hooks give, without a Python call for each one)
+    decoder = _CHECKING if _NUMBER_RUN.search(line) else _PLAIN
     try:
-        return json.loads(
-            line, parse_int=_parse_int, parse_float=_parse_float, parse_constant=_no_constant
-        )
+        return decoder.decode(line)
     except InputError as exc:
         m = _LONG_NUMBER.search(line)
         if m is None:

@@ -277,3 +277,44 @@ def test_export_import_through_store(tmp_path: Path) -> None:
             again = s2.attempts()
         for a, b in zip(again, original, strict=True):
             _same(replace(a, session=None), replace(b, session=None))
+
+
+def test_jsonl_line_of_a_stored_row_equals_the_attempt_path(tmp_path: Path) -> None:
+    # Reference: json.dumps (standard library) of attempt_json.attempt_to_json of the Attempt
+    # read back from the same row: export writes rows straight to text and must not differ.
+    import sqlite3
+
+    from tablecoach.core.store.rows import from_row
+
+    from .test_stats_read import _fields, random_attempt
+
+    rng = np.random.default_rng(31)
+    items = [random_attempt(rng) for _ in range(300)]
+    base = _fields(items[0])
+    items += [
+        Attempt(**{**base, "result": "hit", "landing_rail": None, "landing_at": None}),
+        Attempt(**{**base, "result": "miss", "landing_rail": None, "landing_at": None,
+                   "miss_kind": "short"}),
+        Attempt(**{**base, "note": 'quote " back \\ slash \t tab, ü, 😀, new\nline'}),
+        Attempt(**{**base, "speed": 1e-300, "english": -0.0, "follow": 1.5}),
+    ]  # fmt: skip
+    path = tmp_path / "rows.sqlite3"
+    with Store.open(path) as s:
+        s.import_attempts(items)
+        s.log(items[5])  # one with a session
+    conn = sqlite3.connect(path)  # and a time stored in another form (an older writer)
+    conn.execute("UPDATE attempts SET at = '2024-03-01T01:30:00.250000+01:00' WHERE id = 3")
+    conn.commit()
+    conn.close()
+    n = 0
+    with Store.open(path) as s:
+        for rows in s.attempt_row_pages(batch=50):
+            for r in rows:
+                want = json.dumps(
+                    attempt_json.attempt_to_json(from_row(r, r[-1])),
+                    ensure_ascii=False,
+                    allow_nan=False,
+                )
+                assert formats.jsonl_line(r) == want
+                n += 1
+    assert n == len(items) + 1  # and the logged one (log adds even a repeat)

@@ -1,5 +1,6 @@
-"""Tests for the store's columnar read and the stats frame read from it (core/stats/read.py),
-against the slow way (Store.attempts, records.flatten and stats.frame.frame_of)."""
+"""Tests for the store's columnar read (Store.attempt_columns) and the history read from the
+store as codes (core/stats/coded.py), against the slow way (Store.attempts, records.flatten,
+stats.frame.frame_of and summarize over Attempts)."""
 
 from __future__ import annotations
 
@@ -13,10 +14,9 @@ import pytest
 
 from tablecoach.core import demo
 from tablecoach.core.records import FLAT_FIELDS, Attempt, ShotRecord, flatten, validate_attempt
-from tablecoach.core.stats import read
-from tablecoach.core.stats.frame import Frame, frame_of
+from tablecoach.core.stats.coded import summarize_store
+from tablecoach.core.stats.frame import frame_of
 from tablecoach.core.stats.history import history_dict, summarize
-from tablecoach.core.stats.read import JOINED_FIELDS, read_frame, split_keys
 from tablecoach.core.stats.stamps import parse_times
 from tablecoach.core.store import Store
 from tablecoach.core.store import attempts as store_attempts
@@ -134,22 +134,6 @@ def assert_raw_columns_equal(s: Store, query: AttemptQuery, ref: list[Attempt]) 
             assert _same(x, y), (i, name, x, y)
 
 
-def assert_frames_equal(fast: Frame, slow: Frame) -> None:
-    """A frame read from the store equals the frame of the same Attempt objects, field by
-    field; times to the microsecond (``when``), the float seconds to a microsecond."""
-    assert len(fast) == len(slow)
-    for name in Frame.__dataclass_fields__:
-        if name in ("attempts", "us", "ts"):
-            continue
-        x, y = getattr(fast, name), getattr(slow, name)
-        if isinstance(x, np.ndarray):
-            assert x.shape == y.shape and np.array_equal(x, y, equal_nan=True), name
-        else:
-            assert x == y, name
-    assert np.allclose(fast.ts, slow.ts, rtol=0.0, atol=1e-6)
-    assert [fast.when(i) for i in range(len(fast))] == [slow.when(i) for i in range(len(slow))]
-
-
 def filter_cases(s: Store) -> list[dict[str, object]]:
     sid = s.sessions()[2].id
     mid = T0 + timedelta(days=13, hours=5)
@@ -175,26 +159,6 @@ def test_columns_equal_flattened_attempts_for_every_filter(filled: Store) -> Non
         q = AttemptQuery(**kw)  # type: ignore[arg-type]
         assert_raw_columns_equal(filled, q, filled.attempts(q))
     assert filled.attempt_columns(AttemptQuery(player="nobody"), ["when"]) == [(), (), ()]
-
-
-def test_frame_read_equals_frame_of_attempts_for_every_filter(filled: Store) -> None:
-    # Reference: stats.frame.frame_of over the Attempt objects of the same query.
-    for kw in filter_cases(filled):
-        q = AttemptQuery(**kw)  # type: ignore[arg-type]
-        assert_frames_equal(read_frame(filled, q), frame_of(filled.attempts(q)))
-    assert len(read_frame(filled, AttemptQuery(player="nobody"))) == 0
-
-
-@pytest.mark.parametrize("rows", [1, 7, 64])
-def test_frame_read_in_small_pages_equals_frame_of_attempts(
-    filled: Store, rows: int, monkeypatch: pytest.MonkeyPatch
-) -> None:
-    # read_frame reads a page of rows at a time (bounded memory); pages of any size must give
-    # the frame built from the Attempts themselves
-    monkeypatch.setattr(read, "PAGE_ROWS", rows)
-    for case in filter_cases(filled)[:4]:
-        q = AttemptQuery(**case)  # type: ignore[arg-type]
-        assert_frames_equal(read.read_frame(filled, q), frame_of(filled.attempts(q)))
 
 
 def test_random_data_has_absent_positions_and_both_orders(filled: Store) -> None:
@@ -257,12 +221,12 @@ def test_odd_stored_time_is_read_as_attempts_reads_it(tmp_path: Path) -> None:
     conn.close()
     with Store.open(path) as s:
         assert_raw_columns_equal(s, EVERYTHING, s.attempts())
-        assert_frames_equal(read_frame(s), frame_of(s.attempts()))
+        assert summarize_store(s, tz=UTC) == summarize(s.attempts(), tz=UTC)
 
 
 def test_summarize_columns_equals_summarize_attempts(filled: Store) -> None:
     # Reference: stats.history.summarize over Attempt objects (itself held to the one-concept
-    # functions in test_history.py); the columnar read must give the identical History.
+    # functions in test_history.py); the read as codes must give the identical History.
     for tz in (UTC, ZoneInfo("Europe/Lisbon")):
         for kw in filter_cases(filled):
             slow = summarize(
@@ -270,8 +234,9 @@ def test_summarize_columns_equals_summarize_attempts(filled: Store) -> None:
                 tz=tz,
                 today=T0.date() + timedelta(days=30),
             )
-            fast = summarize(
-                read_frame(filled, AttemptQuery(**kw)),  # type: ignore[arg-type]
+            fast = summarize_store(
+                filled,
+                AttemptQuery(**kw),  # type: ignore[arg-type]
                 tz=tz,
                 today=T0.date() + timedelta(days=30),
             )
@@ -286,8 +251,6 @@ def test_summarize_columns_with_a_custom_zone_key(filled: Store) -> None:
     slow = summarize(filled.attempts(), tz=UTC, zone_fn=zone)
     fast = summarize(frame_of(filled.attempts()), tz=UTC, zone_fn=zone)
     assert fast == slow and set(fast.zones) == set(TABLES)
-    with pytest.raises(ValueError, match="needs the attempts themselves"):
-        summarize(read_frame(filled), tz=UTC, zone_fn=zone)
 
 
 def test_demo_club_history_same_both_ways(tmp_path: Path) -> None:
@@ -302,7 +265,7 @@ def test_demo_club_history_same_both_ways(tmp_path: Path) -> None:
         assert [i.started for i in infos] == [x.attempts[0].when for x in club.sessions]
         look = {t.name: t for t in club.tables}.get
         slow = summarize(s.attempts(), tz=UTC, today=now.date(), table_of=look)
-        fast = summarize(read_frame(s), tz=UTC, today=now.date(), table_of=look)
+        fast = summarize_store(s, tz=UTC, today=now.date(), table_of=look)
         assert fast == slow and len(fast.bias) > 0
 
 
@@ -318,37 +281,21 @@ def test_start_session_started_time(tmp_path: Path) -> None:
             s.start_session("ann", "9ft", "mixed", started=datetime(2025, 6, 1))
 
 
-def test_a_value_holding_the_key_separator_is_read_field_by_field(
+def test_a_name_holding_a_control_character_is_read_as_it_is(
     tmp_path: Path, monkeypatch: pytest.MonkeyPatch
 ) -> None:
-    # The key fields are joined with char(31) in SQL; a name holding it must not be split.
     # New names with control characters are refused (issue 15), but a store written before
-    # that may hold them: the write-side check is lifted here to make such a store.
+    # that may hold them: the write-side check is lifted here to make such a store. The read
+    # as codes compares whole names in SQL, so such a name is one player like any other.
     monkeypatch.setattr(store_attempts, "check_attempt", validate_attempt)
     rng = np.random.default_rng(11)
     with Store.open(tmp_path / "sep.sqlite3") as s:
         odd = Attempt(**{**_fields(random_attempt(rng)), "player": "a\x1fb", "drill": "x\x1f"})
         s.log_many([random_attempt(rng), odd, random_attempt(rng)])
-        joined = s.attempt_columns(EVERYTHING, (), JOINED_FIELDS)[0]
-        assert split_keys(joined, JOINED_FIELDS) is None  # the joined read is refused
-        frame = read_frame(s)
-        assert "a\x1fb" in frame.players
-        assert_frames_equal(frame, frame_of(s.attempts()))
-        one = read_frame(s, AttemptQuery(player="a\x1fb"))
-        assert one.players == ("a\x1fb",) and len(one) == 1
-
-
-def test_keyed_columns_group_like_the_tuples(filled: Store) -> None:
-    cols = filled.attempt_columns(EVERYTHING, JOINED_FIELDS, JOINED_FIELDS)
-    split = split_keys(cols[len(JOINED_FIELDS)], JOINED_FIELDS)
-    assert split is not None
-    key, combos = split
-    for j, name in enumerate(JOINED_FIELDS):
-        per_row = tuple(combos[k][j] for k in key.tolist())
-        want = cols[j] if name != "rails" else tuple(tuple(r.split(",")) for r in cols[j])
-        assert per_row == want, name
-    firsts = [key.tolist().index(k) for k in range(len(combos))]
-    assert firsts == sorted(firsts)  # numbered in order of first appearance
+        h = summarize_store(s, tz=UTC)
+        assert "a\x1fb" in h.players and h == summarize(s.attempts(), tz=UTC)
+        one = summarize_store(s, AttemptQuery(player="a\x1fb"), tz=UTC)
+        assert one.players == ("a\x1fb",) and one.rate.attempts == 1
 
 
 def plan(s: Store, **kw: object) -> str:

@@ -17,8 +17,8 @@ import numpy as np
 import pytest
 
 from tablecoach.core.records import Attempt, RecordError, ShotRecord
-from tablecoach.core.stats.frame import frame_of
-from tablecoach.core.stats.read import read_frame
+from tablecoach.core.stats.coded import summarize_store
+from tablecoach.core.stats.history import summarize
 from tablecoach.core.store import Store
 from tablecoach.core.store.errors import StoreError
 from tablecoach.core.store.query import EVERYTHING, AttemptQuery
@@ -26,8 +26,6 @@ from tablecoach.core.store.rows import attempt_identity
 from tablecoach.core.store.schema import SCHEMA_VERSION
 from tablecoach.core.table import BUILTIN_TABLES, TableError
 from tablecoach.core.table_files import table_from_mapping
-
-from .test_stats_read import assert_frames_equal
 
 REPO = Path(__file__).resolve().parents[2]
 
@@ -405,8 +403,8 @@ def test_migrates_version_2_in_place(db: Path) -> None:
         # time order: the short miss has b's time and a later id
         assert rail == (None, "left", None, "head")
         assert at[0] is None and at[2] is None and kind[2] == "short"
-        # the frame read from the store equals the frame of the attempts, no landing included
-        assert_frames_equal(read_frame(s), frame_of(s.attempts()))
+        # the history read as codes equals the history of the attempts, no landing included
+        assert summarize_store(s, tz=UTC) == summarize(s.attempts(), tz=UTC)
     c = sqlite3.connect(db)
     idx = {r[0] for r in c.execute("SELECT name FROM sqlite_master WHERE type = 'index'")}
     assert {"attempts_session", "attempts_ident", "attempts_at", "attempts_player_table_at"} <= idx

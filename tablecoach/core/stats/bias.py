@@ -5,6 +5,7 @@ from __future__ import annotations
 import math
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 
@@ -60,11 +61,29 @@ def offsets_of(
         if spec is None:
             continue
         idx = np.flatnonzero(cols.shape == g)
-        lc, at, sense = ideal_landings(spec, cols.start[idx], rails, aim_rail, cols.aim_used[idx])
-        logged = perimeter_array(cols.landing_rail[idx], cols.landing_at[idx])
-        diff = logged - perimeter_array(lc, at)
-        diff = (diff + 12.0) % 24.0 - 12.0
-        out[idx] = diff * sense
+        out[idx] = offsets_on(
+            spec, cols.start[idx], len(rails), aim_rail, cols.aim_used[idx],
+            cols.landing_rail[idx], cols.landing_at[idx],
+        )  # fmt: skip
+    return out
+
+
+def offsets_on(
+    spec: TableSpec,
+    starts: np.ndarray,
+    rails: int,
+    aim_rail: str,
+    aim_used: np.ndarray,
+    landing_rail: np.ndarray,
+    landing_at: np.ndarray,
+) -> np.ndarray:
+    """Signed landing offsets (diamonds, + long) of attempts on one table, all with ``rails``
+    rails and the aim read on ``aim_rail`` (their first), each row on its own."""
+    lc, at, sense = ideal_landings(spec, starts, ("",) * rails, aim_rail, aim_used)
+    logged = perimeter_array(landing_rail, landing_at)
+    diff = logged - perimeter_array(lc, at)
+    diff = (diff + 12.0) % 24.0 - 12.0
+    out: np.ndarray = diff * sense
     return out
 
 
@@ -86,15 +105,33 @@ def bias_of(cols: Frame, offsets: np.ndarray) -> list[LandingBias]:
     if len(cols) == 0:
         return []
     band, bands = codes(speed_bands(cols.speed).tolist())
-    key = cols.family * len(bands) + band
-    ok = ~np.isnan(offsets)
+    return bias_by_codes(cols.family, cols.families, band, bands, offsets)
+
+
+def bias_by_codes(
+    family: np.ndarray,
+    families: Sequence[str],
+    band: np.ndarray,
+    bands: Sequence[Any],
+    offsets: np.ndarray,
+) -> list[LandingBias]:
+    """Landing bias by family and speed band from each attempt's family and band codes (which
+    index the names) and its offset (NaN: none), attempts in time order."""
+    if len(family) == 0:
+        return []
+    idx = np.flatnonzero(~np.isnan(offsets))
+    key = (family * len(bands) + band)[idx]
+    order = np.argsort(key, kind="stable")  # each group's offsets stay in time order
+    sk, vals = key[order], offsets[idx[order]]
+    cuts = np.flatnonzero(np.r_[True, sk[1:] != sk[:-1], True]) if len(sk) else np.zeros(1, int)
     out = []
-    for k in np.unique(key[ok]).tolist():
-        v = offsets[(key == k) & ok]
+    for a, b in zip(cuts[:-1].tolist(), cuts[1:].tolist(), strict=True):
+        k = int(sk[a])
+        v = vals[a:b]
         sd = float(v.std(ddof=1)) if len(v) > 1 else 0.0
         out.append(
             LandingBias(
-                cols.families[k // len(bands)],
+                families[k // len(bands)],
                 str(bands[k % len(bands)]),
                 len(v),
                 float(v.mean()),

@@ -5,7 +5,7 @@ from __future__ import annotations
 import operator
 from collections.abc import Hashable, Iterable, Sequence
 from dataclasses import dataclass
-from datetime import UTC, datetime, timedelta
+from datetime import datetime
 from itertools import chain, repeat
 from typing import Any
 
@@ -18,7 +18,6 @@ RAIL_CODE = {"head": 0, "foot": 1, "left": 2, "right": 3}
 """Rail name -> the code the frame keeps (``Frame.landing_rail``, ``ideal_landings``)."""
 RAIL_NAMES = tuple(RAIL_CODE)
 """Rail code -> name."""
-_UNIX_EPOCH = datetime(1970, 1, 1, tzinfo=UTC)
 _GET = operator.attrgetter(
     "when", "result", "shot", "session", "speed", "table", "aim_rail", "aim_used",
     "landing_rail", "landing_at", "player", "id",
@@ -38,9 +37,8 @@ class Frame:
     """Attempts as numpy columns, in time order (``attempts`` in that order; ``order[i]`` is
     the position of ``attempts[i]`` in the input). Integer code arrays (``family``, ``session``,
     ``shape``, ``player``, ``table``) index the tuple beside them; ``start`` is the travelling
-    ball's start in diamonds (object ball for banks). ``frame_of`` builds one from Attempts;
-    read straight from the store (``read.read_frame``), ``attempts`` is empty and ``us`` holds
-    each time in microseconds."""
+    ball's start in diamonds (object ball for banks). ``frame_of`` builds one from Attempts
+    (the history of a whole store is read as codes instead: stats/coded.py)."""
 
     attempts: tuple[Attempt, ...]
     order: np.ndarray
@@ -61,17 +59,13 @@ class Frame:
     players: tuple[str, ...]
     table: np.ndarray
     tables: tuple[str, ...]
-    us: np.ndarray | None = None
 
     def __len__(self) -> int:
         return len(self.ts)
 
     def when(self, i: int) -> datetime:
-        """The time of attempt i (the Attempt's own ``when`` where there are Attempts)."""
-        if self.attempts:
-            return self.attempts[i].when
-        assert self.us is not None
-        return _UNIX_EPOCH + timedelta(microseconds=int(self.us[i]))
+        """The time of attempt i (the Attempt's own ``when``)."""
+        return self.attempts[i].when
 
 
 def ordered(attempts: Iterable[Attempt]) -> list[Attempt]:
@@ -92,7 +86,7 @@ def _frame(items: list[Attempt]) -> Frame:
         e = np.zeros(0)
         ei = np.zeros(0, np.int64)
         return Frame((), ei, e, np.zeros(0, bool), ei, (), ei, (), e, np.zeros((0, 2)),
-                       ei, (), e, ei, e, ei, (), ei, (), np.zeros(0, np.int64))  # fmt: skip
+                       ei, (), e, ei, e, ei, (), ei, ())  # fmt: skip
     rows = list(map(_GET, items))
     (whens, results, shots_, sessions, speeds, tables, aim_rails, aim_used, lrails, lat,
      players, ids) = zip(*rows, strict=True)  # fmt: skip

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from collections.abc import Callable, Hashable, Iterable, Mapping
+from collections.abc import Callable, Hashable, Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
 from datetime import date, datetime, tzinfo
 from typing import Any
@@ -15,7 +15,7 @@ from ..table import TableSpec
 from .bias import LandingBias, bias_of, offsets_of
 from .frame import Frame, codes, frame_of
 from .rates import Rate, group_rates, wilson
-from .sessions import SessionSummary, sessions_of
+from .sessions import CodedRows, SessionSummary, sessions_by_codes
 from .streaks import Streak, day_streak, group_streaks, streak_of_array
 from .trends import WeekRate, day_of, local_days, weeks_from_day_numbers
 from .zones import zone_codes_of, zone_key
@@ -63,13 +63,11 @@ def summarize(
     ``table_of`` resolves table names for the landing bias (None: built-in tables only).
     Works on the columnar frame: the same numbers as the one-concept functions of the other
     stats modules (the tests hold them to each other), fast enough for a hundred thousand
-    attempts. ``attempts`` may be a frame read from the store (``read.read_frame``): the same
-    History as for the Attempts it holds, without building any.
+    attempts. For a whole store, ``coded.summarize_store`` reads the same History without
+    building any Attempt.
     """
     with quiet_gc():
         cols = attempts if isinstance(attempts, Frame) else frame_of(attempts)
-        if zone_fn is not None and len(cols) and not cols.attempts:
-            raise ValueError("a custom zone key needs the attempts themselves, not a frame read")
         return _summarize(cols, tz, today, zone_fn, table_of, confidence, with_bias)
 
 
@@ -83,11 +81,31 @@ def _summarize(
     with_bias: bool,
 ) -> History:
     """The body of ``summarize`` (which runs it with the garbage collector paused)."""
-    n = len(cols)
+    if zone_fn is not None:
+        zcode, zkeys = codes([zone_fn(a) for a in cols.attempts])
+    else:
+        zcode, zkeys = zone_codes_of(cols)
+    bias = tuple(bias_of(cols, offsets_of(cols, table_of))) if with_bias else ()
+    return history_of_codes(cols, cols.ts, zcode, zkeys, bias, tz, today, confidence)
+
+
+def history_of_codes(
+    cols: CodedRows,
+    ts: np.ndarray,
+    zcode: np.ndarray,
+    zkeys: Sequence[Any],
+    bias: tuple[LandingBias, ...],
+    tz: tzinfo | None,
+    today: date | None,
+    confidence: float,
+) -> History:
+    """The History of coded rows in time order (``ts``: each one's UTC time in seconds), their
+    zone codes (indexing ``zkeys``) and landing bias: what every reader of attempts ends in."""
     hit = cols.hit
+    n = len(hit)
     if today is None:
         today = datetime.now(tz).date() if tz is not None else datetime.now().astimezone().date()
-    days = local_days(cols.ts, tz)
+    days = local_days(ts, tz)
     uniq_days = sorted({day_of(d) for d in np.unique(days)})
     nf, ns = len(cols.families), len(cols.sessions)
     fam_rates = group_rates(cols.family, hit, nf, confidence)
@@ -98,17 +116,12 @@ def _summarize(
     for g, f in enumerate(cols.families):
         sel = cols.family == g
         family_weeks[f] = tuple(weeks_from_day_numbers(days[sel], hit[sel], confidence))
-    if zone_fn is not None:
-        zcode, zkeys = codes([zone_fn(a) for a in cols.attempts])
-    else:
-        zcode, zkeys = zone_codes_of(cols)
     nz = len(zkeys)
     zr = group_rates(zcode, hit, nz, confidence)
     zc, zb = group_streaks(zcode, hit, nz)
     ses_streaks = [Streak(int(c), int(b)) for c, b in zip(ses_cur, ses_best, strict=True)]
-    bias = tuple(bias_of(cols, offsets_of(cols, table_of))) if with_bias else ()
     return History(
-        rate=wilson(int(hit.sum()), len(hit), confidence),
+        rate=wilson(int(hit.sum()), n, confidence),
         streak=streak_of_array(hit),
         days=day_streak(uniq_days, today),
         families={f: fam_rates[g] for g, f in enumerate(cols.families)},
@@ -120,12 +133,12 @@ def _summarize(
         session_streaks={s: ses_streaks[g] for g, s in enumerate(cols.sessions)},
         weeks=tuple(weeks_from_day_numbers(days, hit, confidence)),
         family_weeks=family_weeks,
-        sessions=tuple(sessions_of(cols, ses_rates, ses_streaks)),
+        sessions=tuple(sessions_by_codes(cols, ses_rates, ses_streaks)),
         bias=bias,
         first=cols.when(0) if n else None,
         last=cols.when(n - 1) if n else None,
-        players=tuple(sorted(cols.players)),
-        tables=tuple(sorted(cols.tables)),
+        players=tuple(sorted(set(cols.players))),
+        tables=tuple(sorted(set(cols.tables))),
     )
 
 

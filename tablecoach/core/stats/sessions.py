@@ -5,7 +5,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import datetime
-from typing import Any
+from typing import Any, Protocol
 
 import numpy as np
 
@@ -62,7 +62,15 @@ def sessions_of(
     cols: Frame, rates: Sequence[Rate], streaks: Sequence[Streak]
 ) -> list[SessionSummary]:
     """``session_list`` over a frame, given each session code's rate and streak."""
-    if not len(cols):
+    return sessions_by_codes(cols, rates, streaks)
+
+
+def sessions_by_codes(
+    cols: CodedRows, rates: Sequence[Rate], streaks: Sequence[Streak]
+) -> list[SessionSummary]:
+    """``session_list`` over coded rows in time order (a Frame is one), given each session
+    code's rate and streak."""
+    if not len(cols.session):
         return []
     nf = len(cols.families)
     order = np.argsort(cols.session, kind="stable")
@@ -92,3 +100,28 @@ def sessions_of(
         )
     out.sort(key=lambda s: s.start)
     return out
+
+
+class CodedRows(Protocol):
+    """Attempts as integer codes in time order, each code array indexing the names beside it
+    (stats.frame.Frame is one; so is stats.coded's read of the store)."""
+
+    @property
+    def hit(self) -> np.ndarray: ...
+    @property
+    def family(self) -> np.ndarray: ...
+    @property
+    def families(self) -> tuple[str, ...]: ...
+    @property
+    def session(self) -> np.ndarray: ...
+    @property
+    def sessions(self) -> tuple[Any, ...]: ...
+    @property
+    def player(self) -> np.ndarray: ...
+    @property
+    def players(self) -> tuple[str, ...]: ...
+    @property
+    def table(self) -> np.ndarray: ...
+    @property
+    def tables(self) -> tuple[str, ...]: ...
+    def when(self, i: int) -> datetime: ...

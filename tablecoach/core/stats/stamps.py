@@ -22,37 +22,47 @@ def parse_times(texts: Sequence[str]) -> np.ndarray:
     n = len(texts)
     if n == 0:
         return np.zeros(0, "datetime64[us]")
-    joined = "".join(texts)
-    raw = None
-    if len(joined) == ISO_LEN * n and joined.isascii():
-        raw = np.frombuffer(joined.encode("ascii"), np.uint8).reshape(n, ISO_LEN)
-    if raw is not None and iso_form_ok(raw):
-        d = raw.astype(np.int64) - ord("0")
-
-        def num(a: int, b: int) -> np.ndarray:
-            v = np.zeros(n, np.int64)
-            for k in range(a, b):
-                v = v * 10 + d[:, k]
-            return v
-
-        ymd = num(0, 4) * 10000 + num(5, 7) * 100 + num(8, 10)
-        days, inv = np.unique(ymd, return_inverse=True)
-        try:
-            ordinals = np.array(
-                [datetime(y // 10000, y // 100 % 100, y % 100).toordinal() for y in days.tolist()],
-                np.int64,
-            )
-        except ValueError:
-            ordinals = None
-        hh, mm, ss = num(11, 13), num(14, 16), num(17, 19)
-        if ordinals is not None and (hh < 24).all() and (mm < 60).all() and (ss < 60).all():
-            secs = (ordinals[inv.reshape(-1)] - EPOCH_DAY) * 86400 + hh * 3600 + mm * 60 + ss
-            us: np.ndarray = secs * 1_000_000 + num(20, 26)
-            return us.astype("datetime64[us]")
+    us = parse_joined("".join(texts), n)
+    if us is not None:
+        return us.astype("datetime64[us]")
     one = timedelta(microseconds=1)
     epoch = datetime(1970, 1, 1, tzinfo=UTC)
     slow = [(datetime.fromisoformat(t).astimezone(UTC) - epoch) // one for t in texts]
     return np.array(slow, np.int64).astype("datetime64[us]")
+
+
+def parse_joined(joined: str, n: int) -> np.ndarray | None:
+    """``n`` stored times written one after another (``iso_utc`` text, ISO_LEN characters each)
+    as microseconds since 1970 (int64), or None when the text is not exactly that."""
+    if n == 0:
+        return np.zeros(0, np.int64)
+    if len(joined) != ISO_LEN * n or not joined.isascii():
+        return None
+    raw = np.frombuffer(joined.encode("ascii"), np.uint8).reshape(n, ISO_LEN)
+    if not iso_form_ok(raw):
+        return None
+
+    def num(a: int, b: int) -> np.ndarray:
+        v = np.zeros(n, np.int64)
+        for k in range(a, b):
+            v = v * 10 + (raw[:, k] - ord("0"))
+        return v
+
+    ymd = num(0, 4) * 10000 + num(5, 7) * 100 + num(8, 10)
+    days, inv = np.unique(ymd, return_inverse=True)
+    try:
+        ordinals = np.array(
+            [datetime(y // 10000, y // 100 % 100, y % 100).toordinal() for y in days.tolist()],
+            np.int64,
+        )
+    except ValueError:
+        return None
+    hh, mm, ss = num(11, 13), num(14, 16), num(17, 19)
+    if not ((hh < 24).all() and (mm < 60).all() and (ss < 60).all()):
+        return None
+    secs = (ordinals[inv.reshape(-1)] - EPOCH_DAY) * 86400 + hh * 3600 + mm * 60 + ss
+    us: np.ndarray = secs * 1_000_000 + num(20, 26)
+    return us
 
 
 def iso_form_ok(raw: np.ndarray) -> bool:

@@ -80,7 +80,9 @@ def local_days(ts: np.ndarray, tz: tzinfo | None = None) -> np.ndarray:
     if len(ts) == 0:
         return np.zeros(0, np.int64)
     hours = np.floor(ts / 3600.0).astype(np.int64)
-    uniq, inv = np.unique(hours, return_inverse=True)
+    # every distinct hour starts some run of equal hours: sort only the runs' first values
+    uniq = np.unique(hours[np.flatnonzero(np.r_[True, hours[1:] != hours[:-1]])])
+    inv = np.searchsorted(uniq, hours)
 
     def offset(t: float) -> float:
         d = datetime.fromtimestamp(t, tz) if tz is not None else datetime.fromtimestamp(t)

@@ -23,18 +23,34 @@ def zone_codes_of(cols: Frame) -> tuple[np.ndarray, tuple[Any, ...]]:
     col = np.clip(np.floor(cols.start[:, 0] / coach.COL_WIDTH), 0, coach.ZONE_COLS - 1)
     row = np.clip(np.floor(cols.start[:, 1] / coach.ROW_HEIGHT), 0, coach.ZONE_ROWS - 1)
     band, bands = codes(speed_bands(cols.speed).tolist())
+    return zones_of_cells(
+        cols.family, cols.families, col.astype(np.int64), row.astype(np.int64), band, bands
+    )
+
+
+def zones_of_cells(
+    family: np.ndarray,
+    families: Sequence[str],
+    col: np.ndarray,
+    row: np.ndarray,
+    band: np.ndarray,
+    bands: Sequence[Any],
+) -> tuple[np.ndarray, tuple[Any, ...]]:
+    """Zone codes (ordered by family code, column, row, band code) and the Zone of each, from
+    each attempt's family code, grid cell and speed band code (the codes index the names)."""
+    if len(family) == 0:
+        return np.zeros(0, np.int64), ()
     nb = len(bands)
-    raw = (
-        (cols.family * coach.ZONE_COLS + col.astype(np.int64)) * coach.ZONE_ROWS
-        + row.astype(np.int64)
-    ) * nb + band
-    uniq, inv = np.unique(raw, return_inverse=True)
+    raw = ((family * coach.ZONE_COLS + col) * coach.ZONE_ROWS + row) * nb + band
+    # every distinct value starts some run of equal values: sort only the runs' first values
+    uniq = np.unique(raw[np.flatnonzero(np.r_[True, raw[1:] != raw[:-1]])])
+    inv = np.searchsorted(uniq, raw)
     zones = []
     for r in uniq.tolist():
         b, r = r % nb, r // nb
         rw, r = r % coach.ZONE_ROWS, r // coach.ZONE_ROWS
         cl, f = r % coach.ZONE_COLS, r // coach.ZONE_COLS
-        zones.append(coach.Zone(cols.families[f], cl, rw, str(bands[b])))
+        zones.append(coach.Zone(families[f], cl, rw, str(bands[b])))
     return inv.reshape(-1).astype(np.int64), tuple(zones)
 
 

@@ -29,12 +29,6 @@ IMPORT_CHUNK = 2000
 READ_BATCH = 5000
 """Attempts ``Attempts.iter_attempts`` reads per query."""
 
-COLUMN_BATCH = 20_000
-"""Rows ``Attempts.attempt_column_pages`` reads per query."""
-
-KEY_SEP = "\x1f"
-"""Joins text fields read as one (``Attempts.attempt_columns``): ASCII unit separator, char(31)."""
-
 
 @contextmanager
 def quiet_gc() -> Iterator[None]:
@@ -111,9 +105,21 @@ class Attempts(Connection):
         """The attempts ``query`` matches in the order of ``attempts``, read ``batch`` rows at a
         time (keyset paging on time then id): memory stays bounded whatever the size of the
         history, and no read holds the connection between batches."""
-        where, args = query.where()
+        for rows in self.attempt_row_pages(query, batch):
+            with quiet_gc():
+                items = [from_row(r, r[-1]) for r in rows]
+            del rows
+            yield from items
+
+    def attempt_row_pages(
+        self, query: AttemptQuery = EVERYTHING, batch: int = READ_BATCH
+    ) -> Iterator[list[tuple[Any, ...]]]:
+        """``iter_attempts`` as the stored rows (``rows.COLS`` then the id), a page at a time:
+        for a writer that needs no Attempt (``formats.jsonl_line``)."""
         after: tuple[str, int] | None = None
         while True:
+            # the time bound is raised to the last row's time: the index search starts there
+            where, args = query.where(None if after is None else after[0])
             page = where if after is None else where + " AND (at, id) > (?, ?)"
             more = list(args) if after is None else [*args, *after]
             with self.reading() as c:
@@ -124,10 +130,7 @@ class Attempts(Connection):
             if not rows:
                 return
             after = (rows[-1][0], rows[-1][-1])
-            with quiet_gc():
-                items = [from_row(r, r[-1]) for r in rows]
-            del rows
-            yield from items
+            yield rows
 
     def latest_attempts(
         self, query: AttemptQuery, n: int, *, zone: str | None = None, landed: bool = False
@@ -199,25 +202,20 @@ class Attempts(Connection):
         with self.reading() as c:
             return int(c.execute(f"SELECT COUNT(*) FROM attempts{where}", args).fetchone()[0])
 
-    def attempt_columns(
-        self, query: AttemptQuery, fields: Sequence[str], joined: Sequence[str] = ()
-    ) -> list[tuple[Any, ...]]:
+    def attempt_columns(self, query: AttemptQuery, fields: Sequence[str]) -> list[tuple[Any, ...]]:
         """The attempts ``query`` matches (same order as ``attempts``) as columns of stored
         values, in one SELECT, without building any Attempt.
 
         One tuple per name in ``fields`` (records.FLAT_FIELDS names; times as stored text,
-        rails as comma-joined text, absent numbers None); then, if ``joined`` is not empty, one
-        tuple of those fields' texts joined with KEY_SEP per row; then the ids and the session
-        ids (None where there is none).
+        rails as comma-joined text, absent numbers None); then the ids and the session ids (None
+        where there is none).
         """
-        unknown = [f for f in (*fields, *joined) if f not in FIELD_COLUMN]
+        unknown = [f for f in fields if f not in FIELD_COLUMN]
         if unknown:
             raise StoreError(
                 f"unknown attempt field {unknown[0]!r}: fields are {', '.join(FLAT_FIELDS)}"
             )
         exprs = [FIELD_COLUMN[f] for f in fields]
-        if joined:
-            exprs.append(" || char(31) || ".join(FIELD_COLUMN[f] for f in joined))
         select = ", ".join([*exprs, "id", "session_id"])
         where, args = query.where()
         with quiet_gc():
@@ -228,43 +226,6 @@ class Attempts(Connection):
             if not rows:
                 return [()] * (len(exprs) + 2)
             return list(zip(*rows, strict=True))
-
-    def attempt_column_pages(
-        self,
-        query: AttemptQuery,
-        fields: Sequence[str],
-        joined: Sequence[str] = (),
-        batch: int = COLUMN_BATCH,
-    ) -> Iterator[list[tuple[Any, ...]]]:
-        """``attempt_columns`` a page of ``batch`` rows at a time (keyset paging on time then
-        id, the same order): the caller turns each page into arrays before the next is read,
-        so no more than one page of Python values is alive at once."""
-        unknown = [f for f in (*fields, *joined) if f not in FIELD_COLUMN]
-        if unknown:
-            raise StoreError(
-                f"unknown attempt field {unknown[0]!r}: fields are {', '.join(FLAT_FIELDS)}"
-            )
-        exprs = [FIELD_COLUMN[f] for f in fields]
-        if joined:
-            exprs.append(" || char(31) || ".join(FIELD_COLUMN[f] for f in joined))
-        select = ", ".join([*exprs, "id", "session_id", "at"])
-        where, args = query.where()
-        after: tuple[str, int] | None = None
-        while True:
-            page = where if after is None else where + " AND (at, id) > (?, ?)"
-            more = list(args) if after is None else [*args, *after]
-            with quiet_gc():
-                with self.reading() as c:
-                    rows = c.execute(
-                        f"SELECT {select} FROM attempts{page} ORDER BY at, id LIMIT ?",
-                        (*more, max(int(batch), 1)),
-                    ).fetchall()
-                if not rows:
-                    return
-                after = (rows[-1][-1], rows[-1][-3])
-                cols = list(zip(*rows, strict=True))[:-1]
-                del rows
-            yield cols
 
     def import_attempts(self, items: Sequence[Attempt]) -> tuple[int, int]:
         """Add attempts from elsewhere; returns (added, duplicates skipped).

@@ -47,8 +47,10 @@ class AttemptQuery:
             until=local_midnight(last + timedelta(days=1), tz) if last is not None else None,
         )
 
-    def where(self) -> tuple[str, list[Any]]:
-        """The SQL ``WHERE`` clause over the attempts table and its arguments."""
+    def where(self, floor: str | None = None) -> tuple[str, list[Any]]:
+        """The SQL ``WHERE`` clause over the attempts table and its arguments; ``floor`` (a
+        stored time) raises the lower bound on the time, so that a read resumed after a row
+        (keyset paging) starts its index search there instead of stepping from the start."""
         where: list[str] = []
         args: list[Any] = []
         # A session is a few dozen attempts: with one asked for, the other terms get a unary +
@@ -71,7 +73,7 @@ class AttemptQuery:
         lo = iso_utc(since if since.tzinfo else since.replace(tzinfo=UTC)) if since else FLOOR
         hi = iso_utc(until if until.tzinfo else until.replace(tzinfo=UTC)) if until else CEILING
         where.append(f"{plus}at >= ?")
-        args.append(max(lo, FLOOR))
+        args.append(max(lo, FLOOR, floor or FLOOR))
         where.append(f"{plus}at < ?")
         args.append(min(hi, CEILING))
         return " WHERE " + " AND ".join(where), args

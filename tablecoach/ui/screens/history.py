@@ -17,9 +17,9 @@ from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Static
 from textual.worker import Worker, get_current_worker
 
-from tablecoach.core.stats.history import History, summarize
+from tablecoach.core.stats.coded import summarize_store
+from tablecoach.core.stats.history import History
 from tablecoach.core.stats.rates import wilson
-from tablecoach.core.stats.read import read_frame
 from tablecoach.core.stats.trends import WeekRate
 from tablecoach.core.stats.zones import grid_from_zones
 from tablecoach.core.store import Store
@@ -213,10 +213,10 @@ class HistoryScreen(Screen[None]):
             if q.family is None and q.since is None and q.session is None:
                 # the store counts sessions in SQL: show them while the full history is built
                 self.post_message(SessionsListed(me, self.store.sessions(q.player, q.table)))
-            frame = read_frame(self.store, q)  # columns, not Attempt objects
-            h = summarize(
-                frame, tz=self.tz, today=self.local_today(), table_of=self.store.table_lookup()
-            )
+            h = summarize_store(  # integer codes from SQLite, not Attempt objects
+                self.store, q, tz=self.tz, today=self.local_today(),
+                table_of=self.store.table_lookup(),
+            )  # fmt: skip
             players = tuple(self.store.players())
             result = Loaded(h, players, h.tables, tuple(sorted(h.families)))
         except ValueError as exc:
