@@ -733,6 +733,15 @@ def test_permission_and_full_disk_on_files_are_named(
 # ----- backup and restore ------------------------------------------------------------------------
 
 
+def _table_rows(conn: sqlite3.Connection, name: str) -> list[tuple[object, ...]]:
+    """A table's rows in rowid order; a WITHOUT ROWID table's (the kept zone counts) in the
+    order SQLite stores them, its primary key's (sqlite.org/withoutrowid.html)."""
+    try:
+        return conn.execute(f"SELECT * FROM {name} ORDER BY rowid").fetchall()
+    except sqlite3.OperationalError:  # no such column: rowid
+        return conn.execute(f"SELECT * FROM {name}").fetchall()
+
+
 def _rows(db: Path) -> dict[str, list[tuple[object, ...]]]:
     """Every row of every table, and the header numbers, read with plain sqlite3."""
     conn = sqlite3.connect(f"file:{db}?mode=ro", uri=True)
@@ -743,7 +752,7 @@ def _rows(db: Path) -> dict[str, list[tuple[object, ...]]]:
                 "SELECT name FROM sqlite_master WHERE type = 'table' ORDER BY name"
             )
         ]
-        out = {n: conn.execute(f"SELECT * FROM {n} ORDER BY rowid").fetchall() for n in names}
+        out = {n: _table_rows(conn, n) for n in names}
         for pragma in ("user_version", "application_id"):
             out[pragma] = conn.execute(f"PRAGMA {pragma}").fetchall()
         out["schema"] = conn.execute(

@@ -91,7 +91,12 @@ def assert_kept_right(store: Store) -> None:
             assert zone_counts(store, q) == by_hand(mine)
 
 
-def test_kept_counts_follow_random_logs_undos_and_imports(tmp_path: Path) -> None:
+@pytest.mark.parametrize("bulk_from", [counts.BULK_FROM, 1])
+def test_kept_counts_follow_random_logs_undos_and_imports(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch, bulk_from: int
+) -> None:
+    # bulk_from 1: every write of several attempts counts them in one pass (counts.in_bulk)
+    monkeypatch.setattr(counts, "BULK_FROM", bulk_from)
     rng = np.random.default_rng(20261202)
     with Store.open(tmp_path / "s.sqlite3") as store:
         sessions = [store.start_session(p, "9ft", "mixed") for p in PLAYERS]
@@ -107,8 +112,40 @@ def test_kept_counts_follow_random_logs_undos_and_imports(tmp_path: Path) -> Non
             batch = [random_attempt(rng, k + j) for j in range(int(rng.integers(10, 40)))]
             k += len(batch)
             store.import_attempts(batch + batch[:3])  # the repeats are skipped, not counted
+            many = [random_attempt(rng, k + j) for j in range(int(rng.integers(1, 8)))]
+            k += len(many)
+            store.log_many([replace(a, session=sessions[0]) for a in many])
             assert_kept_right(store)
         assert store.count_attempts() > 200
+
+
+def test_big_writes_count_in_one_pass_and_a_failed_one_counts_nothing(tmp_path: Path) -> None:
+    # an import, a batch and a restore of more than counts.BULK_FROM attempts are counted
+    # by one GROUP BY instead of the trigger; a batch that fails half-way (a session that does
+    # not exist) is rolled back whole, its counts and the taken-out trigger with it
+    rng = np.random.default_rng(3)
+    n = counts.BULK_FROM + 50
+    with Store.open(tmp_path / "a.sqlite3") as store:
+        store.import_attempts([random_attempt(rng, k) for k in range(n)])
+        store.log_many([random_attempt(rng, n + k) for k in range(n)])
+        assert_kept_right(store)
+        before = sorted(store.kept_cell_counts())
+        bad = [random_attempt(rng, 2 * n + k) for k in range(n)]
+        bad[-1] = replace(bad[-1], session=999)
+        with pytest.raises(ValueError, match="no session 999"):
+            store.log_many(bad)
+        assert sorted(store.kept_cell_counts()) == before
+        with store.reading() as c:
+            assert counts.is_current(c)
+        store.log(random_attempt(rng, 3 * n))  # the trigger is there: one row, counted
+        assert_kept_right(store)
+        text = io.StringIO()
+        backup.write_backup(store, text, None)
+        want = sorted(store.kept_cell_counts())
+    with Store.open(tmp_path / "b.sqlite3") as fresh:
+        backup.restore(fresh, iter(text.getvalue().splitlines()), "backup", None)
+        assert sorted(fresh.kept_cell_counts()) == want
+        assert_kept_right(fresh)
 
 
 def test_counts_follow_changed_rows_and_skip_times_out_of_span(tmp_path: Path) -> None:

@@ -10,6 +10,7 @@ from typing import Any
 
 from ..records import FLAT_FIELDS, Attempt
 from .connection import Connection
+from .counts import in_bulk
 from .errors import StoreError
 from .query import EVERYTHING, AttemptQuery
 from .rows import (
@@ -63,7 +64,7 @@ class Attempts(Connection):
             check_attempt(a)
         prepared = [(a, to_row(a), attempt_identity(a)) for a in items]
         out: list[Attempt] = []
-        with self.transaction() as c:
+        with self.transaction() as c, in_bulk(c, len(prepared)):
             known: set[int] = set()
             for a, row, ident in prepared:
                 if a.session is not None and a.session not in known:
@@ -281,7 +282,7 @@ class Attempts(Connection):
             # keys and rows are built before the write lock is taken, to keep it short
             chunk = checked[start : start + IMPORT_CHUNK]
             prepared = [(attempt_identity(a), to_row(a)[:-1]) for a in chunk]
-            with self.transaction() as c:
+            with self.transaction() as c, in_bulk(c, len(prepared)):
                 idents = [k for k, _ in prepared]
                 stored: set[str] = set()
                 for q in range(0, len(idents), 500):
