@@ -190,6 +190,7 @@ def test_restore_and_migration_from_version_4_count_everything(tmp_path: Path) -
         c.execute(f"DROP TRIGGER {name}")
     c.execute("DROP TABLE zone_counts")
     c.execute("DROP INDEX attempts_zone_landed")
+    c.execute("DROP INDEX attempts_landed")
     c.execute("PRAGMA user_version = 4")
     c.commit()
     c.close()

@@ -38,6 +38,7 @@ def _as_version_3(db: Path) -> None:
         c.execute(f"DROP TRIGGER {trigger}")
     c.execute("DROP TABLE zone_counts")
     c.execute("DROP INDEX attempts_zone_landed")
+    c.execute("DROP INDEX attempts_landed")
     c.execute("PRAGMA user_version = 3")
     c.commit()
     c.close()

@@ -194,6 +194,15 @@ class Attempts(Connection):
                 for f, cc, r, b, n, m in c.execute(sql, params)
             ]
 
+    def count_landed(self, query: AttemptQuery, at_most: int) -> int:
+        """How many attempts ``query`` matches that carry an observed landing, counted up to
+        ``at_most`` (through the landings index: bounded, whatever the size of the history)."""
+        where, args = query.where()
+        where += " AND landing_rail IS NOT NULL AND landing_at IS NOT NULL"
+        with self.reading() as c:
+            sql = f"SELECT COUNT(*) FROM (SELECT 1 FROM attempts{where} LIMIT ?)"
+            return int(c.execute(sql, (*args, max(int(at_most), 0))).fetchone()[0])
+
     def count_attempts(self, query: AttemptQuery = EVERYTHING) -> int:
         """How many attempts ``query`` matches."""
         where, args = query.where()

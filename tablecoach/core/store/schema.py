@@ -225,19 +225,26 @@ def _migrate_3_to_4(conn: sqlite3.Connection) -> None:
 
 def _migrate_4_to_5(conn: sqlite3.Connection) -> None:
     """Version 5: zone counts kept by triggers as attempts come and go (store/counts.py),
-    filled in one pass over the attempts; and an index for a zone's latest landings (the
-    practice card's landing bias reads a few of them: ``Attempts.latest_attempts``)."""
+    filled in one pass over the attempts; and indexes of landings (the practice card's
+    landing bias reads a zone's latest few: ``Attempts.latest_attempts``; the calibration
+    offer counts those since the last calibration: ``Attempts.count_landed``)."""
     from . import counts  # the counts' bands come from the shot vocabulary (numpy): only here
 
     counts.install(conn)
-    conn.execute(ZONE_LANDINGS_INDEX)
+    run_script(conn, LANDINGS_INDEXES)
 
 
-ZONE_LANDINGS_INDEX = """
+LANDINGS_INDEXES = """
     CREATE INDEX IF NOT EXISTS attempts_zone_landed ON attempts(player, table_name, zone, at)
-    WHERE landing_rail IS NOT NULL AND landing_at IS NOT NULL
+    WHERE landing_rail IS NOT NULL AND landing_at IS NOT NULL;
+    CREATE INDEX IF NOT EXISTS attempts_landed
+    ON attempts(player, table_name, at, landing_rail, landing_at)
+    WHERE landing_rail IS NOT NULL AND landing_at IS NOT NULL;
 """
-"""A player's landings on a table by zone label, latest last (partial: landed attempts only)."""
+"""A player's landings on a table, by zone label and in all, latest last (partial: landed
+attempts only): a zone's latest landings and the landings since a calibration are read from
+them in a few steps, however many attempts without a landing lie between (the second holds
+the landing columns, so a count reads the index alone)."""
 
 
 MIGRATIONS = {1: _migrate_1_to_2, 2: _migrate_2_to_3, 3: _migrate_3_to_4, 4: _migrate_4_to_5}
