@@ -12,9 +12,11 @@ and its peak resident memory (resource.getrusage(RUSAGE_SELF).ru_maxrss of that 
   from spawn to the first card on screen with its aim solved (so h logs a hit); also the
   process's CPU time by then (time.process_time: every thread, the integrity check's too,
   which runs beside the first card);
-- h after u: in one running app, u (undo the last hit) then h at once; h is timed from the press
-  until the next setup is on the table (the store ends as it began: every h is undone); the
-  median, its CPU time, and the fastest and slowest press;
+- keys, in one running app: the first h after the first card; u (undo the last hit: timed until
+  its setup is back with its aim), h right after it, and a plain h (the next setup dealt ahead),
+  each ``--repeat`` times; an h is timed from the press until the next setup is on the table
+  (the store ends as it began: every h is undone); the median, its CPU time (every thread),
+  and the fastest and slowest press;
 - history: ``tablecoach history --json`` over the whole store;
 - export: ``tablecoach export -o FILE`` (JSONL) of the whole store;
 - import: ``tablecoach import FILE`` of that export into an empty data folder.
@@ -71,7 +73,8 @@ from tablecoach.ui.app import build_app
 
 async def main():
     app = build_app(table={table!r}, player={player!r}, seed=2, model="ideal")
-    times, cpus = [], []
+    got = {{"first h": [], "h": [], "u": [], "h after u": []}}
+    cpu = {{k: [] for k in got}}
     async with app.run_test(size=(100, 30)) as pilot:
         async def settle():
             for _ in range(3):
@@ -83,29 +86,36 @@ async def main():
             while not cond():
                 await asyncio.sleep(0.0005)
 
+        async def timed(name, key, done):
+            t0, c0 = time.perf_counter(), time.process_time()
+            await pilot.press(key)
+            await until(done)
+            got[name].append(time.perf_counter() - t0)
+            cpu[name].append(time.process_time() - c0)
+
         while getattr(app.screen, "aim", None) is None:
             await asyncio.sleep(0.002)
         screen = app.screen
         s = screen.session
         await settle()
-        await pilot.press("h")
+        before = s.pick
+        await timed("first h", "h", lambda: s.pick not in (before, None))
         await settle()
         for _ in range({repeat}):
             logged = len(s.logged)
-            await pilot.press("u")
-            await until(lambda: len(s.logged) < logged and screen.aim is not None)
+            await timed("u", "u", lambda: len(s.logged) < logged and screen.aim is not None)
             before = s.pick
-            t0 = time.perf_counter()
-            c0 = time.process_time()
-            await pilot.press("h")
-            await until(lambda: s.pick not in (before, None))
-            times.append(time.perf_counter() - t0)
-            cpus.append(time.process_time() - c0)
+            await timed("h after u", "h", lambda: s.pick not in (before, None))
+            await settle()
+            before = s.pick
+            await timed("h", "h", lambda: s.pick not in (before, None))
+            await settle()
+            await pilot.press("u")
             await settle()
         await pilot.press("u")
         await settle()
     rss = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
-    print(json.dumps({{"times": times, "cpu": cpus, "rss_kib": rss}}))
+    print(json.dumps({{"times": got, "cpu": cpu, "rss_kib": rss}}))
 
 asyncio.run(main())
 """
@@ -202,24 +212,26 @@ def med(values: list[float]) -> float:
 
 
 PATHS = ("launch", "keys", "history", "export", "import")
+KEY_NAMES = ("first h", "h", "u", "h after u")
 
 
 def measure(
     folder: Path, repeat: int, player: str, table: str, paths: tuple[str, ...] = PATHS
 ) -> dict[str, str]:
-    row = dict.fromkeys(("launch", "h after u", "history --json", "export", "import"), "-")
+    row = dict.fromkeys(("launch", *KEY_NAMES, "history --json", "export", "import"), "-")
     if "launch" in paths:
         row.update(_launch(folder, repeat, player, table))
     if "keys" in paths:
         keys = run_child(
             KEYS.format(root=str(ROOT), table=table, player=player, repeat=repeat), folder
         )
-        t: list[float] = keys["times"]  # type: ignore[assignment]
-        c: list[float] = keys["cpu"]  # type: ignore[assignment]
-        row["h after u"] = (
-            f"{med(t) * 1000:.0f} ms (CPU {med(c) * 1000:.0f} ms; "
-            f"{min(t) * 1000:.0f}-{max(t) * 1000:.0f})"
-        )
+        for name in KEY_NAMES:
+            t: list[float] = keys["times"][name]  # type: ignore[index]
+            c: list[float] = keys["cpu"][name]  # type: ignore[index]
+            row[name] = (
+                f"{med(t) * 1000:.0f} ms (CPU {med(c) * 1000:.0f} ms; "
+                f"{min(t) * 1000:.0f}-{max(t) * 1000:.0f})"
+            )
     if "history" in paths:
         hist = [run_cli(["history", "--json"], folder) for _ in range(repeat)]
         row["history --json"] = (
