@@ -9,6 +9,7 @@ from dataclasses import replace
 from typing import Any
 
 from ..records import FLAT_FIELDS, Attempt
+from . import counts
 from .connection import Connection
 from .counts import in_bulk
 from .errors import StoreError
@@ -52,6 +53,9 @@ def quiet_gc() -> Iterator[None]:
 
 class Attempts(Connection):
     """The attempts table: every attempt is committed before ``log`` returns."""
+
+    _counts_current = False
+    """The kept zone counts were found to be this code's (``kept_cell_counts``)."""
 
     def log(self, attempt: Attempt) -> Attempt:
         """Validate and save one attempt, committed before returning; returns it with its id."""
@@ -192,6 +196,40 @@ class Attempts(Connection):
             return [
                 (str(f), int(cc), int(r), str(b), int(n), int(m or 0))
                 for f, cc, r, b, n, m in c.execute(sql, params)
+            ]
+
+    def kept_cell_counts(
+        self, player: str | None = None, table: str | None = None
+    ) -> list[tuple[str, int, int, str, int, int]]:
+        """Tried and made per (family, column, row, speed band) of the attempts of ``player``
+        on ``table`` (None: any), as ``cell_counts`` aggregates them for that query, read from
+        the kept counts: a few rows per zone, whatever the size of the history. Rows are
+        (family, column, row, band, tried, made)."""
+        if not self._counts_current:
+            with self.reading() as c:
+                current = counts.is_current(c)
+            if not current:  # the code's cells or bands changed: count again, once
+                with self.transaction() as c:
+                    if not counts.is_current(c):
+                        counts.install(c)
+            self._counts_current = True
+        where: list[str] = []
+        args: list[str] = []
+        for col, val in (("player", player), ("table_name", table)):
+            if val is not None:
+                where.append(f"{col} = ?")
+                args.append(val)
+        sql = (
+            "SELECT family, cell_col, cell_row, band, SUM(tried), SUM(made) "
+            f"FROM {counts.COUNT_TABLE}"
+            + (" WHERE " + " AND ".join(where) if where else "")
+            + " GROUP BY family, cell_col, cell_row, band"
+        )
+        with self.reading() as c:
+            return [
+                (str(f), int(cc), int(r), str(b), int(n), int(m))
+                for f, cc, r, b, n, m in c.execute(sql, args)
+                if int(n) > 0
             ]
 
     def count_landed(self, query: AttemptQuery, at_most: int) -> int:

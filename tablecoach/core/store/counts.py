@@ -4,7 +4,7 @@ zone cell and speed band, kept by SQLite triggers on the attempts table.
 Every insert, delete or change of an attempt adds or takes back its one count inside the same
 transaction, whoever writes it (logging, undo, import, restore, a migration), so the coach's
 start reads a few hundred rows instead of aggregating every attempt of the player
-(``Counts.kept_cell_counts``; docs/coach.md). The counts are exactly what
+(``Attempts.kept_cell_counts``; docs/coach.md). The counts are exactly what
 ``Attempts.cell_counts`` aggregates for a player and table: the same cells, bands and family
 rule, and like every read of attempts they leave out times outside [query.FLOOR,
 query.CEILING).
@@ -21,7 +21,6 @@ import sqlite3
 from collections.abc import Iterator, Mapping
 from contextlib import contextmanager
 
-from .connection import Connection
 from .query import CEILING, FLOOR
 
 GRID: tuple[float, float, int, int] = (2.0, 1.0, 4, 4)
@@ -224,42 +223,3 @@ def is_current(c: sqlite3.Connection) -> bool:
     )
     want = {COUNT_TABLE: TABLE_SQL.strip(), **trigger_sql()}
     return all(stored.get(name) == sql for name, sql in want.items())
-
-
-class Counts(Connection):
-    """The kept zone counts (read only: the triggers write them)."""
-
-    _counts_current = False
-
-    def kept_cell_counts(
-        self, player: str | None = None, table: str | None = None
-    ) -> list[tuple[str, int, int, str, int, int]]:
-        """Tried and made per (family, column, row, speed band) of the attempts of ``player``
-        on ``table`` (None: any), as ``cell_counts`` aggregates them for that query, read from
-        the kept counts: a few rows per zone, whatever the size of the history. Rows are
-        (family, column, row, band, tried, made)."""
-        if not self._counts_current:
-            with self.reading() as c:
-                current = is_current(c)
-            if not current:  # the code's cells or bands changed: count again, once
-                with self.transaction() as c:
-                    if not is_current(c):
-                        install(c)
-            self._counts_current = True
-        where: list[str] = []
-        args: list[str] = []
-        for col, val in (("player", player), ("table_name", table)):
-            if val is not None:
-                where.append(f"{col} = ?")
-                args.append(val)
-        sql = (
-            f"SELECT family, cell_col, cell_row, band, SUM(tried), SUM(made) FROM {COUNT_TABLE}"
-            + (" WHERE " + " AND ".join(where) if where else "")
-            + " GROUP BY family, cell_col, cell_row, band"
-        )
-        with self.reading() as c:
-            return [
-                (str(f), int(cc), int(r), str(b), int(n), int(m))
-                for f, cc, r, b, n, m in c.execute(sql, args)
-                if int(n) > 0
-            ]
