@@ -416,12 +416,112 @@ def test_a_damaged_store_is_refused_and_left_byte_for_byte(
         assert_refused(code, err, "damaged", str(db))
         assert "restore" in err
         assert sorted(p.name for p in db.parent.iterdir()) == [db.name], args
-    from tablecoach.ui.app import build_app
-
-    with pytest.raises(StoreError, match="damaged"):
-        build_app()
+    # the practice app: it shows the first card while the integrity check runs beside it
+    # (seconds on a big store), and the check's verdict ends it with the one line
+    code, _, err = _practice_app(capsys, monkeypatch)
+    assert_refused(code, err, "damaged", str(db))
+    assert "restore" in err
     assert _digest(db) == before
     assert sorted(p.name for p in db.parent.iterdir()) == [db.name]
+
+
+def _practice_app(
+    capsys: pytest.CaptureFixture[str],
+    monkeypatch: pytest.MonkeyPatch,
+    keys: tuple[str, ...] = (),
+    wait: float = 30.0,
+) -> tuple[int, str, str]:
+    """``tablecoach`` (the practice app) in-process without a terminal: Textual's headless
+    run at 100 x 30, pressing ``keys`` once the first card is up; an app still running after
+    ``wait`` seconds (not refused) is closed with q q (the summary, then leave)."""
+    import asyncio
+    import time
+
+    from tablecoach.ui import app as app_mod
+
+    real_run = app_mod.TableCoachApp.run
+
+    async def pilot_of(pilot: object) -> None:
+        app = pilot.app  # type: ignore[attr-defined]
+        end = time.monotonic() + wait
+        while getattr(app.screen, "aim", None) is None and time.monotonic() < end:
+            await asyncio.sleep(0.01)
+        if keys:
+            await pilot.press(*keys)  # type: ignore[attr-defined]
+        while time.monotonic() < end and not app.refused:
+            await asyncio.sleep(0.01)
+        if not app.refused:
+            await pilot.press("q", "q")  # type: ignore[attr-defined]
+
+    def headless(self: object, **_kw: object) -> object:
+        return real_run(self, headless=True, size=(100, 30), auto_pilot=pilot_of)  # type: ignore[arg-type]
+
+    monkeypatch.setattr(app_mod.TableCoachApp, "run", headless)
+    return cli(capsys)
+
+
+def test_the_first_card_does_not_wait_for_the_check_and_damage_still_ends_the_app(
+    tmp_path: Path,
+    capsys: pytest.CaptureFixture[str],
+    monkeypatch: pytest.MonkeyPatch,
+    demo_store: Path,
+) -> None:
+    # The check is held back (as a big store's takes seconds): the first card is shown and
+    # solved meanwhile, nothing is written (the session's row waits for the check), and once
+    # the check finds the damage the app ends with the one line; the file is left as it was.
+    import threading
+
+    from tablecoach.core.store.connection import Connection
+    from tablecoach.ui.screens.practice import PracticeScreen
+
+    db = _copy_store(demo_store, tmp_path / "data")
+    _damage(db, "flip")
+    assert _sqlite_says_damaged(db)
+    before = _digest(db)
+    release = threading.Event()
+    seen: list[bool] = []
+    real_check = Connection._quick_check
+
+    def slow_check(self: Connection) -> object:
+        release.wait(30)
+        return real_check(self)
+
+    real_mount = PracticeScreen._take_ahead
+
+    def first_card(self: PracticeScreen) -> None:
+        real_mount(self)
+        seen.append(not release.is_set() and self.session.pick is not None)
+        release.set()  # the card is up: let the check finish now
+
+    monkeypatch.setattr(Connection, "_quick_check", slow_check)
+    monkeypatch.setattr(PracticeScreen, "_take_ahead", first_card)
+    monkeypatch.setenv("TABLECOACH_SEED", "3")
+    code, _, err = _practice_app(capsys, monkeypatch)
+    assert seen[:1] == [True]  # the first card came before the check's verdict
+    assert_refused(code, err, "damaged", "integrity check", str(db))
+    assert _digest(db) == before
+    assert sorted(p.name for p in db.parent.iterdir()) == [db.name]
+
+
+def test_a_healthy_store_logs_after_the_check_run_beside_the_first_card(
+    tmp_path: Path,
+    capsys: pytest.CaptureFixture[str],
+    monkeypatch: pytest.MonkeyPatch,
+    demo_store: Path,
+) -> None:
+    # the same start on a healthy copy: a hit is logged in a session whose row was written
+    # once the check passed, and the app leaves with its summary
+    db = _copy_store(demo_store, tmp_path / "data")
+    monkeypatch.setenv("TABLECOACH_SEED", "3")
+    with Store.open(db) as s:
+        sessions = len(s.sessions())
+    code, out, err = _practice_app(capsys, monkeypatch, keys=("h",), wait=3.0)
+    assert code == 0, err
+    assert "1 attempt, 1 hit" in out
+    with Store.open(db) as s:
+        infos = s.sessions()
+        assert len(infos) == sessions + 1
+        assert infos[-1].attempts == 1 and infos[-1].hits == 1 and infos[-1].ended is not None
 
 
 def _killed_writer(db: Path) -> Path:
@@ -633,6 +733,15 @@ def test_permission_and_full_disk_on_files_are_named(
 # ----- backup and restore ------------------------------------------------------------------------
 
 
+def _table_rows(conn: sqlite3.Connection, name: str) -> list[tuple[object, ...]]:
+    """A table's rows in rowid order; a WITHOUT ROWID table's (the kept zone counts) in the
+    order SQLite stores them, its primary key's (sqlite.org/withoutrowid.html)."""
+    try:
+        return conn.execute(f"SELECT * FROM {name} ORDER BY rowid").fetchall()
+    except sqlite3.OperationalError:  # no such column: rowid
+        return conn.execute(f"SELECT * FROM {name}").fetchall()
+
+
 def _rows(db: Path) -> dict[str, list[tuple[object, ...]]]:
     """Every row of every table, and the header numbers, read with plain sqlite3."""
     conn = sqlite3.connect(f"file:{db}?mode=ro", uri=True)
@@ -643,7 +752,7 @@ def _rows(db: Path) -> dict[str, list[tuple[object, ...]]]:
                 "SELECT name FROM sqlite_master WHERE type = 'table' ORDER BY name"
             )
         ]
-        out = {n: conn.execute(f"SELECT * FROM {n} ORDER BY rowid").fetchall() for n in names}
+        out = {n: _table_rows(conn, n) for n in names}
         for pragma in ("user_version", "application_id"):
             out[pragma] = conn.execute(f"PRAGMA {pragma}").fetchall()
         out["schema"] = conn.execute(

@@ -31,6 +31,7 @@ from typing import IO, Any
 
 from . import validate
 from .store import Store
+from .store.counts import in_bulk
 from .store.errors import StoreError
 from .store.query import FLOOR
 from .store.rows import COL_NAMES, attempt_identity, check_attempt, from_row
@@ -377,7 +378,8 @@ def restore(store: Store, lines: Iterator[str], source: str, drills_dir: Path | 
             to_write.append((target, text))
     counts: dict[str, int] = {}
     try:
-        with store.transaction() as c:
+        attempts = sections.get("attempts")
+        with store.transaction() as c, in_bulk(c, len(attempts.rows) if attempts else 0):
             for name in STORE_SECTIONS:
                 part = sections.get(name)
                 counts[name] = 0 if part is None else len(part.rows)

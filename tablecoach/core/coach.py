@@ -22,16 +22,14 @@ import numpy as np
 
 from . import shots, strokes
 from .records import Attempt, ShotRecord
-from .store import Store
+from .store import Store, counts
 from .store.query import AttemptQuery
 from .table import BUILTIN_TABLES, TableSpec
 
-ZONE_COLS = 4
-"""Columns of the zone grid along the table: 2 diamonds each (x 0-2, 2-4, 4-6, 6-8)."""
-ZONE_ROWS = 4
-"""Rows of the zone grid across the table: 1 diamond each (y 0-1, 1-2, 2-3, 3-4)."""
-COL_WIDTH = 8.0 / ZONE_COLS
-ROW_HEIGHT = 4.0 / ZONE_ROWS
+COL_WIDTH, ROW_HEIGHT, ZONE_COLS, ZONE_ROWS = counts.GRID
+"""The zone grid, defined beside the counts the store keeps by it (store/counts.py): ZONE_COLS
+columns along the table of COL_WIDTH = 2 diamonds each (x 0-2, 2-4, 4-6, 6-8), ZONE_ROWS rows
+across it of ROW_HEIGHT = 1 diamond each (y 0-1, 1-2, 2-3, 3-4)."""
 
 PRIOR_STRENGTH = 2.0
 """Pseudo-attempts of the family's rate in each zone's prior (how hard zones are pooled)."""
@@ -112,16 +110,23 @@ def zone_of_attempt(a: Attempt) -> Zone:
 
 
 def zone_counts(store: Store, query: AttemptQuery) -> dict[Zone, tuple[int, int]]:
-    """(made, tried) per zone of the attempts ``query`` matches, counted by the store in one
-    aggregate query (the same cells and speed bands as ``zone_of``), without reading any
-    attempt: what the scheduler starts from, at any size of history."""
-    rows = store.cell_counts(
-        query,
-        (COL_WIDTH, ROW_HEIGHT, ZONE_COLS, ZONE_ROWS),
-        shots.SPEED_BANDS,
-        below="slow",
-        above="power",
-    )
+    """(made, tried) per zone of the attempts ``query`` matches (the same cells and speed bands
+    as ``zone_of``), without reading any attempt: what the scheduler starts from.
+
+    A query of a player and/or a table (the practice session's) reads the counts the store
+    keeps as attempts are logged and undone (store/counts.py): a few rows whatever the size
+    of the history. Any other query is counted by one aggregate query over its attempts."""
+    q = query
+    if q.family is None and q.since is None and q.until is None and q.session is None:
+        rows = store.kept_cell_counts(q.player, q.table)
+    else:
+        rows = store.cell_counts(
+            query,
+            (COL_WIDTH, ROW_HEIGHT, ZONE_COLS, ZONE_ROWS),
+            shots.SPEED_BANDS,
+            below=counts.BELOW,
+            above=counts.ABOVE,
+        )
     out: dict[Zone, tuple[int, int]] = {}
     for family, col, row, band, tried, made in rows:
         z = Zone(family, col, row, band)

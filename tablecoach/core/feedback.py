@@ -36,20 +36,31 @@ SMALL_BIAS = 0.1
 to: calibration.likelihood.NOISE_FLOOR is of this size)."""
 
 
-def new_landings(store: Store, table: str, player: str) -> int:
+OFFER_COUNTS_TO = 10_000
+"""The offer counts new landings up to this many ("10000+" beyond): a bounded read at the first
+logged shot, however long the history since the last calibration."""
+
+
+def new_landings(store: Store, table: str, player: str, at_most: int = OFFER_COUNTS_TO) -> int:
     """Attempts with an observed landing by ``player`` on ``table`` logged since the newest
-    calibration of that table for that player (all of them when there is none)."""
+    calibration of that table for that player (all of them when there is none), counted up
+    to ``at_most``."""
     rec = store.calibration(table, player)
     since = datetime.fromisoformat(rec["when"]) if rec else None
     query = AttemptQuery(player=player, table=table, since=since)
-    (landings, _ids, _sessions) = store.attempt_columns(query, ["landing_at"])
-    return sum(at is not None for at in landings)
+    return store.count_landed(query, at_most)
 
 
 def should_offer(store: Store, table: str, player: str) -> int:
-    """How many new landings there are when a calibration is worth offering, else 0."""
+    """How many new landings there are (up to OFFER_COUNTS_TO) when a calibration is worth
+    offering, else 0."""
     n = new_landings(store, table, player)
     return n if n >= OFFER_AFTER else 0
+
+
+def landings_words(n: int) -> str:
+    """``42 new landings``, or ``10000+ new landings`` at the counting limit."""
+    return f"{n}{'+' if n >= OFFER_COUNTS_TO else ''} new landings"
 
 
 def what_changed(before: Any, after: Any) -> list[str]:

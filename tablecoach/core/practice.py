@@ -170,7 +170,12 @@ class Session:
         """Earlier sessions' shots and hits, counted once by the store (their runs of hits
         are not: a run over the whole history would mean reading all of it)."""
         self.dealer = Dealer(table, drill, [], rng, model, counts=counts)
-        self.id = store.start_session(player, table.name, drill_name(drill))
+        self.started = utc_now()
+        self._id: int | ValueError | None = None
+        self._opening = threading.Thread(
+            target=self._open_row, name="tablecoach-session-start", daemon=True
+        )
+        self._opening.start()
         self.logged: list[Attempt] = []
         self.setups: dict[int, Setup] = {}
         """Logged attempt id -> the setup as shown (with its family's title), for r and undo."""
@@ -183,6 +188,28 @@ class Session:
         self.dealer_stale = False
         self._undone: list[Attempt] = []
         """Undone attempts the coach has not been told about yet (refresh_dealer)."""
+
+    # ----- the session's row ------------------------------------------------------------------
+    def _open_row(self) -> None:
+        """Write the session's row (a write: it waits for the store's integrity check, which
+        takes seconds on a big store, so it runs beside the first card, not before it)."""
+        try:
+            self._id = self.store.start_session(
+                self.player, self.table.name, drill_name(self.drill), started=self.started
+            )
+        except ValueError as exc:  # StoreError included: kept for the first write to raise
+            self._id = exc
+
+    @property
+    def id(self) -> int:
+        """The session's id in the store, once its row is written (waits for that; raises the
+        StoreError that stopped it, e.g. a damaged file)."""
+        self._opening.join()
+        got = self._id
+        if isinstance(got, ValueError):
+            raise got
+        assert got is not None
+        return got
 
     # ----- setups -------------------------------------------------------------------------------
     def draw(self) -> Pick:

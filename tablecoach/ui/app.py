@@ -12,6 +12,7 @@ from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
+from textual import work
 from textual.app import App, SystemCommand
 from textual.binding import Binding
 from textual.screen import Screen
@@ -143,6 +144,8 @@ class TableCoachApp(App[int]):
         self.ascii_only = ascii_only
         self.start_theme = theme
         self.summary: str = ""
+        self.refused: str = ""
+        """The store's integrity check failed: its one line (run_app prints it), nothing written."""
         # the first session is opened here, so a pack that cannot deal fails before any screen
         self.practice: PracticeScreen | None = self._practice_for(start, drill_name)
 
@@ -151,6 +154,21 @@ class TableCoachApp(App[int]):
         self.theme = self.start_theme
         assert self.practice is not None
         self.push_screen(self.practice)
+        self._watch_store()
+
+    @work(thread=True, group="store-check", exit_on_error=False)
+    def _watch_store(self) -> None:
+        """Wait for the store's integrity check (begun on opening, beside the first card:
+        Store.start_check); a damaged file ends the app with the check's one line, and
+        nothing is written into it (every write waits for the check and refuses too)."""
+        try:
+            self.store.check()
+        except StoreError as exc:
+            self.call_from_thread(self._refuse, str(exc))
+
+    def _refuse(self, line: str) -> None:
+        self.refused = line
+        self.exit(2)
 
     def _practice_for(self, r: Resolved, drill_name: str) -> PracticeScreen:
         session = Session(
@@ -254,7 +272,9 @@ def build_app(
 
     Names not given come from the last setup-screen picks, then the defaults (9ft table, the
     default pack; the store's only player, else the login name). Raises StoreError for a
-    damaged database and ValueError for an unknown name, before any screen is drawn.
+    file that is not a store, or is damaged where opening reads it, and ValueError for an
+    unknown name, before any screen is drawn. The store's integrity check runs beside the
+    first card (a big store takes seconds): damage it finds ends the app (``refused``).
     """
     saved = load_settings()
     store = Store.open(paths.db_path())
@@ -297,6 +317,9 @@ def run_app(args: Any) -> int:
         code = app.run()
     finally:
         app.store.close()
+    if app.refused:
+        print(f"tablecoach: {app.refused}", file=sys.stderr)
+        return 2
     if app.summary:
         print(f"tablecoach: {app.summary}")
     return int(code or 0)

@@ -14,6 +14,7 @@ from tablecoach.core.aim import ideal
 from tablecoach.core.calibration.value import Estimate
 from tablecoach.core.records import Attempt, utc_now
 from tablecoach.core.store import Store
+from tablecoach.core.store.query import AttemptQuery
 from tablecoach.core.table import builtin_table
 
 T9 = builtin_table("9ft")
@@ -60,6 +61,29 @@ def test_new_landings_count_only_seen_ones_since_the_last_calibration(tmp_path: 
         later = replace(seen, when=utc_now() + timedelta(seconds=1))
         s.log_many([replace(later, note=str(i)) for i in range(feedback.OFFER_AFTER)])
         assert feedback.should_offer(s, "9ft", "ann") == feedback.OFFER_AFTER
+
+
+def test_new_landings_are_counted_up_to_a_limit_through_the_landings_index(
+    tmp_path: Path,
+) -> None:
+    # the count stops at its limit, and SQLite's own query plan (EXPLAIN QUERY PLAN,
+    # sqlite.org/eqp.html) reads the partial index of landings, not the attempts
+    import sqlite3
+
+    with Store.open(tmp_path / "db.sqlite3") as s:
+        seen = kick_attempt(0.1)
+        hit = replace(seen, result="hit", landing_rail=None, landing_at=None, miss_kind=None)
+        s.log_many([replace(seen if i % 3 else hit, note=str(i)) for i in range(60)])
+        assert feedback.new_landings(s, "9ft", "ann") == 40
+        assert feedback.new_landings(s, "9ft", "ann", at_most=25) == 25
+        assert feedback.landings_words(40) == "40 new landings"
+        assert feedback.landings_words(feedback.OFFER_COUNTS_TO) == "10000+ new landings"
+        where, args = AttemptQuery(player="ann", table="9ft").where()
+        where += " AND landing_rail IS NOT NULL AND landing_at IS NOT NULL"
+        c = sqlite3.connect(tmp_path / "db.sqlite3")
+        plan = c.execute(f"EXPLAIN QUERY PLAN SELECT 1 FROM attempts{where}", args).fetchall()
+        c.close()
+        assert "COVERING INDEX attempts_landed" in str(plan), plan
 
 
 def test_zone_bias_against_the_ideal_landing() -> None:

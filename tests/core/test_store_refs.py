@@ -29,10 +29,16 @@ REF = Reference(
 
 
 def _as_version_3(db: Path) -> None:
-    """A version 3 file: version 4 differs only by the refs table, so drop it and step the
+    """A version 3 file: version 4 differs only by the refs table and version 5 by the kept
+    zone counts (their table, triggers and the landings index), so drop those and step the
     version back (sqlite3 directly, not the code under test)."""
     c = sqlite3.connect(db)
     c.execute("DROP TABLE refs")
+    for trigger in ("zone_counts_add", "zone_counts_remove", "zone_counts_change"):
+        c.execute(f"DROP TRIGGER {trigger}")
+    c.execute("DROP TABLE zone_counts")
+    c.execute("DROP INDEX attempts_zone_landed")
+    c.execute("DROP INDEX attempts_landed")
     c.execute("PRAGMA user_version = 3")
     c.commit()
     c.close()
@@ -50,7 +56,7 @@ def test_migrates_version_3_and_keeps_every_attempt(tmp_path: Path) -> None:
     assert "refs" not in {r[0] for r in c.execute("SELECT name FROM sqlite_master")}
     c.close()
     with Store.open(db) as s:
-        assert s.schema_version() == SCHEMA_VERSION == 4
+        assert s.schema_version() == SCHEMA_VERSION == 5
         assert s.attempts() == before
         assert s.references() == []
         ref_id = s.add_reference(REF)

@@ -5,8 +5,9 @@ can log into it at once. Every write is one short ``BEGIN IMMEDIATE`` transactio
 committed before ``log`` returns. A file that is not a tablecoach database, or is damaged, is
 never written to: opening it raises a StoreError naming the file and what to do. The modules:
 ``connection`` (open, check, transactions), ``schema`` (migrations), ``rows``, ``query``
-(AttemptQuery), ``errors``, and the repositories ``attempts``, ``players``, ``sessions``,
-``tables``, ``calibrations``, ``refs`` (reference lines).
+(AttemptQuery), ``errors``, ``counts`` (the zone counts kept by triggers, read through
+``attempts``), and the repositories ``attempts``, ``players``, ``sessions``, ``tables``,
+``calibrations``, ``refs`` (reference lines).
 """
 
 from __future__ import annotations

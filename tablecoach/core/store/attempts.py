@@ -9,7 +9,9 @@ from dataclasses import replace
 from typing import Any
 
 from ..records import FLAT_FIELDS, Attempt
+from . import counts
 from .connection import Connection
+from .counts import in_bulk
 from .errors import StoreError
 from .query import EVERYTHING, AttemptQuery
 from .rows import (
@@ -46,6 +48,9 @@ def quiet_gc() -> Iterator[None]:
 class Attempts(Connection):
     """The attempts table: every attempt is committed before ``log`` returns."""
 
+    _counts_current = False
+    """The kept zone counts were found to be this code's (``kept_cell_counts``)."""
+
     def log(self, attempt: Attempt) -> Attempt:
         """Validate and save one attempt, committed before returning; returns it with its id."""
         return self.log_many([attempt])[0]
@@ -57,7 +62,7 @@ class Attempts(Connection):
             check_attempt(a)
         prepared = [(a, to_row(a), attempt_identity(a)) for a in items]
         out: list[Attempt] = []
-        with self.transaction() as c:
+        with self.transaction() as c, in_bulk(c, len(prepared)):
             known: set[int] = set()
             for a, row, ident in prepared:
                 if a.session is not None and a.session not in known:
@@ -196,6 +201,49 @@ class Attempts(Connection):
                 for f, cc, r, b, n, m in c.execute(sql, params)
             ]
 
+    def kept_cell_counts(
+        self, player: str | None = None, table: str | None = None
+    ) -> list[tuple[str, int, int, str, int, int]]:
+        """Tried and made per (family, column, row, speed band) of the attempts of ``player``
+        on ``table`` (None: any), as ``cell_counts`` aggregates them for that query, read from
+        the kept counts: a few rows per zone, whatever the size of the history. Rows are
+        (family, column, row, band, tried, made)."""
+        if not self._counts_current:
+            with self.reading() as c:
+                current = counts.is_current(c)
+            if not current:  # the code's cells or bands changed: count again, once
+                with self.transaction() as c:
+                    if not counts.is_current(c):
+                        counts.install(c)
+            self._counts_current = True
+        where: list[str] = []
+        args: list[str] = []
+        for col, val in (("player", player), ("table_name", table)):
+            if val is not None:
+                where.append(f"{col} = ?")
+                args.append(val)
+        sql = (
+            "SELECT family, cell_col, cell_row, band, SUM(tried), SUM(made) "
+            f"FROM {counts.COUNT_TABLE}"
+            + (" WHERE " + " AND ".join(where) if where else "")
+            + " GROUP BY family, cell_col, cell_row, band"
+        )
+        with self.reading() as c:
+            return [
+                (str(f), int(cc), int(r), str(b), int(n), int(m))
+                for f, cc, r, b, n, m in c.execute(sql, args)
+                if int(n) > 0
+            ]
+
+    def count_landed(self, query: AttemptQuery, at_most: int) -> int:
+        """How many attempts ``query`` matches that carry an observed landing, counted up to
+        ``at_most`` (through the landings index: bounded, whatever the size of the history)."""
+        where, args = query.where()
+        where += " AND landing_rail IS NOT NULL AND landing_at IS NOT NULL"
+        with self.reading() as c:
+            sql = f"SELECT COUNT(*) FROM (SELECT 1 FROM attempts{where} LIMIT ?)"
+            return int(c.execute(sql, (*args, max(int(at_most), 0))).fetchone()[0])
+
     def count_attempts(self, query: AttemptQuery = EVERYTHING) -> int:
         """How many attempts ``query`` matches."""
         where, args = query.where()
@@ -242,7 +290,7 @@ class Attempts(Connection):
             # keys and rows are built before the write lock is taken, to keep it short
             chunk = checked[start : start + IMPORT_CHUNK]
             prepared = [(attempt_identity(a), to_row(a)[:-1]) for a in chunk]
-            with self.transaction() as c:
+            with self.transaction() as c, in_bulk(c, len(prepared)):
                 idents = [k for k, _ in prepared]
                 stored: set[str] = set()
                 for q in range(0, len(idents), 500):

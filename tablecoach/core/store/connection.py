@@ -25,6 +25,7 @@ from .schema import (
     V1_TABLES,
     V2_TABLES,
     V4_TABLES,
+    V5_TABLES,
     run_script,
 )
 
@@ -206,7 +207,7 @@ class Connection:
                 f"the database {p} was written by a newer tablecoach (schema {version}, this "
                 f"one reads up to {SCHEMA_VERSION}); upgrade tablecoach to use it"
             )
-        expected = V1_TABLES if version == 1 else V4_TABLES if version >= 4 else V2_TABLES
+        expected = {1: V1_TABLES, 2: V2_TABLES, 3: V2_TABLES, 4: V4_TABLES}.get(version, V5_TABLES)
         missing = expected - names
         if version < 1 or missing:
             raise StoreError(

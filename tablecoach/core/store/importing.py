@@ -20,6 +20,7 @@ from types import TracebackType
 
 from ..records import Attempt
 from .attempts import Attempts
+from .counts import in_bulk
 from .errors import StoreError
 from .rows import COL_NAMES, attempt_identity, check_attempt, to_row
 
@@ -88,11 +89,14 @@ class Staging:
                     f"(SELECT player, at, min(seq) FROM staging.staged s WHERE {fresh} "
                     "GROUP BY player)"
                 )
-                cur = c.execute(
-                    f"INSERT INTO main.attempts ({cols}, session_id, ident) "
-                    f"SELECT {cols}, NULL, ident FROM staging.staged s WHERE {fresh} ORDER BY seq"
-                )
-                added = max(int(cur.rowcount), 0)
+                # the kept zone counts: one pass over the new rows for a big import
+                with in_bulk(c, self.good):
+                    cur = c.execute(
+                        f"INSERT INTO main.attempts ({cols}, session_id, ident) "
+                        f"SELECT {cols}, NULL, ident FROM staging.staged s WHERE {fresh} "
+                        "ORDER BY seq"
+                    )
+                    added = max(int(cur.rowcount), 0)
         finally:
             with store.reading() as c:
                 c.execute("DETACH DATABASE staging")

@@ -6,7 +6,7 @@ import sqlite3
 
 from .rows import COL_NAMES, COLS, attempt_identity, from_row
 
-SCHEMA_VERSION = 4
+SCHEMA_VERSION = 5
 """The schema this code writes (PRAGMA user_version). Version 1 is the first schema."""
 
 APPLICATION_ID = 0x74636F61
@@ -66,6 +66,7 @@ CREATE INDEX attempts_session ON attempts(session_id);
 V1_TABLES = {"players", "tables", "sessions", "attempts"}
 V2_TABLES = V1_TABLES | {"calibrations"}
 V4_TABLES = V2_TABLES | {"refs"}
+V5_TABLES = V4_TABLES | {"zone_counts"}
 
 
 def run_script(conn: sqlite3.Connection, script: str) -> None:
@@ -222,5 +223,29 @@ def _migrate_3_to_4(conn: sqlite3.Connection) -> None:
     )
 
 
-MIGRATIONS = {1: _migrate_1_to_2, 2: _migrate_2_to_3, 3: _migrate_3_to_4}
+def _migrate_4_to_5(conn: sqlite3.Connection) -> None:
+    """Version 5: zone counts kept by triggers as attempts come and go (store/counts.py),
+    filled in one pass over the attempts; and indexes of landings (the practice card's
+    landing bias reads a zone's latest few: ``Attempts.latest_attempts``; the calibration
+    offer counts those since the last calibration: ``Attempts.count_landed``)."""
+    from . import counts  # the counts' bands come from the shot vocabulary (numpy): only here
+
+    counts.install(conn)
+    run_script(conn, LANDINGS_INDEXES)
+
+
+LANDINGS_INDEXES = """
+    CREATE INDEX IF NOT EXISTS attempts_zone_landed ON attempts(player, table_name, zone, at)
+    WHERE landing_rail IS NOT NULL AND landing_at IS NOT NULL;
+    CREATE INDEX IF NOT EXISTS attempts_landed
+    ON attempts(player, table_name, at, landing_rail, landing_at)
+    WHERE landing_rail IS NOT NULL AND landing_at IS NOT NULL;
+"""
+"""A player's landings on a table, by zone label and in all, latest last (partial: landed
+attempts only): a zone's latest landings and the landings since a calibration are read from
+them in a few steps, however many attempts without a landing lie between (the second holds
+the landing columns, so a count reads the index alone)."""
+
+
+MIGRATIONS = {1: _migrate_1_to_2, 2: _migrate_2_to_3, 3: _migrate_3_to_4, 4: _migrate_4_to_5}
 """from-version -> step; applying them in order takes any older file to SCHEMA_VERSION."""

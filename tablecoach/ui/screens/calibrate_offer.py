@@ -46,8 +46,8 @@ class CalibrationOffer:
         if not n:
             return ""
         self.offered = True
-        self.offer_hint = f"; {n} new landings: c calibrates"
-        return f"{n} new landings: c calibrates"
+        self.offer_hint = f"; {feedback.landings_words(n)}: c calibrates"
+        return f"{feedback.landings_words(n)}: c calibrates"
 
     def action_calibrate(self) -> None:
         if self.calibrating:
