@@ -19,6 +19,7 @@ from . import shots
 from .coach import Zone, ZoneStats, stats_for, zone_of, zone_of_attempt
 from .drills import sample_setups
 from .records import Attempt
+from .strokes import speed_name
 from .table import TableSpec
 
 Sampler = Callable[[TableSpec, Any, np.random.Generator, int], list[Any]]
@@ -280,10 +281,24 @@ class Scheduler:
         p = draws[z]
         return z, ("weak" if p < lo else "band" if p <= hi else "strong"), p
 
+    def band_words(self, band: str) -> str:
+        """A zone's speed band as the player at this table reads it: its stroke name where the
+        table's named stroke at the band's middle speed has that name (the default table),
+        else its m/s range (on a dead table the zone filed as "fast" holds its medium)."""
+        lo, hi = shots.SPEED_BANDS[band]
+        if speed_name(math.sqrt(lo * hi), self.table) == band:
+            return band
+        first, *_, last = shots.SPEED_BANDS
+        if band == first:
+            return f"under {hi:.1f} m/s"
+        if band == last:
+            return f"over {lo:.1f} m/s"
+        return f"{lo:.1f}-{hi:.1f} m/s"
+
     def _why(self, zone: Zone, st: ZoneStats, reason: str) -> str:
         lo, hi = self.band
         band = f"{lo * 100:.0f}-{hi * 100:.0f} %"
-        where = f"{family_words(zone.family)} from {zone.short} at {zone.speed}"
+        where = f"{family_words(zone.family)} from {zone.short} at {self.band_words(zone.speed)}"
         if st.tried == 0:
             if reason == "pinned":
                 return f"{where}: pinned, never tried here yet"

@@ -295,3 +295,19 @@ def test_zone_stats_default_bias_is_long_or_short_on_the_ideal_model() -> None:
     (z,) = st
     assert st[z].bias == pytest.approx(0.25, abs=1e-4) and st[z].bias_n == 2
     assert coach.zone_stats([replace(a, result="hit")])[z].bias is None
+
+
+def test_why_names_a_zone_speed_band_as_the_player_at_this_table_reads_it() -> None:
+    # Zones file attempts by m/s bands named after the default table's strokes. On the 9-ft
+    # default a band keeps its stroke name; on a 7-ft table the band filed as "fast" holds
+    # speeds that table calls power (strokes.speed_name by lengths of travel, its own check),
+    # so the coach's Why line gives the band's m/s range instead of a name that would
+    # contradict the card's stroke.
+    t7 = builtin_table("7ft")
+    on9 = scheduler.Scheduler(T9, None, [], np.random.default_rng(1), sampler=_sampler)
+    on7 = scheduler.Scheduler(t7, None, [], np.random.default_rng(1), sampler=_sampler)
+    lo, hi = shots.SPEED_BANDS["fast"]
+    assert strokes.speed_name(math.sqrt(lo * hi), t7) != "fast"
+    assert on9.band_words("fast") == "fast"
+    assert on7.band_words("fast") == f"{lo:.1f}-{hi:.1f} m/s"
+    assert on7.band_words("medium") == "medium"
