@@ -100,6 +100,21 @@ def param_sentence(e: Estimate) -> str:
     return text + "."
 
 
+FAR_FROM_BOOK = 1.5
+"""A fitted stroke whose speed differs by more than this factor from the speed that gives the
+book's lengths of travel on the calibrated table (strokes.stroke_speed) is said to be
+doubtful: the named strokes sit 1.25-1.6 times apart in speed on the default table
+(shots.SPEED_PRESETS), so a stroke past this factor is another stroke."""
+
+
+def _far(speed: float, named: float) -> bool:
+    return (
+        math.isfinite(named)
+        and named > 0
+        and not 1 / FAR_FROM_BOOK <= speed / named <= FAR_FROM_BOOK
+    )
+
+
 def stroke_sentences(cal: Calibration, table: TableSpec | None = None) -> list[str]:
     """Each of the player's strokes in lengths of travel on the calibrated table, beside the
     book's lengths (shots.STROKE_LENGTHS), and in m/s."""
@@ -128,6 +143,12 @@ def stroke_sentences(cal: Calibration, table: TableSpec | None = None) -> list[s
         ratio = e.narrowed
         if math.isfinite(ratio) and ratio > SILENT:
             text += ", which the shots hardly tell: the book's pace stands"
+        elif here is not None and _far(e.value, strokes.stroke_speed(here, e.name)):
+            text += (
+                "; that is far from any stroke so named, so it may say more about what the "
+                "model cannot do on this table than about your stroke: count the lengths a "
+                f"few of your {e.name} strokes travel to check it"
+            )
         out.append(text + ".")
     return out
 
