@@ -17,7 +17,7 @@ from typing import Any
 import numpy as np
 
 from .. import coach
-from ..shots import SPEED_BANDS
+from ..shots import PRESETS, SPEED_BANDS
 from ..store.attempts import Attempts, quiet_gc
 from ..store.coded import CodePlan, aimed_numbers, coded_pages, stored_values
 from ..store.errors import StoreError
@@ -110,6 +110,7 @@ def read_coded(c: Any, query: AttemptQuery) -> Coded | None:
         raw_fams, all_players, all_tables, RAIL_NAMES,
         (coach.COL_WIDTH, coach.ROW_HEIGHT, coach.ZONE_COLS, coach.ZONE_ROWS),
         tuple(SPEED_BANDS.values()),
+        (*RAIL_NAMES, *(",".join(f.rails) for f in PRESETS.values())),
     )  # fmt: skip
     parts: dict[str, list[np.ndarray]] = {k: [] for k in ("ids", "sess", "c1", "c2", "us")}
     for page in coded_pages(c, query, plan):
@@ -182,9 +183,7 @@ def offsets_of_coded(
     landed = np.flatnonzero(cols.landed)
     landed = landed[np.argsort(cols.ids[landed], kind="stable")]  # numbers come by id
     done = 0
-    for rows in aimed_numbers(c, query):
-        nums = np.array(rows, np.float64).reshape(-1, 4)
-        del rows
+    for nums in aimed_numbers(c, query, cols.ids[landed]):
         pos = landed[done : done + len(nums)]
         done += len(nums)
         if len(pos) != len(nums):
