@@ -26,7 +26,7 @@ from ..table import BUILTIN_TABLES, TableSpec
 from .bias import LandingBias, bias_by_codes, offsets_on
 from .frame import RAIL_NAMES
 from .history import History, history_of_codes
-from .stamps import ISO_LEN, parse_joined, parse_times
+from .stamps import ISO_LEN, parse_rows, parse_times
 from .zones import zones_of_cells
 
 _EPOCH = datetime(1970, 1, 1, tzinfo=UTC)
@@ -88,9 +88,12 @@ def first_coded(keys: np.ndarray, names: Sequence[Any]) -> tuple[np.ndarray, tup
 
 def _times(text: str, n: int) -> np.ndarray:
     """A page's stored times (joined with char(31)) as microseconds."""
-    us = (
-        parse_joined("".join(text.split("\x1f")), n) if len(text) == (ISO_LEN + 1) * n - 1 else None
-    )
+    us = None
+    if len(text) == (ISO_LEN + 1) * n - 1 and text.isascii():
+        # each time then char(31): read in place as rows of ISO_LEN + 1 bytes, no split
+        raw = np.frombuffer((text + "\x1f").encode("ascii"), np.uint8).reshape(n, ISO_LEN + 1)
+        if bool((raw[:, ISO_LEN] == 31).all()):
+            us = parse_rows(raw[:, :ISO_LEN])
     if us is None:  # some time not in the stored fixed form: parsed one by one
         texts = text.split("\x1f")
         if len(texts) != n:

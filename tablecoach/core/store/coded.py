@@ -6,7 +6,7 @@ those whose landing is read against the aim. Fetching every row as a Python tupl
 more than the facts themselves, so here SQLite turns each fact into a small integer and
 concatenates a page of rows into one text (``group_concat``), which the caller reads with
 numpy: no Python object per row. Times come the same way, as their stored text written one
-after another (fixed width: stats.stamps.parse_joined).
+after another (fixed width: stats.stamps.parse_rows).
 """
 
 from __future__ import annotations
