@@ -155,9 +155,8 @@ def run(args: argparse.Namespace) -> int:
 
 
 def _shift(args: argparse.Namespace, table: Any, setup: Any, aim: Any, conv: Any) -> Any:
-    from ..core import aim as aims
-
     """The reference line of --ref-start/--ref-reading moved to this setup (core/aim/shift.py)."""
+    from ..core import aim as aims
     from ..core.shots import ShotError
 
     if args.ref_start is None or args.ref_reading is None:

@@ -185,8 +185,8 @@ def aimed_numbers(
     ``landed_ids`` are those attempts' ids in increasing order (from the coded read of the same
     read transaction): they tell each page's size, so that numpy fills its array straight from
     the cursor (``numpy.fromiter``), a float object at a time but no tuple or list of them.
-    Exact floats: these are the only numbers not read as codes. A page whose rows are not the
-    ones ``landed_ids`` says raises RuntimeError."""
+    Exact floats: these are the only numbers not read as codes. A page with more or fewer
+    rows than ``landed_ids`` says raises RuntimeError."""
     import numpy as np
 
     where, args = query.where()
@@ -195,12 +195,12 @@ def aimed_numbers(
         f"SELECT {START_X}, {START_Y}, aim_used, landing_at FROM attempts{hint}{where} "
         "AND landing_at IS NOT NULL AND id >= ? AND id < ? ORDER BY id"
     )
-    ids = landed_ids
     for lo in pages:
-        n = int(np.searchsorted(ids, lo + pages.step) - np.searchsorted(ids, lo))
+        hi = lo + pages.step
+        n = int(np.searchsorted(landed_ids, hi) - np.searchsorted(landed_ids, lo))
         if n == 0:
             continue
-        cur = c.execute(sql, (*args, lo, lo + pages.step))
+        cur = c.execute(sql, (*args, lo, hi))
         try:
             nums = np.fromiter(chain.from_iterable(cur), np.float64, count=4 * n)
         except (ValueError, TypeError) as e:
