@@ -8,7 +8,6 @@ import sys
 from dataclasses import replace
 from typing import Any
 
-from ..core import aim as aims
 from .options import add_common, add_shot_options, number, parse_point, setup_from_args
 
 
@@ -111,6 +110,7 @@ def _deg(rad: float) -> float:
 
 
 def run(args: argparse.Namespace) -> int:
+    from ..core import aim as aims  # here, not at the top: every command's start loads this module
     from ..core import shots
 
     table, setup, stroke, status = setup_from_args(args)
@@ -156,6 +156,7 @@ def run(args: argparse.Namespace) -> int:
 
 def _shift(args: argparse.Namespace, table: Any, setup: Any, aim: Any, conv: Any) -> Any:
     """The reference line of --ref-start/--ref-reading moved to this setup (core/aim/shift.py)."""
+    from ..core import aim as aims
     from ..core.shots import ShotError
 
     if args.ref_start is None or args.ref_reading is None:

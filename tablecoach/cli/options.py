@@ -8,8 +8,6 @@ from collections.abc import Callable
 from datetime import date, tzinfo
 from typing import TYPE_CHECKING, Any
 
-from ..core import strokes
-
 if TYPE_CHECKING:
     from ..core.shots import Family, Setup, Stroke
     from ..core.store import Store
@@ -200,6 +198,8 @@ def setup_from_args(args: argparse.Namespace) -> tuple[TableSpec, Setup, Stroke,
             raise ShotError(f"--{name} {v:g} tips is more than a tip: it would miscue")
     # a preset name means this player's own "medium" etc. once the table is calibrated
     if calibration is None:
+        from ..core import strokes  # the physics: loaded by the commands that take a shot
+
         speed = strokes.parse_speed(args.speed, table)
     else:
         from ..core.calibration.use import speed_for

@@ -20,7 +20,7 @@ from typing import Any
 
 import numpy as np
 
-from . import shots, strokes
+from . import shots
 from .records import Attempt, ShotRecord
 from .store import Store, counts
 from .store.query import AttemptQuery
@@ -100,6 +100,8 @@ def start_of(shot: ShotRecord) -> tuple[float, float]:
 
 def zone_of(shot: ShotRecord, speed: float) -> Zone:
     """The zone of a shot (positions in diamonds) struck at ``speed`` m/s."""
+    from . import strokes  # the physics it loads: not for readers of zones (the history)
+
     col, row = cell_of(*start_of(shot))
     return Zone(shot.family or "custom", col, row, strokes.speed_name(speed))
 

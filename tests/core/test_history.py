@@ -377,6 +377,32 @@ def test_local_days_match_local_date(zone):
         assert date(1970, 1, 1) + timedelta(days=int(d)) == local_date(when, tz)
 
 
+@pytest.mark.parametrize("zone", ["Europe/Berlin", "Australia/Lord_Howe", "Asia/Kathmandu"])
+def test_local_days_in_the_machine_zone(zone, monkeypatch):
+    # tz=None reads the machine's zone from the C library: set it (TZ and time.tzset, Unix)
+    # to zones with daylight saving, a half-hour shift and +05:45; reference: datetime's own
+    # astimezone() of each instant (local_date with tz None)
+    import time as _time
+
+    if not hasattr(_time, "tzset"):
+        pytest.skip("time.tzset is Unix only")
+    monkeypatch.setenv("TZ", zone)
+    _time.tzset()
+    try:
+        rng = np.random.default_rng(23)
+        start = datetime(2026, 1, 1, tzinfo=UTC).timestamp()
+        ts = np.sort(start + rng.uniform(0, 365 * 86400, 3000))
+        days = local_days(ts, None)
+        for t, d in zip(ts, days, strict=True):
+            when = datetime.fromtimestamp(float(t), UTC)
+            assert date(1970, 1, 1) + timedelta(days=int(d)) == local_date(when, None)
+        # the zone took effect: some local days are not the UTC ones
+        assert bool((days != np.floor(ts / 86400).astype(np.int64)).any())
+    finally:
+        monkeypatch.undo()
+        _time.tzset()
+
+
 def test_speed_bands_match_speed_name():
     from tablecoach.core.strokes import speed_name
 

@@ -6,6 +6,7 @@ the two agreed on every case below."""
 
 from __future__ import annotations
 
+import dataclasses
 import json
 import sqlite3
 from datetime import UTC, datetime, timedelta
@@ -145,3 +146,44 @@ def test_first_coded_matches_first_appearance() -> None:
     assert list(order) == want
     assert [order[c] for c in codes.tolist()] == [names[k] for k in keys.tolist()]
     assert first_coded(np.zeros(0, np.int64), names)[1] == ()
+
+
+def test_listed_rail_sequences_code_as_the_string_functions_do(tmp_path: Path) -> None:
+    # Reference: the same read with no sequence listed, where SQLite's own substr, length and
+    # replace work out every row's aim and rail count (FIRST_RAIL_AIMED); stored by hand:
+    # an aim rail that is a prefix of the sequence up to a comma, one that is not a rail, an
+    # empty one, a rail sequence no preset has
+    rng = np.random.default_rng(9)
+    path = tmp_path / "seq.sqlite3"
+    with Store.open(path) as s:
+        s.log_many([random_attempt(rng) for _ in range(60)])
+    conn = sqlite3.connect(path)
+    for i, (rails, aim) in enumerate(
+        [
+            ("right,foot,left", "right,foot"),
+            ("right,foot,left", "right,foot,left"),
+            ("right,foot", "right,"),
+            ("right,foot", ""),
+            ("foot,head,left", "foot"),
+            ("right", "righ"),
+            ("right,left", "left"),
+        ]
+    ):
+        conn.execute(
+            "UPDATE attempts SET rails = ?, aim_rail = ? WHERE id = ?", (rails, aim, i + 1)
+        )
+    conn.commit()
+    conn.close()
+    with Store.open(path) as s, s.snapshot() as c:
+        base = coded.CodePlan(
+            coded.stored_values(c, "family"), coded.stored_values(c, "player"),
+            coded.stored_values(c, "table_name"), ("head", "foot", "left", "right"),
+            (2.0, 1.0, 4, 4), ((0.0, 1.0), (1.0, 2.0), (2.0, 9.0)),
+        )  # fmt: skip
+        listed = dataclasses.replace(
+            base, sequences=("right", "foot", "right,foot", "right,foot,left", "right,left")
+        )
+        want = list(coded.coded_pages(c, AttemptQuery(), base))
+        got = list(coded.coded_pages(c, AttemptQuery(), listed))
+    assert got == want
+    assert want and want[0].n == 60

@@ -17,7 +17,7 @@ from typing import Any
 import numpy as np
 
 from .. import coach
-from ..shots import SPEED_BANDS
+from ..shots import PRESETS, SPEED_BANDS
 from ..store.attempts import Attempts, quiet_gc
 from ..store.coded import CodePlan, aimed_numbers, coded_pages, stored_values
 from ..store.errors import StoreError
@@ -26,7 +26,7 @@ from ..table import BUILTIN_TABLES, TableSpec
 from .bias import LandingBias, bias_by_codes, offsets_on
 from .frame import RAIL_NAMES
 from .history import History, history_of_codes
-from .stamps import ISO_LEN, parse_joined, parse_times
+from .stamps import ISO_LEN, parse_rows, parse_times
 from .zones import zones_of_cells
 
 _EPOCH = datetime(1970, 1, 1, tzinfo=UTC)
@@ -88,9 +88,12 @@ def first_coded(keys: np.ndarray, names: Sequence[Any]) -> tuple[np.ndarray, tup
 
 def _times(text: str, n: int) -> np.ndarray:
     """A page's stored times (joined with char(31)) as microseconds."""
-    us = (
-        parse_joined("".join(text.split("\x1f")), n) if len(text) == (ISO_LEN + 1) * n - 1 else None
-    )
+    us = None
+    if len(text) == (ISO_LEN + 1) * n - 1 and text.isascii():
+        # each time then char(31): read in place as rows of ISO_LEN + 1 bytes, no split
+        raw = np.frombuffer((text + "\x1f").encode("ascii"), np.uint8).reshape(n, ISO_LEN + 1)
+        if bool((raw[:, ISO_LEN] == 31).all()):
+            us = parse_rows(raw[:, :ISO_LEN])
     if us is None:  # some time not in the stored fixed form: parsed one by one
         texts = text.split("\x1f")
         if len(texts) != n:
@@ -110,6 +113,7 @@ def read_coded(c: Any, query: AttemptQuery) -> Coded | None:
         raw_fams, all_players, all_tables, RAIL_NAMES,
         (coach.COL_WIDTH, coach.ROW_HEIGHT, coach.ZONE_COLS, coach.ZONE_ROWS),
         tuple(SPEED_BANDS.values()),
+        (*RAIL_NAMES, *(",".join(f.rails) for f in PRESETS.values())),
     )  # fmt: skip
     parts: dict[str, list[np.ndarray]] = {k: [] for k in ("ids", "sess", "c1", "c2", "us")}
     for page in coded_pages(c, query, plan):
@@ -182,9 +186,7 @@ def offsets_of_coded(
     landed = np.flatnonzero(cols.landed)
     landed = landed[np.argsort(cols.ids[landed], kind="stable")]  # numbers come by id
     done = 0
-    for rows in aimed_numbers(c, query):
-        nums = np.array(rows, np.float64).reshape(-1, 4)
-        del rows
+    for nums in aimed_numbers(c, query, cols.ids[landed]):
         pos = landed[done : done + len(nums)]
         done += len(nums)
         if len(pos) != len(nums):

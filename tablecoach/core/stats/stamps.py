@@ -38,7 +38,15 @@ def parse_joined(joined: str, n: int) -> np.ndarray | None:
         return np.zeros(0, np.int64)
     if len(joined) != ISO_LEN * n or not joined.isascii():
         return None
-    raw = np.frombuffer(joined.encode("ascii"), np.uint8).reshape(n, ISO_LEN)
+    return parse_rows(np.frombuffer(joined.encode("ascii"), np.uint8).reshape(n, ISO_LEN))
+
+
+def parse_rows(raw: np.ndarray) -> np.ndarray | None:
+    """Stored times as the rows of an (n, ISO_LEN) uint8 array of their ASCII text (any
+    strides) as microseconds since 1970 (int64), or None when some row is not exactly that."""
+    n = len(raw)
+    if n == 0:
+        return np.zeros(0, np.int64)
     if not iso_form_ok(raw):
         return None
 

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import time
 from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import date, datetime, timedelta, tzinfo
@@ -85,10 +86,10 @@ def local_days(ts: np.ndarray, tz: tzinfo | None = None) -> np.ndarray:
     inv = np.searchsorted(uniq, hours)
 
     def offset(t: float) -> float:
-        d = datetime.fromtimestamp(t, tz) if tz is not None else datetime.fromtimestamp(t)
         if tz is None:
-            d = d.astimezone()
-        off = d.utcoffset()
+            # the machine's zone: what ``astimezone()`` of the instant asks the C library for
+            return float(time.localtime(t).tm_gmtoff)
+        off = datetime.fromtimestamp(t, tz).utcoffset()
         return off.total_seconds() if off is not None else 0.0
 
     lo = np.array([offset(float(h) * 3600.0) for h in uniq])

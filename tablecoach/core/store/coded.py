@@ -6,7 +6,7 @@ those whose landing is read against the aim. Fetching every row as a Python tupl
 more than the facts themselves, so here SQLite turns each fact into a small integer and
 concatenates a page of rows into one text (``group_concat``), which the caller reads with
 numpy: no Python object per row. Times come the same way, as their stored text written one
-after another (fixed width: stats.stamps.parse_joined).
+after another (fixed width: stats.stamps.parse_rows).
 """
 
 from __future__ import annotations
@@ -14,9 +14,13 @@ from __future__ import annotations
 import sqlite3
 from collections.abc import Iterator, Sequence
 from dataclasses import dataclass
-from typing import Any
+from itertools import chain
+from typing import TYPE_CHECKING, Any
 
 from .query import AttemptQuery
+
+if TYPE_CHECKING:
+    import numpy as np
 
 PAGE_IDS = 131_072
 """Row ids a page covers (its texts: about 60 bytes a row)."""
@@ -37,7 +41,11 @@ class CodePlan:
     """What to code. ``families``, ``players``, ``tables`` and ``rails`` list the values each
     code indexes (a value not listed codes as the list's length); ``cell`` is (column width,
     row height, columns, rows) of the zone grid in diamonds; ``bands`` the half-open speed
-    ranges in order (a speed below them all codes 0, any other not inside one the last)."""
+    ranges in order (a speed below them all codes 0, any other not inside one the last).
+    ``sequences`` are rail sequences as stored (e.g. "right,foot") whose aim and rail count
+    are looked up rather than worked out with string functions row by row: the common ones
+    (same codes either way; the lookup is a few comparisons, the string functions cost about
+    as much as reading the row)."""
 
     families: Sequence[str]
     players: Sequence[str]
@@ -45,6 +53,7 @@ class CodePlan:
     rails: Sequence[str]
     cell: tuple[float, float, int, int]
     bands: Sequence[tuple[float, float]]
+    sequences: Sequence[str] = ()
 
 
 @dataclass(frozen=True, slots=True)
@@ -92,17 +101,36 @@ def _codes_sql(plan: CodePlan) -> tuple[str, list[Any]]:
     )
     player = _case("player", plan.players, args)
     table = _case("table_name", plan.tables, args)
-    aim = _case("aim_rail", plan.rails, args)
     p_n, t_n, r_n = len(plan.players) + 1, len(plan.tables) + 1, len(plan.rails) + 1
-    aimed = f"(landing_at IS NOT NULL) + 2 * {FIRST_RAIL_AIMED}"
-    n_rails = "(length(rails) - length(replace(rails, ',', '')) + 1)"
+    seq = _sequence_sql(plan.sequences, 4 * r_n * r_n, args)
+    aim = _case("aim_rail", plan.rails, args)
     land = _case("landing_rail", plan.rails, args)
     code2 = (
-        f"({player} + {p_n} * ({table} + {t_n} * ({aimed} + 4 * ({aim} + {r_n} * ({land} + "
-        f"{r_n} * {n_rails})))))"
+        f"({player} + {p_n} * ({table} + {t_n} * ((landing_at IS NOT NULL) + {seq} + 4 * ("
+        f"{aim} + {r_n} * {land}))))"
     )
     ints = f"id || ',' || ifnull(session_id, -1) || ',' || {code1} || ',' || {code2}"
     return f"count(*), group_concat({ints}, ','), group_concat(at, char(31))", args
+
+
+def _sequence_sql(sequences: Sequence[str], unit: int, args: list[Any]) -> str:
+    """SQL of ``2 * aimed + unit * rails`` (rails: the number of rails in the sequence), for
+    the listed ``sequences`` by lookup, for any other by string functions. The aim is read on
+    the first rail of a listed sequence exactly when ``aim_rail`` is the sequence itself or
+    one of its prefixes up to a comma (what FIRST_RAIL_AIMED says of it)."""
+    n_rails = "(length(rails) - length(replace(rails, ',', '')) + 1)"
+    other = f"(2 * {FIRST_RAIL_AIMED} + {unit} * {n_rails})"
+    if not sequences:
+        return other
+    whens = []
+    for s in dict.fromkeys(sequences):
+        parts = s.split(",")
+        aims = [s, *(",".join(parts[:k]) for k in range(1, len(parts)))]
+        args.append(s)
+        args.extend(aims)
+        marks = ", ".join("?" * len(aims))
+        whens.append(f"WHEN ? THEN 2 * (aim_rail IN ({marks})) + {unit * len(parts)}")
+    return f"(CASE rails {' '.join(whens)} ELSE {other} END)"
 
 
 def stored_values(c: sqlite3.Connection, column: str) -> list[str]:
@@ -149,10 +177,18 @@ def coded_pages(c: sqlite3.Connection, query: AttemptQuery, plan: CodePlan) -> I
             yield CodedPage(int(n), str(ints), str(times))
 
 
-def aimed_numbers(c: sqlite3.Connection, query: AttemptQuery) -> Iterator[list[tuple[Any, ...]]]:
+def aimed_numbers(
+    c: sqlite3.Connection, query: AttemptQuery, landed_ids: np.ndarray
+) -> Iterator[np.ndarray]:
     """(start x, start y, aim used, landing at) of the attempts ``query`` matches whose landing
-    is known, in order of id, a page of ids at a time. Exact floats: these are the only
-    numbers read one row at a time."""
+    is known, in order of id, a page of ids at a time, as float64 arrays of shape (n, 4).
+    ``landed_ids`` are those attempts' ids in increasing order (from the coded read of the same
+    read transaction): they tell each page's size, so that numpy fills its array straight from
+    the cursor (``numpy.fromiter``), a float object at a time but no tuple or list of them.
+    Exact floats: these are the only numbers not read as codes. A page with more or fewer
+    rows than ``landed_ids`` says raises RuntimeError."""
+    import numpy as np
+
     where, args = query.where()
     hint, pages = _pages(c, query)
     sql = (
@@ -160,6 +196,15 @@ def aimed_numbers(c: sqlite3.Connection, query: AttemptQuery) -> Iterator[list[t
         "AND landing_at IS NOT NULL AND id >= ? AND id < ? ORDER BY id"
     )
     for lo in pages:
-        rows = c.execute(sql, (*args, lo, lo + pages.step)).fetchall()
-        if rows:
-            yield rows
+        hi = lo + pages.step
+        n = int(np.searchsorted(landed_ids, hi) - np.searchsorted(landed_ids, lo))
+        if n == 0:
+            continue
+        cur = c.execute(sql, (*args, lo, hi))
+        try:
+            nums = np.fromiter(chain.from_iterable(cur), np.float64, count=4 * n)
+        except (ValueError, TypeError) as e:
+            raise RuntimeError("the coded read and the numbers read disagree") from e
+        if cur.fetchone() is not None:
+            raise RuntimeError("the coded read and the numbers read disagree")
+        yield nums.reshape(n, 4)
