@@ -956,3 +956,10 @@ def test_json_line_reads_as_the_standard_parser_and_checks_long_numbers() -> Non
         validate.json_line(json.dumps(_record()).replace('"speed": 2.0', f'"speed": {long_text}'))
     with pytest.raises(validate.InputError, match="not a number JSON allows"):
         validate.json_line('{"a": NaN}')
+    # the limit's edges (RFC 8259, section 6: a number is '-'? then a digit...): 40 characters
+    # read, 41 are refused, whether the number starts with a digit or with '-'
+    for text in ("1" * 40, "-" + "1" * 39, "1." + "2" * 38, "-1." + "2" * 37):
+        assert validate.json_line(f'{{"speed": {text}}}') == json.loads(f'{{"speed": {text}}}')
+    for text in ("1" * 41, "-" + "1" * 40, "1." + "2" * 39, "-1." + "2" * 35 + "e-5"):
+        with pytest.raises(validate.InputError, match="a number is 41 characters long"):
+            validate.json_line(f'{{"speed": {text}}}')

@@ -37,7 +37,7 @@ def register(sub: Any) -> None:
     p.set_defaults(func=run)
 
 
-BATCH = 5_000
+BATCH = 10_000
 """Attempts checked and kept in the import's scratch database per write."""
 
 SHOW_BYTES = 2_000_000
@@ -95,14 +95,13 @@ def _read(name: str, raw: IO[bytes], fmt: str | None) -> tuple[str, _Counted, IO
 
 def run(args: argparse.Namespace) -> int:
     from ..core import formats
-    from ..core.records import Attempt
     from ..core.store import Store
     from ..core.store.importing import Staging
     from ..paths import db_path
     from .progress import tracked, working
 
     where = "standard input" if args.file == "-" else args.file
-    errors: list[tuple[int, str]] = []
+    errors: list[formats.BadLine] = []
     with tempfile.TemporaryFile("w+b") as spool, Staging() as staged:
         try:
             raw, size = _open(args.file, spool)
@@ -112,20 +111,20 @@ def run(args: argparse.Namespace) -> int:
             fmt, counted, lines = _read(args.file, raw, args.format)
             # one pass: each good record is checked and kept aside, each bad line noted
             items = tracked(
-                formats.iter_any(lines, fmt), size, "importing",
+                formats.iter_rows(lines, fmt), size, "importing",
                 done=lambda: counted.done, show_from=SHOW_BYTES,
             )  # fmt: skip
-            batch: list[Attempt] = []
+            batch: list[tuple[Any, ...]] = []
             try:
                 for item in items:
-                    if isinstance(item, Attempt):
+                    if type(item) is formats.BadLine:
+                        errors.append(item)
+                    else:
                         batch.append(item)
                         if len(batch) >= BATCH:
-                            staged.add(batch)
+                            staged.add_checked(batch)
                             batch = []
-                    else:
-                        errors.append(item)
-                staged.add(batch)
+                staged.add_checked(batch)
             except UnicodeDecodeError:
                 raise ImportFileError(
                     f"{args.file}: not UTF-8 text; export it again as UTF-8"

@@ -9,10 +9,10 @@ from __future__ import annotations
 import csv
 import json
 import math
-from collections.abc import Iterable, Iterator, Sequence
+from collections.abc import Callable, Iterable, Iterator, Sequence
 from datetime import datetime
 from json.encoder import encode_basestring
-from typing import IO, Any
+from typing import IO, Any, NamedTuple, TypeVar
 
 from . import validate
 from .attempt_json import Line, attempt_from_json, attempt_to_json, when_text
@@ -23,6 +23,9 @@ from .records import (
     RecordError,
     flatten,
 )
+from .store.import_rows import checked_row
+
+T = TypeVar("T")
 
 FORMATS = ("jsonl", "csv")
 
@@ -118,21 +121,32 @@ def read_jsonl(fh: IO[str]) -> tuple[list[Attempt], list[tuple[int, str]]]:
     return _collect(iter_jsonl(fh))
 
 
-def iter_jsonl(fh: IO[str]) -> Iterator[Attempt | tuple[int, str]]:
+class BadLine(NamedTuple):
+    """A bad line of an import file: its number and the one line saying what is wrong."""
+
+    line: int
+    message: str
+
+
+def iter_jsonl(fh: IO[str]) -> Iterator[Attempt | BadLine]:
     """The lines one at a time as they are read: an Attempt, or (line number, message) for a
     bad line (blank lines are skipped); memory does not grow with the file."""
+    return _jsonl(fh, attempt_from_json)
+
+
+def _jsonl(fh: IO[str], make: Callable[[Any, int], T]) -> Iterator[T | BadLine]:
     for n, line in enumerate(fh, start=1):
         if not line.strip():
             continue
         try:
             obj = validate.json_line(line.rstrip("\r\n"))
         except validate.InputError as exc:
-            yield (n, f"line {n}: {exc}")
+            yield BadLine(n, f"line {n}: {exc}")
             continue
         try:
-            yield attempt_from_json(obj, n)
+            yield make(obj, n)
         except RecordError as exc:
-            yield (n, str(exc))
+            yield BadLine(n, str(exc))
 
 
 def _collect(
@@ -250,15 +264,19 @@ def read_csv(fh: IO[str]) -> tuple[list[Attempt], list[tuple[int, str]]]:
     return _collect(iter_csv(fh))
 
 
-def iter_csv(fh: IO[str]) -> Iterator[Attempt | tuple[int, str]]:
+def iter_csv(fh: IO[str]) -> Iterator[Attempt | BadLine]:
     """The rows one at a time as they are read, like iter_jsonl (a bad header is one error)."""
+    return _csv(fh, attempt_from_json)
+
+
+def _csv(fh: IO[str], make: Callable[[Any, int], T]) -> Iterator[T | BadLine]:
     reader = csv.reader(fh)
     try:
         header = next(reader)
     except StopIteration:
         return
     except csv.Error as exc:
-        yield (1, f"line 1: not valid CSV ({exc})")
+        yield BadLine(1, f"line 1: not valid CSV ({exc})")
         return
     header = [h.strip() for h in header]
     missing = [c for c in CSV_COLUMNS if c not in header and c not in _OPTIONAL_CSV]
@@ -268,7 +286,7 @@ def iter_csv(fh: IO[str]) -> Iterator[Attempt | tuple[int, str]]:
         what += ("; " if what else "") + (
             f"unknown columns: {', '.join(unknown)}" if unknown else ""
         )
-        yield (1, f"line 1: the header is not a tablecoach CSV header ({what})")
+        yield BadLine(1, f"line 1: the header is not a tablecoach CSV header ({what})")
         return
     last = reader.line_num
     while True:
@@ -278,7 +296,7 @@ def iter_csv(fh: IO[str]) -> Iterator[Attempt | tuple[int, str]]:
         except StopIteration:
             break
         except csv.Error as exc:
-            yield (start, f"line {start}: not valid CSV ({exc})")
+            yield BadLine(start, f"line {start}: not valid CSV ({exc})")
             last = reader.line_num
             continue
         last = reader.line_num
@@ -286,12 +304,12 @@ def iter_csv(fh: IO[str]) -> Iterator[Attempt | tuple[int, str]]:
             continue
         ln = Line(start)
         if len(cells) != len(header):
-            yield (start, f"line {start}: {len(cells)} cells, the header has {len(header)}")
+            yield BadLine(start, f"line {start}: {len(cells)} cells, the header has {len(header)}")
             continue
         try:
-            yield attempt_from_json(_row_to_obj(dict(zip(header, cells, strict=True)), ln), start)
+            yield make(_row_to_obj(dict(zip(header, cells, strict=True)), ln), start)
         except RecordError as exc:
-            yield (start, str(exc))
+            yield BadLine(start, str(exc))
 
 
 def read_any(fh: IO[str], fmt: str) -> tuple[list[Attempt], list[tuple[int, str]]]:
@@ -303,12 +321,23 @@ def read_any(fh: IO[str], fmt: str) -> tuple[list[Attempt], list[tuple[int, str]
     raise RecordError(f"unknown format {fmt!r}: use one of {', '.join(FORMATS)}")
 
 
-def iter_any(fh: IO[str], fmt: str) -> Iterator[Attempt | tuple[int, str]]:
+def iter_any(fh: IO[str], fmt: str) -> Iterator[Attempt | BadLine]:
     """Read with the named format one record at a time (iter_jsonl, iter_csv)."""
     if fmt == "csv":
         return iter_csv(fh)
     if fmt == "jsonl":
         return iter_jsonl(fh)
+    raise RecordError(f"unknown format {fmt!r}: use one of {', '.join(FORMATS)}")
+
+
+def iter_rows(fh: IO[str], fmt: str) -> Iterator[tuple[Any, ...] | BadLine]:
+    """``iter_any`` for an import: each good record as its checked attempts row with its
+    identity last (``store.import_rows.checked_row``: the same checks, no Attempt built for
+    a plain record), each bad line as a BadLine with the same message."""
+    if fmt == "csv":
+        return _csv(fh, checked_row)
+    if fmt == "jsonl":
+        return _jsonl(fh, checked_row)
     raise RecordError(f"unknown format {fmt!r}: use one of {', '.join(FORMATS)}")
 
 
@@ -331,10 +360,12 @@ def guess_format(name: str, first_line: str = "") -> str:
 
 
 __all__ = [
+    "BadLine",
     "CSV_COLUMNS",
     "FORMATS",
     "attempt_to_row",
     "guess_format",
+    "iter_rows",
     "jsonl_line",
     "read_any",
     "read_csv",

@@ -73,6 +73,10 @@ def from_row(r: Sequence[Any], id_: int | None = None) -> Attempt:
     )
 
 
+_ENCODE = json.JSONEncoder(separators=(",", ":"), ensure_ascii=False).encode
+"""json.dumps(..., separators=(",", ":"), ensure_ascii=False), its encoder made once."""
+
+
 def attempt_identity(a: Attempt) -> str:
     """The identity of an attempt for import: a hash of its full content except id and session.
 
@@ -80,9 +84,17 @@ def attempt_identity(a: Attempt) -> str:
     are the same attempt exactly when every exported field is equal.
     """
     f = flatten(a)
-    content = [iso_utc(f[0]), *f[1:4], list(f[4]), *f[5:]]
-    text = json.dumps(content, separators=(",", ":"), ensure_ascii=False)
-    return hashlib.sha256(text.encode("utf-8")).hexdigest()
+    return _hash([iso_utc(f[0]), *f[1:4], list(f[4]), *f[5:]])
+
+
+def row_identity(row: Sequence[Any]) -> str:
+    """``attempt_identity`` of a row laid out as ``to_row`` gives it (the session, if there,
+    is left out): the same text hashed, the rails split again (no rail name holds a comma)."""
+    return _hash([*row[:4], row[4].split(","), *row[5:27]])
+
+
+def _hash(content: list[Any]) -> str:
+    return hashlib.sha256(_ENCODE(content).encode("utf-8")).hexdigest()
 
 
 def check_attempt(a: Attempt) -> Attempt:
